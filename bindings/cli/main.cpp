@@ -1,0 +1,113 @@
+// The `disc` command-line program: a thin front end over libdisc.
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+#include <iostream>
+#include <nlohmann/json.hpp>
+
+#include "disc/disc.hpp"
+
+namespace {
+
+// Exit codes: 0 success, 2 bad input, 3 simulation failed.
+constexpr int kExitInput = 2;
+constexpr int kExitSimulation = 3;
+
+struct ExampleArgs {
+  std::string name;
+  std::string method = "trap";
+  double stop = 1.0;
+  int cycles = 1;
+  bool json = false;
+  bool cold = true;
+};
+
+void printSafety() {
+  fmt::print(
+      "\nCaution: mains and the high voltages of valve equipment can kill; reservoir capacitors\n"
+      "stay charged after switch-off. These figures are a simulation to plan work, not a\n"
+      "substitute for local electrical codes, the maker's data or a qualified technician.\n");
+}
+
+int runExample(const ExampleArgs& a) {
+  disc::Circuit circuit = disc::reference::build(a.name);
+  const std::string out = disc::reference::outputNode(a.name);
+  const double f = disc::reference::mainsFrequency(a.name);
+  disc::TransientOptions opt;
+  opt.stop = a.stop;
+  opt.method = disc::parseMethod(a.method);
+  opt.start = a.cold ? disc::Start::Cold : disc::Start::OperatingPoint;
+  opt.record = {"v:" + out};
+  const disc::Result r = disc::transient(circuit, opt);
+  const auto fig = disc::measure::outputFigures(r.time(), r["v:" + out], f, a.cycles);
+  const auto& s = r.stats();
+  if (a.json) {
+    nlohmann::json j = {{"circuit", a.name},
+                        {"method", s.method},
+                        {"stop_s", a.stop},
+                        {"window_s", {fig.window0, fig.window1}},
+                        {"output_mean_V", fig.mean},
+                        {"ripple_pp_V", fig.ripplePeakToPeak},
+                        {"ripple_rms_V", fig.rippleRms},
+                        {"accepted_steps", s.acceptedSteps},
+                        {"rejected_steps", s.rejectedSteps},
+                        {"newton_iterations", s.newtonIterations},
+                        {"wall_s", s.wallSeconds}};
+    std::cout << j.dump(2) << "\n";
+    return 0;
+  }
+  fmt::print("{}: {}\n", a.name, disc::reference::describe(a.name));
+  fmt::print("transient 0 to {} s, {} integration, start {}\n", a.stop, s.method,
+             a.cold ? "cold (switch-on)" : "from operating point");
+  fmt::print("  output mean          {:10.4f} V   (last {} cycle(s), {:.4f} to {:.4f} s)\n", fig.mean,
+             fig.cycles, fig.window0, fig.window1);
+  fmt::print("  ripple peak-to-peak  {:10.4f} V\n", fig.ripplePeakToPeak);
+  fmt::print("  ripple rms           {:10.4f} V\n", fig.rippleRms);
+  fmt::print("  steps {} accepted, {} rejected; {} Newton iterations; {:.3f} s wall\n",
+             s.acceptedSteps, s.rejectedSteps, s.newtonIterations, s.wallSeconds);
+  printSafety();
+  return 0;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  CLI::App app{"disc: simulate power supplies with selenium and copper-oxide plate rectifiers"};
+  app.set_version_flag("--version", std::string("disc ") + disc::kVersion);
+  app.require_subcommand(1);
+
+  ExampleArgs ex;
+  auto* example = app.add_subcommand("example", "Run a reference circuit built into the library");
+  example->add_option("name", ex.name, "Reference circuit (or 'list')")->required();
+  example->add_option("--method", ex.method, "Integration method: trap, bdf2 or ida")
+      ->check(CLI::IsMember({"trap", "bdf2", "ida"}));
+  example->add_option("--stop", ex.stop, "End time of the transient, s")->check(CLI::PositiveNumber);
+  example->add_option("--cycles", ex.cycles, "Settled mains cycles to measure over")
+      ->check(CLI::Range(1, 1000));
+  example->add_flag("--json", ex.json, "Print the figures as JSON");
+  example->add_flag("!--from-operating-point", ex.cold,
+                    "Start from the DC operating point instead of switching on cold");
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    const int code = app.exit(e);
+    return code == 0 ? 0 : kExitInput;
+  }
+  try {
+    if (example->parsed()) {
+      if (ex.name == "list") {
+        for (const auto& n : disc::reference::names())
+          fmt::print("{:18} {}\n", n, disc::reference::describe(n));
+        return 0;
+      }
+      return runExample(ex);
+    }
+  } catch (const disc::InputError& e) {
+    fmt::print(stderr, "disc: error: {}\n", e.what());
+    return kExitInput;
+  } catch (const disc::Error& e) {
+    fmt::print(stderr, "disc: simulation failed: {}\n", e.what());
+    return kExitSimulation;
+  }
+  return 0;
+}

@@ -1,0 +1,73 @@
+// Analyses: DC operating point and transient, with their options.
+#pragma once
+
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "disc/circuit.hpp"
+#include "disc/result.hpp"
+
+namespace disc {
+
+/// Convergence and truncation-error tolerances.
+struct Tolerances {
+  double reltol = 1e-3;        ///< relative, on unknowns and on charges
+  double voltage = 1e-6;       ///< absolute, V
+  double current = 1e-9;       ///< absolute, A
+  double temperature = 1e-4;   ///< absolute, K
+  double state = 1e-6;         ///< absolute, dimensionless slow states
+  void validate() const;
+};
+
+/// Options of the DC operating point (Newton-Raphson, then gmin stepping, then source stepping).
+struct OperatingPointOptions {
+  Tolerances tol;
+  int maxIterations = 150;         ///< per Newton solve
+  double gmin = 1e-12;             ///< S, from every node to gnd
+  std::vector<std::string> record; ///< signals; empty = every node voltage and device current
+  void validate() const;
+};
+
+/// Time integration scheme.
+enum class Method {
+  Trapezoidal,  ///< trapezoidal rule, second order, A-stable
+  Bdf2,         ///< variable-step BDF2 (Gear order 2), L-stable
+  Ida           ///< SUNDIALS IDA: variable-order BDF with KLU
+};
+
+/// How the transient starts.
+enum class Start {
+  OperatingPoint,  ///< from the DC operating point at t = 0
+  Cold             ///< from zero state: discharged capacitors, no inductor current (switch-on)
+};
+
+struct TransientOptions {
+  double stop = 0.0;               ///< s, end time (required)
+  double maxStep = 0.0;            ///< s; 0 = automatic (a fraction of stop and of sine periods)
+  double initialStep = 0.0;        ///< s; 0 = automatic
+  double recordFrom = 0.0;         ///< s; points before this time are not stored
+  Method method = Method::Trapezoidal;
+  Start start = Start::OperatingPoint;
+  Tolerances tol;
+  int maxNewton = 12;              ///< Newton iterations per step before the step is cut
+  std::vector<std::string> record; ///< signals; empty = every node voltage and device current
+  /// Called after each accepted step with (time, stop); return false to cancel the run (the
+  /// analysis then throws Cancelled).
+  std::function<bool(double, double)> progress;
+  void validate() const;
+};
+
+/// Signal names: "v:node", "v:node1,node2", "<probe>:<device>" (e.g. "i:R1", "p:D1"),
+/// "x:<unknown>" (raw unknown, e.g. "x:T1.i2").
+
+/// DC operating point at t = 0. The result holds one time point.
+Result operatingPoint(Circuit& circuit, const OperatingPointOptions& options = {});
+/// Transient analysis from 0 to options.stop.
+Result transient(Circuit& circuit, const TransientOptions& options);
+
+const char* methodName(Method m);
+/// Parses "trap", "bdf2" or "ida"; throws InputError otherwise.
+Method parseMethod(const std::string& name);
+
+}  // namespace disc

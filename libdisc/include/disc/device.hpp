@@ -1,0 +1,152 @@
+// The device interface of the charge-oriented MNA engine.
+//
+// Every analysis solves F(x, t) = i(x, t) + d/dt q(x) = 0. A device adds its currents i and
+// charges (or fluxes, or heat) q into the rows of its unknowns, and, when asked, their analytic
+// Jacobians G = di/dx and C = dq/dx into matrix slots it reserved during set-up.
+#pragma once
+
+#include <memory>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace disc {
+
+class Circuit;
+
+/// Index of a circuit node as handed out by Circuit::node(); kGround is the reference node.
+using NodeId = int;
+inline constexpr NodeId kGround = -1;
+
+/// What an unknown measures; chooses its absolute tolerance and its unit in results.
+enum class UnknownKind { Voltage, Current, Temperature, State };
+
+/// An internal unknown a device asks for (an internal node, a branch current, a thermal node,
+/// a slow state variable). The full name is "<device>.<suffix>".
+struct UnknownSpec {
+  std::string suffix;
+  UnknownKind kind;
+};
+
+/// Reserves Jacobian entries during set-up. The engine writes the final value-array slot of each
+/// entry into the int the device passes, once the sparse pattern is compressed.
+class PatternBuilder {
+ public:
+  virtual ~PatternBuilder() = default;
+  /// Reserve entry (row, col) of G and C; either index may be the ground sentinel.
+  virtual void entry(int row, int col, int& slot) = 0;
+};
+
+/// The four Jacobian slots of a two-terminal branch between unknowns a and b.
+struct PairSlots {
+  int aa = 0, ab = 0, ba = 0, bb = 0;
+  void declare(PatternBuilder& pb, int a, int b) {
+    pb.entry(a, a, aa);
+    pb.entry(a, b, ab);
+    pb.entry(b, a, ba);
+    pb.entry(b, b, bb);
+  }
+  /// Adds the derivative d/dv of a branch quantity driven by v = x[a] - x[b].
+  void add(double* m, double g) const {
+    m[aa] += g;
+    m[ab] -= g;
+    m[ba] -= g;
+    m[bb] += g;
+  }
+};
+
+/// What a device may read while it is evaluated.
+struct EvalContext {
+  const double* x = nullptr;     ///< unknowns; x[ground] == 0
+  const double* xdot = nullptr;  ///< time derivatives of x (zero in DC analyses)
+  double time = 0.0;             ///< s
+  double sourceScale = 1.0;      ///< 0..1, scales independent sources (source stepping)
+  bool dc = false;               ///< true in operating-point analyses
+  /// Newton limiting memory, one cell per limitCells() of each device (nullptr: no limiting).
+  /// A NaN cell means "no previous iterate". A device that limits sets *limited = true.
+  double* limits = nullptr;
+  bool* limited = nullptr;
+};
+
+/// Where a device adds its contributions. Rows and slots of ground land in a discard cell.
+struct Stamp {
+  double* i = nullptr;  ///< residual currents, one per row
+  double* q = nullptr;  ///< charges / fluxes / heat, one per row
+  double* G = nullptr;  ///< di/dx values, one per reserved slot
+  double* C = nullptr;  ///< dq/dx values, one per reserved slot
+  bool jacobian = true;
+};
+
+/// Indices handed to a device at binding.
+struct Binding {
+  std::vector<int> terminals;  ///< one unknown index per terminal (ground sentinel for gnd)
+  std::vector<int> internals;  ///< one unknown index per UnknownSpec, in order
+  int ground = 0;              ///< the ground sentinel index
+  int limitCell = 0;           ///< first of this device's limitCells() in EvalContext::limits
+};
+
+/// Base of every circuit element.
+class Device {
+ public:
+  Device(std::string name, std::vector<NodeId> terminals);
+  virtual ~Device() = default;
+  Device(const Device&) = default;
+  Device& operator=(const Device&) = delete;
+
+  const std::string& name() const { return name_; }
+  const std::vector<NodeId>& terminals() const { return terminals_; }
+  /// Short word naming the kind of device ("resistor", "diode", ...), used in messages.
+  virtual std::string_view kind() const = 0;
+
+  /// Deep copy (parameters and terminals); the copy must be bound again before use.
+  virtual std::unique_ptr<Device> clone() const = 0;
+
+  /// Called first when a circuit is compiled: look up other devices, read the ambient.
+  virtual void prepare(const Circuit& /*circuit*/) {}
+  /// Internal unknowns this device needs; called once before bind().
+  virtual std::vector<UnknownSpec> internalUnknowns() const { return {}; }
+  /// Receives the unknown indices; devices keep what they need.
+  virtual void bind(const Binding& b) = 0;
+  /// Reserves the Jacobian entries the device will write.
+  virtual void declare(PatternBuilder& pb) = 0;
+  /// Adds i, q and (if s.jacobian) G, C at ctx.x.
+  virtual void evaluate(const EvalContext& ctx, Stamp& s) const = 0;
+
+  /// Terminal pairs that conduct at DC (for the floating-node check before simulation).
+  virtual std::vector<std::pair<int, int>> dcPaths() const;
+  /// True when the device forces a voltage between its first two terminals (loop check).
+  virtual bool definesVoltage() const { return false; }
+
+  /// Number of Newton limiting memory cells the device uses (junction voltages it limits).
+  /// A limiting device evaluates its law at the limited voltage and linearises from there, so
+  /// a wild Newton update of one junction does not damp the whole circuit.
+  virtual int limitCells() const { return 0; }
+  /// Largest time step that resolves this device's excitation (s), or +inf.
+  virtual double stepHint() const;
+  /// Times in (from, to] where the device's excitation has a corner or a jump.
+  virtual void breakpoints(double /*from*/, double /*to*/, std::vector<double>& /*out*/) const {}
+
+  /// Names of recordable quantities ("i", "p", ...); "i" is the current from the first terminal
+  /// through the device to the second, "p" the power the device absorbs.
+  virtual std::vector<std::string> probes() const { return {"i", "p"}; }
+  /// Unit symbol of probe k.
+  virtual std::string probeUnit(int k) const;
+  /// Value of probe k at the context's state.
+  virtual double probe(int k, const EvalContext& ctx) const = 0;
+
+ protected:
+  std::string name_;
+  std::vector<NodeId> terminals_;
+};
+
+/// CRTP helper giving a device its clone().
+template <class Derived>
+class DeviceBase : public Device {
+ public:
+  using Device::Device;
+  std::unique_ptr<Device> clone() const override {
+    return std::make_unique<Derived>(static_cast<const Derived&>(*this));
+  }
+};
+
+}  // namespace disc

@@ -1,0 +1,64 @@
+// Silicon junction diode: the modern reference part and the replacement for plate stacks.
+#pragma once
+
+#include "disc/device.hpp"
+
+namespace disc {
+
+/// Junction diode parameters (SI units). Defaults describe a general-purpose 1 A silicon
+/// rectifier (typical datasheet-class values, from memory).
+struct DiodeParams {
+  double is = 2.5e-9;         ///< saturation current at tnom, A
+  double n = 1.75;            ///< emission coefficient
+  double rs = 0.04;           ///< series resistance, ohm (0: no internal node)
+  double cj0 = 20e-12;        ///< zero-bias junction capacitance, F
+  double vj = 0.7;            ///< junction potential, V
+  double m = 0.4;             ///< grading coefficient
+  double fc = 0.5;            ///< forward-bias depletion-capacitance linearisation point
+  double tt = 0.0;            ///< transit time, s (reverse recovery; negligible at mains rates)
+  double bv = 1000.0;         ///< reverse breakdown voltage (positive), V; 0 disables
+  double ibv = 1e-6;          ///< current at breakdown voltage, A
+  double eg = 1.11;           ///< band gap for Is(T), eV
+  double xti = 3.0;           ///< saturation-current temperature exponent
+  double tnom = 300.15;       ///< parameter reference temperature, K
+  double temperature = 0.0;   ///< device temperature, K (0: circuit ambient)
+  void validate() const;
+};
+
+/// Diode from anode to cathode: Shockley law with emission coefficient, series resistance,
+/// depletion and diffusion charge, and exponential reverse breakdown.
+class Diode : public DeviceBase<Diode> {
+ public:
+  Diode(std::string name, NodeId anode, NodeId cathode, const DiodeParams& params = {});
+  std::string_view kind() const override { return "diode"; }
+  const DiodeParams& params() const { return p_; }
+  void setParams(const DiodeParams& params);
+  /// Takes the circuit's ambient as the device temperature when params().temperature is 0.
+  void prepare(const Circuit& c) override;
+
+  std::vector<UnknownSpec> internalUnknowns() const override;
+  void bind(const Binding& b) override;
+  void declare(PatternBuilder& pb) override;
+  void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  int limitCells() const override { return 1; }
+  std::vector<std::string> probes() const override { return {"i", "p", "vj"}; }
+  std::string probeUnit(int k) const override;
+  double probe(int k, const EvalContext& ctx) const override;
+
+  /// Static junction current and its derivative at junction voltage v (A, S).
+  void junction(double v, double& id, double& gd) const;
+  /// Junction charge and capacitance at v (C, F), diffusion charge included.
+  void charge(double v, double id, double gd, double& q, double& c) const;
+
+ private:
+  DiodeParams p_;
+  double ambient_ = 298.15;
+  // Derived at the device temperature.
+  double nvt_ = 0, isT_ = 0, vcrit_ = 0, vexp_ = 0, f1_ = 0, f2_ = 0, f3_ = 0;
+  int a_ = 0, k_ = 0, j_ = 0, cell_ = 0;  // anode, cathode, junction (internal anode) unknowns
+  PairSlots sj_;  // junction j-k
+  PairSlots ss_;  // series resistance a-j
+  void derive();
+};
+
+}  // namespace disc

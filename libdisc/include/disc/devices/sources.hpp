@@ -1,0 +1,72 @@
+// Independent sources: voltage (with optional series R and L: mains, battery) and current.
+#pragma once
+
+#include "disc/device.hpp"
+#include "disc/waveform.hpp"
+
+namespace disc {
+
+/// Voltage source V(t) between p (+) and n with series resistance R (ohm) and inductance L (H).
+/// With R and L it models a mains supply's source impedance or a battery's internal resistance.
+/// Its branch current (an unknown) is the current delivered out of p into the circuit; the "i"
+/// probe reports the opposite (p -> n through the source) like every other device.
+class VoltageSource : public DeviceBase<VoltageSource> {
+ public:
+  VoltageSource(std::string name, NodeId p, NodeId n, Waveform w, double resistance = 0.0,
+                double inductance = 0.0);
+  std::string_view kind() const override { return "voltage source"; }
+  const Waveform& waveform() const { return w_; }
+  void setWaveform(Waveform w) { w_ = std::move(w); }
+  double resistance() const { return r_; }
+  double inductance() const { return l_; }
+  void setImpedance(double ohm, double henry);
+  int branch() const { return br_; }
+
+  std::vector<UnknownSpec> internalUnknowns() const override;
+  void bind(const Binding& b) override;
+  void declare(PatternBuilder& pb) override;
+  void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  bool definesVoltage() const override { return r_ == 0.0 && l_ == 0.0; }
+  void breakpoints(double from, double to, std::vector<double>& out) const override {
+    w_.breakpoints(from, to, out);
+  }
+  double stepHint() const override { return w_.naturalStep(); }
+  double probe(int k, const EvalContext& ctx) const override;
+
+ private:
+  Waveform w_;
+  double r_, l_;
+  int p_ = 0, n_ = 0, br_ = 0;
+  int spb_ = 0, snb_ = 0, sbp_ = 0, sbn_ = 0, sbb_ = 0;
+};
+
+/// A battery: EMF (V) behind its internal resistance (ohm).
+VoltageSource makeBattery(std::string name, NodeId p, NodeId n, double emf, double resistance);
+/// Mains: rms voltage (V) at frequency (Hz), switched on at `on` (s), with source R and L.
+VoltageSource makeMains(std::string name, NodeId p, NodeId n, double rms, double frequency,
+                        double resistance, double inductance, double on = 0.0);
+
+/// Current source I(t) flowing from p through the source to n.
+class CurrentSource : public DeviceBase<CurrentSource> {
+ public:
+  CurrentSource(std::string name, NodeId p, NodeId n, Waveform w);
+  std::string_view kind() const override { return "current source"; }
+  const Waveform& waveform() const { return w_; }
+  void setWaveform(Waveform w) { w_ = std::move(w); }
+
+  void bind(const Binding& b) override;
+  void declare(PatternBuilder&) override {}
+  void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  std::vector<std::pair<int, int>> dcPaths() const override { return {}; }
+  void breakpoints(double from, double to, std::vector<double>& out) const override {
+    w_.breakpoints(from, to, out);
+  }
+  double stepHint() const override { return w_.naturalStep(); }
+  double probe(int k, const EvalContext& ctx) const override;
+
+ private:
+  Waveform w_;
+  int p_ = 0, n_ = 0;
+};
+
+}  // namespace disc

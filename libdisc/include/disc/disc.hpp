@@ -1,0 +1,21 @@
+// Umbrella header: everything a program using libdisc needs.
+#pragma once
+
+#include "disc/analysis.hpp"
+#include "disc/circuit.hpp"
+#include "disc/constants.hpp"
+#include "disc/device.hpp"
+#include "disc/devices/capacitor.hpp"
+#include "disc/devices/diode.hpp"
+#include "disc/devices/inductor.hpp"
+#include "disc/devices/resistor.hpp"
+#include "disc/devices/sources.hpp"
+#include "disc/devices/switch.hpp"
+#include "disc/devices/transformer.hpp"
+#include "disc/diagnostics.hpp"
+#include "disc/error.hpp"
+#include "disc/measures.hpp"
+#include "disc/reference_circuits.hpp"
+#include "disc/result.hpp"
+#include "disc/version.hpp"
+#include "disc/waveform.hpp"

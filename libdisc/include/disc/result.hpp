@@ -1,0 +1,52 @@
+// Results of an analysis: time points and recorded signals as contiguous columns.
+#pragma once
+
+#include <string>
+#include <string_view>
+#include <unordered_map>
+#include <vector>
+
+namespace disc {
+
+/// Work counters of one analysis run.
+struct RunStats {
+  std::string method;          ///< "operating-point", "trap", "bdf2" or "ida"
+  long acceptedSteps = 0;
+  long rejectedSteps = 0;      ///< truncation-error and Newton-failure rejections together
+  long newtonIterations = 0;
+  long factorizations = 0;
+  long evaluations = 0;        ///< device-evaluation sweeps
+  int unknowns = 0;
+  double wallSeconds = 0.0;
+};
+
+/// Columnar results. Each signal is one contiguous std::vector<double> as long as time().
+class Result {
+ public:
+  const std::vector<double>& time() const { return time_; }
+  const std::vector<std::string>& signals() const { return names_; }
+  bool has(std::string_view signal) const;
+  /// The column of a signal; throws InputError naming the available signals if absent.
+  const std::vector<double>& operator[](std::string_view signal) const;
+  /// Unit symbol of a signal ("V", "A", "W", "K", ...).
+  const std::string& unit(std::string_view signal) const;
+  const RunStats& stats() const { return stats_; }
+
+  // Filled by the engine.
+  void addSignal(std::string name, std::string unit);
+  void reserve(std::size_t points);
+  std::vector<double>& timeColumn() { return time_; }
+  std::vector<double>& column(std::size_t k) { return columns_[k]; }
+  RunStats& stats() { return stats_; }
+
+ private:
+  std::size_t indexOf(std::string_view signal) const;
+  std::vector<double> time_;
+  std::vector<std::string> names_;
+  std::vector<std::string> units_;
+  std::vector<std::vector<double>> columns_;
+  std::unordered_map<std::string, std::size_t> index_;
+  RunStats stats_;
+};
+
+}  // namespace disc

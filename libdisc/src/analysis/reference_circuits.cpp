@@ -1,0 +1,120 @@
+// Reference circuits.
+#include "disc/reference_circuits.hpp"
+
+#include <fmt/format.h>
+
+#include "disc/devices/capacitor.hpp"
+#include "disc/devices/resistor.hpp"
+#include "disc/devices/sources.hpp"
+#include "disc/error.hpp"
+
+namespace disc::reference {
+
+Circuit bridgeSupply(const BridgeSupply& s) {
+  Circuit c;
+  const NodeId line = c.node("line"), sa = c.node("sa"), sb = c.node("sb"), out = c.node("out");
+  c.add(std::make_unique<VoltageSource>(
+      makeMains("MAINS", line, kGround, s.mainsRms, s.frequency, s.mainsResistance, 0.0)));
+  c.emplace<Transformer>("T1", line, kGround, sa, sb, s.transformer);
+  c.emplace<Diode>("D1", sa, out, s.diode);
+  c.emplace<Diode>("D2", sb, out, s.diode);
+  c.emplace<Diode>("D3", kGround, sa, s.diode);
+  c.emplace<Diode>("D4", kGround, sb, s.diode);
+  c.emplace<Capacitor>("C1", out, kGround, s.reservoir);
+  c.emplace<Resistor>("RL", out, kGround, s.load);
+  return c;
+}
+
+DiodeParams HalfWaveRc::stiffDiode() {
+  DiodeParams d;
+  d.is = 1e-12;
+  d.n = 0.05;
+  d.rs = 0.0;
+  d.cj0 = 0.0;
+  d.tt = 0.0;
+  d.bv = 0.0;
+  return d;
+}
+
+Circuit halfWaveRc(const HalfWaveRc& s) {
+  Circuit c;
+  const NodeId in = c.node("in"), out = c.node("out");
+  c.emplace<VoltageSource>("V1", in, kGround, Waveform::sineRms(s.rms, s.frequency));
+  c.emplace<Diode>("D1", in, out, s.diode);
+  c.emplace<Capacitor>("C1", out, kGround, s.capacitance);
+  c.emplace<Resistor>("RL", out, kGround, s.load);
+  return c;
+}
+
+Circuit shockleyBridge(const ShockleyBridge& s) {
+  Circuit c;
+  const NodeId src = c.node("s"), a = c.node("a"), b = c.node("b"), out = c.node("out");
+  DiodeParams d;
+  d.is = s.is;
+  d.n = s.n;
+  d.rs = 0.0;
+  d.cj0 = 0.0;
+  d.tt = 0.0;
+  d.bv = 0.0;
+  d.temperature = 300.0;
+  c.emplace<VoltageSource>("VS", src, b, Waveform::sine(s.amplitude, s.frequency));
+  c.emplace<Resistor>("RW", src, a, s.winding);
+  c.emplace<Diode>("D1", a, out, d);
+  c.emplace<Diode>("D2", b, out, d);
+  c.emplace<Diode>("D3", kGround, a, d);
+  c.emplace<Diode>("D4", kGround, b, d);
+  c.emplace<Capacitor>("CA", a, kGround, s.inputCapacitance);
+  c.emplace<Capacitor>("CB", b, kGround, s.inputCapacitance);
+  c.emplace<Capacitor>("C1", out, kGround, s.reservoir);
+  c.emplace<Resistor>("RL", out, kGround, s.load);
+  return c;
+}
+
+Circuit diodeLadder(int count) {
+  if (count < 1) throw InputError("a diode ladder needs at least one diode");
+  Circuit c;
+  NodeId prev = c.node("n0");
+  c.emplace<VoltageSource>("V1", prev, kGround, Waveform::sine(1.5 * count, 50.0));
+  DiodeParams d;
+  d.rs = 0.05;
+  for (int k = 1; k <= count; ++k) {
+    const NodeId next = c.node(fmt::format("n{}", k));
+    c.emplace<Diode>(fmt::format("D{}", k), prev, next, d);
+    prev = next;
+  }
+  c.emplace<Resistor>("RL", prev, kGround, 1.0 * count);
+  return c;
+}
+
+std::vector<std::string> names() { return {"bridge", "half-wave", "shockley-bridge", "ladder-100"}; }
+
+std::string describe(const std::string& name) {
+  if (name == "bridge") return "230 V 50 Hz mains, transformer, silicon bridge, 2200 uF, 18 ohm load";
+  if (name == "half-wave") return "120 V 60 Hz, near-ideal diode, 100 uF parallel 500 ohm";
+  if (name == "shockley-bridge") return "20 V 50 Hz sine, Shockley-diode bridge, 1000 uF, 50 ohm";
+  if (name == "ladder-100") return "100 silicon diodes in series into a resistor, 50 Hz";
+  throw InputError(fmt::format("no reference circuit named '{}'", name));
+}
+
+Circuit build(const std::string& name) {
+  if (name == "bridge") return bridgeSupply();
+  if (name == "half-wave") return halfWaveRc();
+  if (name == "shockley-bridge") return shockleyBridge();
+  if (name == "ladder-100") return diodeLadder(100);
+  throw InputError(fmt::format("no reference circuit named '{}'; try one of: bridge, half-wave, "
+                               "shockley-bridge, ladder-100",
+                               name));
+}
+
+std::string outputNode(const std::string& name) {
+  if (name == "ladder-100") return "n100";
+  describe(name);
+  return "out";
+}
+
+double mainsFrequency(const std::string& name) {
+  describe(name);
+  return name == "half-wave" ? 60.0 : 50.0;
+}
+
+}  // namespace disc::reference

@@ -1,0 +1,99 @@
+// Source waveforms.
+#include "disc/waveform.hpp"
+
+#include <cmath>
+#include <fmt/format.h>
+#include <numbers>
+
+#include "disc/error.hpp"
+
+namespace disc {
+
+Waveform Waveform::dc(double value) {
+  if (!std::isfinite(value)) throw InputError("DC value must be finite");
+  Waveform w;
+  w.shape_ = Shape::Dc;
+  w.offset_ = value;
+  return w;
+}
+
+Waveform Waveform::sine(double amplitude, double frequency, double phase, double offset) {
+  if (!std::isfinite(amplitude) || !std::isfinite(phase) || !std::isfinite(offset))
+    throw InputError("sine amplitude, phase and offset must be finite");
+  if (!(frequency > 0.0) || !std::isfinite(frequency))
+    throw InputError(fmt::format("sine frequency must be positive, got {} Hz", frequency));
+  Waveform w;
+  w.shape_ = Shape::Sine;
+  w.amplitude_ = amplitude;
+  w.frequency_ = frequency;
+  w.phase_ = phase;
+  w.offset_ = offset;
+  return w;
+}
+
+Waveform Waveform::sineRms(double rms, double frequency, double phase, double offset) {
+  return sine(std::numbers::sqrt2 * rms, frequency, phase, offset);
+}
+
+Waveform Waveform::points(std::vector<std::pair<double, double>> pts) {
+  if (pts.empty()) throw InputError("a points waveform needs at least one (time, value) pair");
+  for (std::size_t k = 0; k < pts.size(); ++k) {
+    if (!std::isfinite(pts[k].first) || !std::isfinite(pts[k].second))
+      throw InputError(fmt::format("points waveform: pair {} is not finite", k + 1));
+    if (k > 0 && !(pts[k].first > pts[k - 1].first))
+      throw InputError(fmt::format(
+          "points waveform: times must increase, but pair {} has t = {} s after t = {} s", k + 1,
+          pts[k].first, pts[k - 1].first));
+  }
+  Waveform w;
+  w.shape_ = Shape::Points;
+  w.points_ = std::move(pts);
+  return w;
+}
+
+Waveform& Waveform::gate(double on, double off) {
+  if (!(off > on)) throw InputError("switch-off time must come after switch-on time");
+  on_ = on;
+  off_ = off;
+  return *this;
+}
+
+double Waveform::value(double t) const {
+  if (t < on_ || t >= off_) return 0.0;
+  switch (shape_) {
+    case Shape::Dc:
+      return offset_;
+    case Shape::Sine: {
+      // A gated sine starts at its own zero phase when switched on.
+      const double t0 = std::isfinite(on_) ? on_ : 0.0;
+      return offset_ + amplitude_ * std::sin(2.0 * std::numbers::pi * frequency_ * (t - t0) + phase_);
+    }
+    case Shape::Points: {
+      if (t <= points_.front().first) return points_.front().second;
+      if (t >= points_.back().first) return points_.back().second;
+      std::size_t hi = 1;
+      while (points_[hi].first < t) ++hi;
+      const auto& [t0, v0] = points_[hi - 1];
+      const auto& [t1, v1] = points_[hi];
+      return v0 + (v1 - v0) * (t - t0) / (t1 - t0);
+    }
+  }
+  return 0.0;
+}
+
+void Waveform::breakpoints(double from, double to, std::vector<double>& out) const {
+  auto add = [&](double t) {
+    if (t > from && t <= to) out.push_back(t);
+  };
+  add(on_);
+  add(off_);
+  if (shape_ == Shape::Points)
+    for (const auto& p : points_) add(p.first);
+}
+
+double Waveform::naturalStep() const {
+  if (shape_ == Shape::Sine) return 1.0 / (20.0 * frequency_);
+  return std::numeric_limits<double>::infinity();
+}
+
+}  // namespace disc

@@ -1,0 +1,242 @@
+// Trapezoidal rule and variable-step BDF2 on the charge-oriented system, with local truncation
+// error control on the charges, breakpoints and step rejection.
+//
+// Each step solves i(x) + qdot(x) = 0 with qdot = a0 q + h, where (a0, h) come from the method:
+//   backward Euler (restarts): a0 = 1/dt,            h = -q_n / dt
+//   trapezoidal:               a0 = 2/dt,            h = -2 q_n / dt - qdot_n
+//   BDF2, w = dt/dt_prev:      a0 = (1+2w)/(dt(1+w)), h = -(1+w)/dt q_n + w^2/(dt(1+w)) q_{n-1}
+// The truncation error is estimated from divided differences of q over the last points:
+// trapezoidal dt^3 q'''/12, BDF2 (2/9) dt^3 q''' (constant-step error constants), and dt^2 q''/2
+// when fewer points exist (right after a restart).
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <fmt/format.h>
+
+#include "disc/error.hpp"
+#include "newton.hpp"
+#include "transient_common.hpp"
+
+namespace disc::detail {
+namespace {
+
+enum class Formula { Euler, Trap, Bdf2 };
+
+struct Coefficients {
+  double a0 = 0, a1 = 0, a2 = 0;  // qdot_new = a0 q_new + a1 q_n + a2 q_{n-1} (+ b qdot_n)
+  double b = 0;
+};
+
+Coefficients coefficients(Formula f, double h, double hPrev) {
+  Coefficients c;
+  switch (f) {
+    case Formula::Euler:
+      c.a0 = 1.0 / h;
+      c.a1 = -1.0 / h;
+      break;
+    case Formula::Trap:
+      c.a0 = 2.0 / h;
+      c.a1 = -2.0 / h;
+      c.b = -1.0;
+      break;
+    case Formula::Bdf2: {
+      const double w = h / hPrev;
+      c.a0 = (1.0 + 2.0 * w) / (h * (1.0 + w));
+      c.a1 = -(1.0 + w) / h;
+      c.a2 = w * w / (h * (1.0 + w));
+      break;
+    }
+  }
+  return c;
+}
+
+/// The last few accepted (t, q) points, newest first.
+struct History {
+  std::array<double, 3> t{};
+  std::array<std::vector<double>, 3> q;
+  int count = 0;
+  void reset(double time, const std::vector<double>& qn) {
+    count = 1;
+    t[0] = time;
+    q[0] = qn;
+  }
+  void push(double time, const std::vector<double>& qn) {
+    std::rotate(t.rbegin(), t.rbegin() + 1, t.rend());
+    std::rotate(q.rbegin(), q.rbegin() + 1, q.rend());
+    t[0] = time;
+    q[0] = qn;
+    count = std::min(count + 1, 3);
+  }
+};
+
+}  // namespace
+
+void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
+                       std::vector<double>& x, Recorder& rec, RunStats& stats) {
+  const int n = sys.size();
+  const std::size_t N = static_cast<std::size_t>(n) + 1;
+  const auto abstol = sys.absTolerances(o.tol);
+  const double hmax = resolveMaxStep(sys, o);
+  const double hmin = std::max(1e-13 * o.stop, 1e-18);
+  std::vector<double> breaks = sys.breakpoints(0.0, o.stop);
+  if (breaks.empty() || breaks.back() < o.stop) breaks.push_back(o.stop);
+
+  NewtonSettings ns;
+  ns.maxIterations = o.maxNewton;
+  ns.reltol = o.tol.reltol;
+  ns.abstol = &abstol;
+
+  std::vector<double> xdot(N, 0.0), xPrev = x, xNew(N, 0.0), hist(N, 0.0);
+  std::vector<double> qn(N, 0.0), qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);
+  EvalContext ctx;
+  ctx.x = x.data();
+  ctx.xdot = xdot.data();
+  ctx.time = 0.0;
+  sys.evaluate(ctx, true);
+  ++stats.evaluations;
+  qn = sys.q;
+  if (o.recordFrom <= 0.0) rec.record(ctx);
+
+  History history;
+  history.reset(0.0, qn);
+  double t = 0.0, hPrev = 0.0;
+  double h = o.initialStep > 0.0 ? o.initialStep : std::min(hmax, o.stop) * 1e-3;
+  bool restart = true;
+  std::size_t nextBreak = 0;
+
+  while (t < o.stop) {
+    while (nextBreak < breaks.size() && breaks[nextBreak] <= t * (1.0 + 1e-14)) ++nextBreak;
+    const double tb = nextBreak < breaks.size() ? breaks[nextBreak] : o.stop;
+    h = std::min(h, hmax);
+    bool hitsBreak = false;
+    // Land on breakpoints exactly, and stretch a step rather than leave a sliver before one.
+    if (t + 1.1 * h >= tb) {
+      h = tb - t;
+      hitsBreak = true;
+    }
+    const Formula f = restart ? Formula::Euler
+                              : (o.method == Method::Bdf2 && history.count >= 2 ? Formula::Bdf2
+                                 : o.method == Method::Bdf2                      ? Formula::Euler
+                                                                                 : Formula::Trap);
+    const Coefficients c = coefficients(f, h, hPrev);
+    for (std::size_t k = 0; k < N; ++k) {
+      hist[k] = c.a1 * qn[k] + c.b * qdot[k];
+      if (c.a2 != 0.0) hist[k] += c.a2 * history.q[1][k];
+    }
+    xNew = x;
+    if (!restart && hPrev > 0.0)
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        xNew[uk] += (x[uk] - xPrev[uk]) * (h / hPrev);
+      }
+    ctx.time = t + h;
+    const NewtonOutcome out = solveNewton(sys, ls, xNew, ctx, c.a0, hist.data(), ns, stats);
+    if (!out.converged) {
+      ++stats.rejectedSteps;
+      h /= 8.0;
+      if (h < hmin)
+        throw TimeStepError(
+            fmt::format("time step too small at t = {:.9g} s: Newton did not converge even with "
+                        "a {:.3g} s step; the worst equation is {} (residual {:.3g}). Look for a "
+                        "device driven far outside its range or an unrealistic ideal element",
+                        t, h * 8.0, sys.describe(out.worstRow), out.worstResidual),
+            t, out.worstRow >= 0 ? sys.unknownName(out.worstRow) : "");
+      continue;
+    }
+    qNew = sys.q;
+
+    // Truncation error on the charges, from divided differences including the new point.
+    double errNorm = 0.0;
+    int worst = -1;
+    int order = 0;
+    if (history.count >= 2) {
+      const double t0 = t + h, t1 = history.t[0], t2 = history.t[1];
+      const bool third = history.count >= 3;
+      const double t3 = third ? history.t[2] : 0.0;
+      const double lteScale = !third ? h * h
+                              : f == Formula::Trap ? 0.5 * h * h * h
+                              : f == Formula::Bdf2 ? (4.0 / 3.0) * h * h * h
+                                                   : h * h;
+      order = third && f != Formula::Euler ? 2 : 1;
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        const double q0 = qNew[uk], q1 = history.q[0][uk], q2 = history.q[1][uk];
+        const double d01 = (q0 - q1) / (t0 - t1), d12 = (q1 - q2) / (t1 - t2);
+        const double dd2 = (d01 - d12) / (t0 - t2);
+        double dd;
+        if (third && order == 2) {
+          const double q3 = history.q[2][uk];
+          const double d23 = (q2 - q3) / (t2 - t3);
+          const double dd2b = (d12 - d23) / (t1 - t3);
+          dd = (dd2 - dd2b) / (t0 - t3);
+        } else {
+          dd = dd2;
+        }
+        const double err = std::abs(lteScale * dd);
+        if (err == 0.0) continue;
+        const double ckk = std::abs(sys.C[static_cast<std::size_t>(sys.diagonalSlot(k))]);
+        // Relative to the largest charge the row has held, so a charge passing through zero or
+        // a junction's small charge does not demand steps far below what its effect needs.
+        qScale[uk] = std::max(qScale[uk], std::abs(q0));
+        const double tol = o.tol.reltol * qScale[uk] + abstol[uk] * ckk;
+        const double ratio = tol > 0.0 ? err / tol : 1e300;
+        if (ratio > errNorm) {
+          errNorm = ratio;
+          worst = k;
+        }
+      }
+    }
+    const double expo = order == 2 ? 1.0 / 3.0 : 0.5;
+    if (errNorm > 1.0) {
+      ++stats.rejectedSteps;
+      h *= std::clamp(0.9 * std::pow(errNorm, -expo), 0.1, 0.9);
+      // Retry with one backward-Euler step: it damps the stiff modes (junction charges behind
+      // small resistances) that the trapezoidal rule would carry on ringing undamped.
+      if (f == Formula::Trap) restart = true;
+      if (h < hmin)
+        throw TimeStepError(
+            fmt::format("time step too small at t = {:.9g} s: the truncation error stays above "
+                        "tolerance at {}; loosen reltol or check for a discontinuity the "
+                        "circuit cannot follow",
+                        t, sys.describe(worst)),
+            t, worst >= 0 ? sys.unknownName(worst) : "");
+      continue;
+    }
+
+    // Accept.
+    for (std::size_t k = 0; k < N; ++k) {
+      qdot[k] = c.a0 * qNew[k] + hist[k];
+      double xd = c.a0 * xNew[k] + c.a1 * x[k] + c.b * xdot[k];
+      if (c.a2 != 0.0) xd += c.a2 * xPrev[k];
+      xdotNew[k] = xd;
+    }
+    xPrev.swap(x);
+    x.swap(xNew);
+    xdot.swap(xdotNew);
+    x[static_cast<std::size_t>(n)] = 0.0;
+    xdot[static_cast<std::size_t>(n)] = 0.0;
+    qn = qNew;
+    hPrev = h;
+    t = hitsBreak ? tb : t + h;
+    history.push(t, qn);
+    ++stats.acceptedSteps;
+    ctx.x = x.data();
+    ctx.xdot = xdot.data();
+    ctx.time = t;
+    if (t >= o.recordFrom) rec.record(ctx);
+    reportProgress(o, t);
+
+    const double grow = errNorm > 0.0 ? 0.9 * std::pow(errNorm, -expo) : 2.0;
+    h *= std::clamp(grow, 0.3, 2.0);
+    restart = false;
+    if (hitsBreak && t < o.stop) {
+      // A corner in the excitation: restart at first order from the breakpoint.
+      restart = true;
+      history.reset(t, qn);
+      std::fill(qdot.begin(), qdot.end(), 0.0);
+      h = std::min(h, std::max(1e-3 * hmax, 100.0 * hmin));
+    }
+  }
+}
+
+}  // namespace disc::detail

@@ -1,0 +1,86 @@
+// Newton-Raphson with device step limiting.
+#include "newton.hpp"
+
+#include <cmath>
+#include <limits>
+
+namespace disc::detail {
+namespace {
+
+void residual(const System& sys, const std::vector<double>& x, double a0, const double* history,
+              double gmin, std::vector<double>& f) {
+  const int n = sys.size();
+  for (int k = 0; k < n; ++k) {
+    double v = sys.i[static_cast<std::size_t>(k)];
+    if (a0 != 0.0) v += a0 * sys.q[static_cast<std::size_t>(k)];
+    if (history) v += history[k];
+    f[static_cast<std::size_t>(k)] = v;
+  }
+  for (int k = 0; k < sys.nodeCount(); ++k)
+    f[static_cast<std::size_t>(k)] += gmin * x[static_cast<std::size_t>(k)];
+}
+
+}  // namespace
+
+NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x, EvalContext ctx,
+                          double a0, const double* history, const NewtonSettings& settings,
+                          RunStats& stats) {
+  const int n = sys.size();
+  const auto& abstol = *settings.abstol;
+  std::vector<double> f(static_cast<std::size_t>(n) + 1, 0.0);
+  std::vector<double> dx(static_cast<std::size_t>(n) + 1, 0.0);
+  NewtonOutcome out;
+  ctx.x = x.data();
+  std::vector<double> limits(static_cast<std::size_t>(sys.limitCells()) + 1,
+                             std::numeric_limits<double>::quiet_NaN());
+  bool limited = false;
+  ctx.limits = limits.data();
+  ctx.limited = &limited;
+  for (int it = 0; it < settings.maxIterations; ++it) {
+    limited = false;
+    sys.evaluate(ctx, true);
+    ++stats.evaluations;
+    residual(sys, x, a0, history, settings.gmin, f);
+    sys.assemble(a0, settings.gmin);
+    ls.factor(sys);
+    ++stats.factorizations;
+    for (int k = 0; k < n; ++k) dx[static_cast<std::size_t>(k)] = -f[static_cast<std::size_t>(k)];
+    ls.solve(dx.data(), n);
+    dx[static_cast<std::size_t>(n)] = 0.0;
+    ++stats.newtonIterations;
+    out.iterations = it + 1;
+    bool finite = true;
+    for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
+    if (!finite) break;
+    bool small = !limited;
+    for (int k = 0; k < n; ++k) {
+      const auto uk = static_cast<std::size_t>(k);
+      const double step = dx[uk];
+      const double xn = x[uk] + step;
+      if (std::abs(step) > settings.reltol * std::max(std::abs(xn), std::abs(x[uk])) + abstol[uk])
+        small = false;
+      x[uk] = xn;
+    }
+    if (small) {
+      ctx.limits = nullptr;
+      sys.evaluate(ctx, false);
+      ++stats.evaluations;
+      out.converged = true;
+      return out;
+    }
+  }
+  // Name the equation furthest from balance at the last iterate.
+  ctx.limits = nullptr;
+  sys.evaluate(ctx, false);
+  residual(sys, x, a0, history, settings.gmin, f);
+  for (int k = 0; k < n; ++k) {
+    const double r = std::abs(f[static_cast<std::size_t>(k)]);
+    if (out.worstRow < 0 || !(r <= out.worstResidual)) {
+      out.worstRow = k;
+      out.worstResidual = r;
+    }
+  }
+  return out;
+}
+
+}  // namespace disc::detail

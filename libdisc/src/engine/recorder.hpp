@@ -1,0 +1,32 @@
+// Compiles signal names against a system and appends their values to a Result (private).
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "disc/result.hpp"
+#include "system.hpp"
+
+namespace disc::detail {
+
+class Recorder {
+ public:
+  /// Throws InputError for an unknown node, device or probe, naming what exists.
+  Recorder(const System& sys, std::vector<std::string> specs, Result& result);
+  /// Appends one time point.
+  void record(const EvalContext& ctx);
+
+ private:
+  struct Signal {
+    int a = -1, b = -1;              // node difference x[a] - x[b], or raw unknown (a)
+    const Device* device = nullptr;  // probe source
+    int probe = -1;
+  };
+  Result& result_;
+  std::vector<Signal> signals_;
+};
+
+/// The default signal set: every node voltage and every device current.
+std::vector<std::string> defaultSignals(const System& sys);
+
+}  // namespace disc::detail

@@ -1,0 +1,41 @@
+// Result storage.
+#include "disc/result.hpp"
+
+#include <fmt/format.h>
+
+#include "disc/error.hpp"
+
+namespace disc {
+
+bool Result::has(std::string_view signal) const { return index_.count(std::string(signal)) > 0; }
+
+std::size_t Result::indexOf(std::string_view signal) const {
+  auto it = index_.find(std::string(signal));
+  if (it == index_.end()) {
+    std::string list;
+    for (const auto& n : names_) list += (list.empty() ? "" : ", ") + n;
+    throw InputError(fmt::format("signal '{}' was not recorded; recorded: {}", signal, list));
+  }
+  return it->second;
+}
+
+const std::vector<double>& Result::operator[](std::string_view signal) const {
+  return columns_[indexOf(signal)];
+}
+
+const std::string& Result::unit(std::string_view signal) const { return units_[indexOf(signal)]; }
+
+void Result::addSignal(std::string name, std::string unit) {
+  if (index_.count(name)) return;
+  index_.emplace(name, names_.size());
+  names_.push_back(std::move(name));
+  units_.push_back(std::move(unit));
+  columns_.emplace_back();
+}
+
+void Result::reserve(std::size_t points) {
+  time_.reserve(points);
+  for (auto& c : columns_) c.reserve(points);
+}
+
+}  // namespace disc

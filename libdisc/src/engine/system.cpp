@@ -1,0 +1,213 @@
+// Assembly of the MNA system: unknown allocation, sparse pattern, evaluation sweeps.
+#include "system.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <fmt/format.h>
+#include <limits>
+#include <numeric>
+
+#include "disc/error.hpp"
+
+namespace disc::detail {
+namespace {
+
+/// Collects (row, col, &slot) requests, then writes the compressed-pattern slot into each.
+class Collector : public PatternBuilder {
+ public:
+  explicit Collector(int ground) : ground_(ground) {}
+  void entry(int row, int col, int& slot) override { requests_.push_back({row, col, &slot}); }
+
+  Eigen::SparseMatrix<double> compress(int n) {
+    std::vector<Eigen::Triplet<double>> triplets;
+    triplets.reserve(requests_.size());
+    for (const auto& r : requests_)
+      if (r.row != ground_ && r.col != ground_) triplets.emplace_back(r.row, r.col, 1.0);
+    Eigen::SparseMatrix<double> m(n, n);
+    m.setFromTriplets(triplets.begin(), triplets.end());
+    m.makeCompressed();
+    const int discard = static_cast<int>(m.nonZeros());
+    for (const auto& r : requests_) {
+      if (r.row == ground_ || r.col == ground_) {
+        *r.slot = discard;
+        continue;
+      }
+      const int* inner = m.innerIndexPtr();
+      const int begin = m.outerIndexPtr()[r.col], end = m.outerIndexPtr()[r.col + 1];
+      *r.slot = static_cast<int>(std::lower_bound(inner + begin, inner + end, r.row) - inner);
+    }
+    return m;
+  }
+
+ private:
+  struct Request {
+    int row, col;
+    int* slot;
+  };
+  int ground_;
+  std::vector<Request> requests_;
+};
+
+struct UnionFind {
+  std::vector<int> parent;
+  explicit UnionFind(int n) : parent(static_cast<std::size_t>(n)) {
+    std::iota(parent.begin(), parent.end(), 0);
+  }
+  int find(int a) {
+    while (parent[a] != a) a = parent[a] = parent[parent[a]];
+    return a;
+  }
+  bool unite(int a, int b) {
+    a = find(a);
+    b = find(b);
+    if (a == b) return false;
+    parent[a] = b;
+    return true;
+  }
+};
+
+}  // namespace
+
+System::System(Circuit& circuit) : circuit_(circuit) {
+  nodes_ = circuit.nodeCount();
+  for (int k = 0; k < nodes_; ++k) {
+    names_.push_back(circuit.nodeName(k));
+    kinds_.push_back(UnknownKind::Voltage);
+  }
+  for (const auto& d : circuit.devices()) {
+    devices_.push_back(d.get());
+    d->prepare(circuit);
+  }
+  // Internal unknowns after the nodes, device by device.
+  std::vector<std::vector<int>> internals(devices_.size());
+  for (std::size_t k = 0; k < devices_.size(); ++k) {
+    for (const auto& spec : devices_[k]->internalUnknowns()) {
+      internals[k].push_back(static_cast<int>(names_.size()));
+      names_.push_back(devices_[k]->name() + "." + spec.suffix);
+      kinds_.push_back(spec.kind);
+    }
+  }
+  n_ = static_cast<int>(names_.size());
+  if (n_ == 0) throw InputError("the circuit has no nodes or unknowns to solve for");
+  terminalIndex_.resize(devices_.size());
+  for (std::size_t k = 0; k < devices_.size(); ++k) {
+    Binding b;
+    b.ground = n_;
+    for (NodeId t : devices_[k]->terminals()) b.terminals.push_back(t == kGround ? n_ : t);
+    b.internals = internals[k];
+    b.limitCell = limitCells_;
+    limitCells_ += devices_[k]->limitCells();
+    terminalIndex_[k] = b.terminals;
+    devices_[k]->bind(b);
+  }
+  Collector collector(n_);
+  diag_.assign(static_cast<std::size_t>(n_), 0);
+  for (int k = 0; k < n_; ++k) collector.entry(k, k, diag_[static_cast<std::size_t>(k)]);
+  for (Device* d : devices_) d->declare(collector);
+  jac_ = collector.compress(n_);
+  const std::size_t slots = static_cast<std::size_t>(jac_.nonZeros()) + 1;
+  G.assign(slots, 0.0);
+  C.assign(slots, 0.0);
+  i.assign(static_cast<std::size_t>(n_) + 1, 0.0);
+  q.assign(static_cast<std::size_t>(n_) + 1, 0.0);
+}
+
+std::string System::describe(int k) const {
+  if (k < 0 || k >= n_) return "(none)";
+  if (k < nodes_) return fmt::format("node '{}'", names_[static_cast<std::size_t>(k)]);
+  return fmt::format("unknown '{}'", names_[static_cast<std::size_t>(k)]);
+}
+
+std::vector<double> System::absTolerances(const Tolerances& tol) const {
+  std::vector<double> a(static_cast<std::size_t>(n_) + 1, 0.0);
+  for (int k = 0; k < n_; ++k) {
+    switch (kinds_[static_cast<std::size_t>(k)]) {
+      case UnknownKind::Voltage:
+        a[static_cast<std::size_t>(k)] = tol.voltage;
+        break;
+      case UnknownKind::Current:
+        a[static_cast<std::size_t>(k)] = tol.current;
+        break;
+      case UnknownKind::Temperature:
+        a[static_cast<std::size_t>(k)] = tol.temperature;
+        break;
+      case UnknownKind::State:
+        a[static_cast<std::size_t>(k)] = tol.state;
+        break;
+    }
+  }
+  return a;
+}
+
+void System::evaluate(const EvalContext& ctx, bool jacobian) {
+  std::fill(i.begin(), i.end(), 0.0);
+  std::fill(q.begin(), q.end(), 0.0);
+  if (jacobian) {
+    std::fill(G.begin(), G.end(), 0.0);
+    std::fill(C.begin(), C.end(), 0.0);
+  }
+  Stamp s{i.data(), q.data(), G.data(), C.data(), jacobian};
+  for (const Device* d : devices_) d->evaluate(ctx, s);
+}
+
+void System::assemble(double a0, double gmin) {
+  double* v = jac_.valuePtr();
+  const int nz = nnz();
+  if (a0 == 0.0) {
+    std::copy(G.begin(), G.begin() + nz, v);
+  } else {
+    for (int k = 0; k < nz; ++k) v[k] = G[static_cast<std::size_t>(k)] + a0 * C[static_cast<std::size_t>(k)];
+  }
+  if (gmin > 0.0)
+    for (int k = 0; k < nodes_; ++k) v[diag_[static_cast<std::size_t>(k)]] += gmin;
+}
+
+std::vector<double> System::breakpoints(double from, double to) const {
+  std::vector<double> out;
+  for (const Device* d : devices_) d->breakpoints(from, to, out);
+  std::sort(out.begin(), out.end());
+  out.erase(std::unique(out.begin(), out.end(),
+                        [to](double a, double b) { return std::abs(a - b) <= 1e-12 * to; }),
+            out.end());
+  return out;
+}
+
+void System::checkDcTopology() const {
+  // Element k of the union-find is node k; nodes_ stands for gnd.
+  UnionFind dc(nodes_ + 1);
+  UnionFind forced(nodes_ + 1);
+  auto idx = [this](int unknown) { return unknown == n_ ? nodes_ : unknown; };
+  for (std::size_t k = 0; k < devices_.size(); ++k) {
+    const auto& t = terminalIndex_[k];
+    for (auto [a, b] : devices_[k]->dcPaths()) {
+      const int ta = t[static_cast<std::size_t>(a)], tb = t[static_cast<std::size_t>(b)];
+      if (ta <= n_ && tb <= n_ && (ta < nodes_ || ta == n_) && (tb < nodes_ || tb == n_))
+        dc.unite(idx(ta), idx(tb));
+    }
+    if (devices_[k]->definesVoltage()) {
+      if (!forced.unite(idx(t[0]), idx(t[1])))
+        throw SingularCircuitError(
+            fmt::format("'{}' closes a loop of voltage sources and inductors: at DC such a loop "
+                        "has no unique current; add a small series resistance",
+                        devices_[k]->name()),
+            devices_[k]->name());
+    }
+  }
+  const int root = dc.find(nodes_);
+  for (int k = 0; k < nodes_; ++k)
+    if (dc.find(k) != root)
+      throw SingularCircuitError(
+          fmt::format("node '{}' has no DC path to gnd (it connects only through capacitors or "
+                      "current sources); add a high-value resistor to gnd or start the transient "
+                      "cold",
+                      names_[static_cast<std::size_t>(k)]),
+          names_[static_cast<std::size_t>(k)]);
+}
+
+double System::naturalStep() const {
+  double h = std::numeric_limits<double>::infinity();
+  for (const Device* d : devices_) h = std::min(h, d->stepHint());
+  return h;
+}
+
+}  // namespace disc::detail

@@ -1,0 +1,69 @@
+// Assembly: a circuit compiled into unknowns, a sparse pattern and evaluation buffers (private).
+#pragma once
+
+#include <Eigen/SparseCore>
+#include <string>
+#include <vector>
+
+#include "disc/analysis.hpp"
+#include "disc/circuit.hpp"
+
+namespace disc::detail {
+
+/// The compiled equation system F(x, t) = i(x, t) + d/dt q(x) of one circuit.
+///
+/// Vectors indexed by unknown have size() + 1 entries: the last is the ground sentinel, always
+/// zero in x and a discard cell in i and q. Slot arrays G and C have nnz() + 1 entries for the
+/// same reason.
+class System {
+ public:
+  explicit System(Circuit& circuit);
+
+  int size() const { return n_; }
+  int ground() const { return n_; }
+  int nodeCount() const { return nodes_; }
+  int nnz() const { return static_cast<int>(jac_.nonZeros()); }
+  const std::string& unknownName(int k) const { return names_[static_cast<std::size_t>(k)]; }
+  UnknownKind kind(int k) const { return kinds_[static_cast<std::size_t>(k)]; }
+  /// "node 'out'" or "unknown 'T1.i2'" for messages.
+  std::string describe(int k) const;
+  Circuit& circuit() { return circuit_; }
+  const Circuit& circuit() const { return circuit_; }
+  const std::vector<Device*>& devices() const { return devices_; }
+
+  /// Absolute tolerance of each unknown from its kind.
+  std::vector<double> absTolerances(const Tolerances& tol) const;
+
+  /// Evaluates every device into i, q (and G, C when jacobian).
+  void evaluate(const EvalContext& ctx, bool jacobian);
+  /// J = G + a0 C, plus gmin on the diagonal of node rows; values into the sparse matrix.
+  void assemble(double a0, double gmin);
+  /// Total Newton limiting cells of all devices.
+  int limitCells() const { return limitCells_; }
+  /// Breakpoints of all devices in (from, to], sorted and unique.
+  std::vector<double> breakpoints(double from, double to) const;
+  /// Throws SingularCircuitError for nodes without a DC path to gnd and voltage-defined loops.
+  void checkDcTopology() const;
+  /// Largest sine-resolving step among the sources, or +inf.
+  double naturalStep() const;
+
+  const Eigen::SparseMatrix<double>& jacobian() const { return jac_; }
+  /// Slot of the diagonal entry of unknown k.
+  int diagonalSlot(int k) const { return diag_[static_cast<std::size_t>(k)]; }
+
+  std::vector<double> i, q, G, C;
+
+ private:
+  Circuit& circuit_;
+  std::vector<Device*> devices_;
+  int n_ = 0;
+  int nodes_ = 0;
+  int limitCells_ = 0;
+  std::vector<std::string> names_;
+  std::vector<UnknownKind> kinds_;
+  std::vector<int> diag_;
+  Eigen::SparseMatrix<double> jac_;
+  std::vector<std::vector<int>> terminalIndex_;  // per device
+};
+
+}  // namespace disc::detail
