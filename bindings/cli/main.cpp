@@ -19,6 +19,7 @@ struct ExampleArgs {
   int cycles = 1;
   bool json = false;
   bool cold = true;
+  double reltol = 1e-3;
 };
 
 void printSafety() {
@@ -37,6 +38,7 @@ int runExample(const ExampleArgs& a) {
   opt.method = disc::parseMethod(a.method);
   opt.start = a.cold ? disc::Start::Cold : disc::Start::OperatingPoint;
   opt.record = {"v:" + out};
+  opt.tol.reltol = a.reltol;
   const disc::Result r = disc::transient(circuit, opt);
   const auto fig = disc::measure::outputFigures(r.time(), r["v:" + out], f, a.cycles);
   const auto& s = r.stats();
@@ -51,6 +53,7 @@ int runExample(const ExampleArgs& a) {
                         {"accepted_steps", s.acceptedSteps},
                         {"rejected_steps", s.rejectedSteps},
                         {"newton_iterations", s.newtonIterations},
+                        {"reltol", a.reltol},
                         {"wall_s", s.wallSeconds}};
     std::cout << j.dump(2) << "\n";
     return 0;
@@ -84,6 +87,8 @@ int main(int argc, char** argv) {
   example->add_option("--cycles", ex.cycles, "Settled mains cycles to measure over")
       ->check(CLI::Range(1, 1000));
   example->add_flag("--json", ex.json, "Print the figures as JSON");
+  example->add_option("--reltol", ex.reltol, "Relative tolerance of Newton and step control")
+      ->check(CLI::Range(1e-12, 0.05));
   example->add_flag("!--from-operating-point", ex.cold,
                     "Start from the DC operating point instead of switching on cold");
 

@@ -86,7 +86,9 @@ void Transformer::evaluate(const EvalContext& ctx, Stamp& s) const {
   s.C[sb_[1][1]] -= l2_;
 }
 
-std::string Transformer::probeUnit(int k) const { return k < 2 ? "A" : k == 2 ? "W" : "J"; }
+std::string Transformer::probeUnit(int k) const {
+  return k < 2 ? "A" : (k == 2 || k == 4) ? "W" : "J";
+}
 
 double Transformer::probe(int k, const EvalContext& ctx) const {
   const double* x = ctx.x;
@@ -98,6 +100,8 @@ double Transformer::probe(int k, const EvalContext& ctx) const {
       return i2;
     case 2:
       return (x[t_[0]] - x[t_[1]]) * i1 + (x[t_[2]] - x[t_[3]]) * i2;
+    case 4:
+      return p_.r1 * i1 * i1 + p_.r2 * i2 * i2;
     default:
       return 0.5 * l1_ * i1 * i1 + m_ * i1 * i2 + 0.5 * l2_ * i2 * i2;
   }

@@ -33,7 +33,7 @@ class Transformer : public DeviceBase<Transformer> {
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
   std::vector<std::pair<int, int>> dcPaths() const override { return {{0, 1}, {2, 3}}; }
   std::vector<std::string> probes() const override {
-    return {"i1", "i2", "p", "energy"};
+    return {"i1", "i2", "p", "energy", "loss"};
   }
   std::string probeUnit(int k) const override;
   double probe(int k, const EvalContext& ctx) const override;
