@@ -1,1 +1,85 @@
+// Failures are typed and name what the user must fix.
 #include <catch2/catch.hpp>
+
+#include "disc/disc.hpp"
+
+using namespace disc;
+using Catch::Matchers::Contains;
+
+TEST_CASE("A node with no DC path names the node", "[engine][errors]") {
+  Circuit c;
+  c.emplace<VoltageSource>("V1", c.node("in"), kGround, Waveform::dc(1.0));
+  c.emplace<Capacitor>("C1", c.node("in"), c.node("island"), 1e-6);
+  c.emplace<Capacitor>("C2", c.node("island"), kGround, 1e-6);
+  REQUIRE_THROWS_AS(operatingPoint(c), SingularCircuitError);
+  REQUIRE_THROWS_WITH(operatingPoint(c), Contains("island"));
+  // Started cold, the capacitive divider is well posed.
+  TransientOptions o;
+  o.stop = 1e-3;
+  o.start = Start::Cold;
+  CHECK_NOTHROW(transient(c, o));
+}
+
+TEST_CASE("A loop of voltage sources names the closing source", "[engine][errors]") {
+  Circuit c;
+  c.emplace<VoltageSource>("V1", c.node("a"), kGround, Waveform::dc(1.0));
+  c.emplace<VoltageSource>("V2", c.node("a"), kGround, Waveform::dc(2.0));
+  REQUIRE_THROWS_AS(operatingPoint(c), SingularCircuitError);
+  REQUIRE_THROWS_WITH(operatingPoint(c), Contains("V2"));
+  TransientOptions o;
+  o.stop = 1e-3;
+  o.start = Start::Cold;
+  REQUIRE_THROWS_AS(transient(c, o), SingularCircuitError);
+}
+
+TEST_CASE("Bad values are refused with the device and unit named", "[engine][errors]") {
+  Circuit c;
+  REQUIRE_THROWS_WITH(c.emplace<Resistor>("R1", c.node("a"), kGround, -5.0),
+                      Contains("R1") && Contains("ohm"));
+  REQUIRE_THROWS_AS(c.emplace<Capacitor>("C1", c.node("a"), kGround, 0.0), InputError);
+  c.emplace<Resistor>("R2", c.node("a"), kGround, 5.0);
+  REQUIRE_THROWS_WITH(c.emplace<Resistor>("R2", c.node("a"), kGround, 5.0),
+                      Contains("already exists"));
+  REQUIRE_THROWS_AS(Waveform::sine(1.0, -50.0), InputError);
+  REQUIRE_THROWS_AS(Waveform::points({{0, 0}, {0, 1}}), InputError);
+  REQUIRE_THROWS_AS(parseMethod("euler"), InputError);
+  TransientOptions o;
+  REQUIRE_THROWS_WITH(transient(c, o), Contains("stop time"));
+}
+
+TEST_CASE("Unknown signals list what exists", "[engine][errors]") {
+  Circuit c;
+  c.emplace<VoltageSource>("V1", c.node("a"), kGround, Waveform::dc(1.0));
+  c.emplace<Resistor>("R1", c.node("a"), kGround, 5.0);
+  OperatingPointOptions o;
+  o.record = {"v:nowhere"};
+  REQUIRE_THROWS_WITH(operatingPoint(c, o), Contains("nowhere"));
+  o.record = {"temp:R1"};
+  REQUIRE_THROWS_WITH(operatingPoint(c, o), Contains("it has: i, p"));
+  o.record = {"i:R1"};
+  const Result r = operatingPoint(c, o);
+  REQUIRE_THROWS_WITH(r["v:a"], Contains("i:R1"));
+  CHECK(r.unit("i:R1") == "A");
+}
+
+TEST_CASE("A progress callback can cancel a run", "[engine][errors]") {
+  Circuit c = reference::halfWaveRc();
+  TransientOptions o;
+  o.stop = 0.1;
+  o.progress = [](double t, double) { return t < 0.01; };
+  REQUIRE_THROWS_AS(transient(c, o), Cancelled);
+}
+
+TEST_CASE("Cloned circuits run independently", "[engine][clone]") {
+  Circuit a = reference::halfWaveRc();
+  Circuit b = a;
+  static_cast<Capacitor&>(b.at("C1")).setCapacitance(3300e-6);
+  TransientOptions o;
+  o.stop = 0.1;
+  o.record = {"v:out"};
+  const Result ra = transient(a, o), rb = transient(b, o);
+  const auto fa = measure::outputFigures(ra.time(), ra["v:out"], 60.0);
+  const auto fb = measure::outputFigures(rb.time(), rb["v:out"], 60.0);
+  CHECK(fb.ripplePeakToPeak < 0.1 * fa.ripplePeakToPeak);
+  CHECK(static_cast<Capacitor&>(a.at("C1")).capacitance() == 100e-6);
+}

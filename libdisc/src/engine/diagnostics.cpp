@@ -62,9 +62,11 @@ JacobianCheck checkJacobian(Circuit& circuit, const std::vector<double>& x0, dou
     for (std::size_t k = 0; k < a.size(); ++k) {
       const double e = std::abs(a[k] - f[k]) / (std::abs(a[k]) + std::abs(f[k]) + floor);
       if (e > worst) {
+        // Name the worst entry over both matrices.
+        if (e > std::max(out.maxErrorG, out.maxErrorC))
+          out.worst = fmt::format("{}[{}, {}]", which, sys.unknownName(static_cast<int>(k / N)),
+                                  sys.unknownName(static_cast<int>(k % N)));
         worst = e;
-        out.worst = fmt::format("{}[{}, {}]", which, sys.unknownName(static_cast<int>(k / N)),
-                                sys.unknownName(static_cast<int>(k % N)));
       }
     }
   };
