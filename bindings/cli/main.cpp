@@ -1,5 +1,6 @@
 // The `disc` command-line program: a thin front end over libdisc.
 #include <CLI/CLI.hpp>
+#include <fstream>
 #include <fmt/format.h>
 #include <iostream>
 #include <nlohmann/json.hpp>
@@ -21,6 +22,16 @@ struct ExampleArgs {
   bool cold = true;
   double reltol = 1e-3;
 };
+
+// Peak resident memory of this process image (VmHWM; getrusage's figure survives exec and
+// would report the parent's size).
+long peakRssKib() {
+  std::ifstream status("/proc/self/status");
+  std::string line;
+  while (std::getline(status, line))
+    if (line.rfind("VmHWM:", 0) == 0) return std::stol(line.substr(6));
+  return -1;
+}
 
 void printSafety() {
   fmt::print(
@@ -54,7 +65,8 @@ int runExample(const ExampleArgs& a) {
                         {"rejected_steps", s.rejectedSteps},
                         {"newton_iterations", s.newtonIterations},
                         {"reltol", a.reltol},
-                        {"wall_s", s.wallSeconds}};
+                        {"wall_s", s.wallSeconds},
+                        {"peak_rss_kib", peakRssKib()}};
     std::cout << j.dump(2) << "\n";
     return 0;
   }

@@ -14,7 +14,7 @@ namespace disc {
 struct Tolerances {
   double reltol = 1e-3;        ///< relative, on unknowns and on charges
   double voltage = 1e-6;       ///< absolute, V
-  double current = 1e-9;       ///< absolute, A
+  double current = 1e-6;       ///< absolute, A
   double temperature = 1e-4;   ///< absolute, K
   double state = 1e-6;         ///< absolute, dimensionless slow states
   void validate() const;
@@ -51,6 +51,9 @@ struct TransientOptions {
   Start start = Start::OperatingPoint;
   Tolerances tol;
   int maxNewton = 12;              ///< Newton iterations per step before the step is cut
+  /// Highest BDF order IDA may use (1-5). Orders above 2 are not A-stable: the lightly damped
+  /// resonances of leakage inductance with junction capacitance force them into tiny steps.
+  int idaMaxOrder = 2;
   std::vector<std::string> record; ///< signals; empty = every node voltage and device current
   /// Called after each accepted step with (time, stop); return false to cancel the run (the
   /// analysis then throws Cancelled).

@@ -59,7 +59,7 @@ Circuit diodeLadder(int count);
 std::vector<std::string> names();
 /// One-line description of a reference circuit.
 std::string describe(const std::string& name);
-/// Builds a reference circuit by name with its default values.
+/// Builds a reference circuit by name with its default values ("ladder-N": N diodes).
 Circuit build(const std::string& name);
 /// The DC output node and mains frequency of a reference circuit.
 std::string outputNode(const std::string& name);

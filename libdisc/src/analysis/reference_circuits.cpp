@@ -10,6 +10,22 @@
 
 namespace disc::reference {
 
+namespace {
+
+// "ladder-N" names a diode ladder of N diodes; returns 0 for other names.
+int ladderCount(const std::string& name) {
+  if (name.rfind("ladder-", 0) != 0) return 0;
+  try {
+    std::size_t used = 0;
+    const int n = std::stoi(name.substr(7), &used);
+    return used == name.size() - 7 && n > 0 ? n : 0;
+  } catch (const std::exception&) {
+    return 0;
+  }
+}
+
+}  // namespace
+
 Circuit bridgeSupply(const BridgeSupply& s) {
   Circuit c;
   const NodeId line = c.node("line"), sa = c.node("sa"), sb = c.node("sb"), out = c.node("out");
@@ -92,22 +108,23 @@ std::string describe(const std::string& name) {
   if (name == "bridge") return "230 V 50 Hz mains, transformer, silicon bridge, 2200 uF, 18 ohm load";
   if (name == "half-wave") return "120 V 60 Hz, near-ideal diode, 100 uF parallel 500 ohm";
   if (name == "shockley-bridge") return "20 V 50 Hz sine, Shockley-diode bridge, 1000 uF, 50 ohm";
-  if (name == "ladder-100") return "100 silicon diodes in series into a resistor, 50 Hz";
+  if (const int n = ladderCount(name))
+    return fmt::format("{} silicon diodes in series into a resistor, 50 Hz (any ladder-N)", n);
   throw InputError(fmt::format("no reference circuit named '{}'", name));
 }
 
 Circuit build(const std::string& name) {
+  if (const int n = ladderCount(name)) return diodeLadder(n);
   if (name == "bridge") return bridgeSupply();
   if (name == "half-wave") return halfWaveRc();
   if (name == "shockley-bridge") return shockleyBridge();
-  if (name == "ladder-100") return diodeLadder(100);
   throw InputError(fmt::format("no reference circuit named '{}'; try one of: bridge, half-wave, "
-                               "shockley-bridge, ladder-100",
+                               "shockley-bridge, ladder-N (N diodes)",
                                name));
 }
 
 std::string outputNode(const std::string& name) {
-  if (name == "ladder-100") return "n100";
+  if (const int n = ladderCount(name)) return fmt::format("n{}", n);
   describe(name);
   return "out";
 }

@@ -171,6 +171,7 @@ void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x
   // Exponential junctions need more corrector iterations than IDA's default of four.
   check(IDASetMaxNonlinIters(run.mem, 20), "IDASetMaxNonlinIters", data);
   check(IDASetMaxConvFails(run.mem, 50), "IDASetMaxConvFails", data);
+  check(IDASetMaxOrd(run.mem, o.idaMaxOrder), "IDASetMaxOrd", data);
   const double hmax = resolveMaxStep(sys, o);
   check(IDASetMaxStep(run.mem, hmax), "IDASetMaxStep", data);
   check(IDASetMaxNumSteps(run.mem, 100000), "IDASetMaxNumSteps", data);

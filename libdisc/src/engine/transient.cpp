@@ -40,6 +40,8 @@ void TransientOptions::validate() const {
   if (!(recordFrom >= 0.0) || recordFrom > stop)
     throw InputError("transient: recording must start between 0 and the stop time");
   if (maxNewton < 2) throw InputError("transient: maxNewton must be at least 2");
+  if (idaMaxOrder < 1 || idaMaxOrder > 5)
+    throw InputError(fmt::format("transient: IDA order must be 1 to 5, got {}", idaMaxOrder));
 }
 
 namespace detail {
