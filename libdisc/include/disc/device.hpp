@@ -63,9 +63,14 @@ struct EvalContext {
   double sourceScale = 1.0;      ///< 0..1, scales independent sources (source stepping)
   bool dc = false;               ///< true in operating-point analyses
   /// Newton limiting memory, one cell per limitCells() of each device (nullptr: no limiting).
-  /// A NaN cell means "no previous iterate". A device that limits sets *limited = true.
+  /// A NaN cell means "no previous iterate". A device sets *unsettled = true when it limited
+  /// its junction, or when its junction voltage moved more than reltol * |v| + vabstol since the
+  /// previous iterate: node voltages of a tall stack are large, so only the device can tell
+  /// whether its own junction has converged.
   double* limits = nullptr;
-  bool* limited = nullptr;
+  bool* unsettled = nullptr;
+  double reltol = 1e-3;   ///< relative convergence tolerance of the current Newton solve
+  double vabstol = 1e-6;  ///< absolute voltage tolerance, V
 };
 
 /// Where a device adds its contributions. Rows and slots of ground land in a discard cell.

@@ -105,6 +105,10 @@ void Diode::junction(double v, double& id, double& gd) const {
       const double e0 = std::exp(vexp_ / nvt_);
       e = e0 * (1.0 + (u - vexp_) / nvt_);
       de = e0 / nvt_;
+    } else if (u < -700.0 * nvt_) {
+      // exp would underflow to zero anyway, through libm's slow path.
+      e = 0.0;
+      de = 0.0;
     } else {
       e = std::exp(u / nvt_);
       de = e / nvt_;
@@ -129,8 +133,9 @@ void Diode::charge(double v, double id, double gd, double& q, double& c) const {
   const double vj = p_.vj, m = p_.m;
   if (v < p_.fc * vj) {
     const double s = 1.0 - v / vj;
-    q += p_.cj0 * vj / (1.0 - m) * (1.0 - std::pow(s, 1.0 - m));
-    c += p_.cj0 * std::pow(s, -m);
+    const double sm = std::pow(s, -m);  // s^(1-m) = s * s^-m: one pow instead of two
+    q += p_.cj0 * vj / (1.0 - m) * (1.0 - s * sm);
+    c += p_.cj0 * sm;
   } else {
     const double vf = p_.fc * vj;
     q += p_.cj0 * (f1_ + (f3_ * (v - vf) + m / (2.0 * vj) * (v * v - vf * vf)) / f2_);
@@ -150,7 +155,9 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
         const double u = -p_.bv - v, ul = limitJunction(-p_.bv - last, u, nvt_, vcrit_);
         if (ul != u) v = -p_.bv - ul;
       }
-      if (v != vraw) *ctx.limited = true;
+      if (v != vraw ||
+          std::abs(vraw - last) > ctx.reltol * std::max(std::abs(vraw), std::abs(last)) + ctx.vabstol)
+        *ctx.unsettled = true;
     }
     last = v;
   }

@@ -85,6 +85,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.maxIterations = o.maxNewton;
   ns.reltol = o.tol.reltol;
   ns.abstol = &abstol;
+  ns.vabstol = o.tol.voltage;
 
   std::vector<double> xdot(N, 0.0), xPrev = x, xNew(N, 0.0), hist(N, 0.0);
   std::vector<double> qn(N, 0.0), qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);

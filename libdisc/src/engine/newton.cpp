@@ -33,11 +33,13 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   ctx.x = x.data();
   std::vector<double> limits(static_cast<std::size_t>(sys.limitCells()) + 1,
                              std::numeric_limits<double>::quiet_NaN());
-  bool limited = false;
+  bool unsettled = false;
   ctx.limits = limits.data();
-  ctx.limited = &limited;
+  ctx.unsettled = &unsettled;
+  ctx.reltol = settings.reltol;
+  ctx.vabstol = settings.vabstol;
   for (int it = 0; it < settings.maxIterations; ++it) {
-    limited = false;
+    unsettled = false;
     sys.evaluate(ctx, true);
     ++stats.evaluations;
     residual(sys, x, a0, history, settings.gmin, f);
@@ -52,7 +54,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     bool finite = true;
     for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
     if (!finite) break;
-    bool small = !limited;
+    bool small = !unsettled;
     for (int k = 0; k < n; ++k) {
       const auto uk = static_cast<std::size_t>(k);
       const double step = dx[uk];

@@ -14,6 +14,7 @@ struct NewtonSettings {
   double reltol = 1e-3;
   const std::vector<double>* abstol = nullptr;  ///< per unknown, size n+1
   double gmin = 0.0;
+  double vabstol = 1e-6;  ///< V, for the devices' own junction convergence checks
 };
 
 struct NewtonOutcome {

@@ -20,6 +20,7 @@ void solveOperatingPoint(System& sys, LinearSolver& ls, std::vector<double>& x,
   ns.maxIterations = options.maxIterations;
   ns.reltol = options.tol.reltol;
   ns.abstol = &abstol;
+  ns.vabstol = options.tol.voltage;
   ns.gmin = options.gmin;
   EvalContext ctx;
   std::vector<double> zero(x.size(), 0.0);
