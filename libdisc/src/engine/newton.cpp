@@ -16,8 +16,9 @@ void residual(const System& sys, const std::vector<double>& x, double a0, const 
     if (history) v += history[k];
     f[static_cast<std::size_t>(k)] = v;
   }
-  for (int k = 0; k < sys.nodeCount(); ++k)
-    f[static_cast<std::size_t>(k)] += gmin * x[static_cast<std::size_t>(k)];
+  if (gmin > 0.0)
+    for (int k : sys.nodeRows())
+      f[static_cast<std::size_t>(k)] += gmin * x[static_cast<std::size_t>(k)];
 }
 
 }  // namespace

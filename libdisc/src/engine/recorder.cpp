@@ -10,7 +10,8 @@ namespace disc::detail {
 
 std::vector<std::string> defaultSignals(const System& sys) {
   std::vector<std::string> out;
-  for (int k = 0; k < sys.nodeCount(); ++k) out.push_back("v:" + sys.unknownName(k));
+  for (NodeId id = 0; id < sys.circuit().nodeCount(); ++id)
+    out.push_back("v:" + sys.circuit().nodeName(id));
   for (const Device* d : sys.devices()) {
     const auto p = d->probes();
     if (std::find(p.begin(), p.end(), "i") != p.end()) out.push_back("i:" + d->name());
@@ -24,8 +25,7 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
   const Circuit& circuit = sys.circuit();
   auto nodeIndex = [&](const std::string& name, const std::string& spec) {
     try {
-      const NodeId id = circuit.findNode(name);
-      return id == kGround ? sys.ground() : id;
+      return sys.unknownOfNode(circuit.findNode(name));
     } catch (const InputError&) {
       throw InputError(fmt::format("signal '{}': no node named '{}'", spec, name));
     }

@@ -69,31 +69,40 @@ struct UnionFind {
 }  // namespace
 
 System::System(Circuit& circuit) : circuit_(circuit) {
-  nodes_ = circuit.nodeCount();
-  for (int k = 0; k < nodes_; ++k) {
-    names_.push_back(circuit.nodeName(k));
-    kinds_.push_back(UnknownKind::Voltage);
-  }
   for (const auto& d : circuit.devices()) {
     devices_.push_back(d.get());
     d->prepare(circuit);
   }
-  // Internal unknowns after the nodes, device by device.
+  // Unknowns in device order: a device's terminal nodes (at first use), then its internals, so
+  // that what one device touches lies close together in memory (long stacks and ladders).
+  const int nodes = circuit.nodeCount();
+  nodeUnknown_.assign(static_cast<std::size_t>(nodes), -1);
+  auto addUnknown = [this](std::string name, UnknownKind kind, bool node) {
+    names_.push_back(std::move(name));
+    kinds_.push_back(kind);
+    isNode_.push_back(node ? 1 : 0);
+    return static_cast<int>(names_.size()) - 1;
+  };
+  auto addNode = [&](NodeId id) {
+    if (id == kGround || nodeUnknown_[static_cast<std::size_t>(id)] >= 0) return;
+    const int k = addUnknown(circuit.nodeName(id), UnknownKind::Voltage, true);
+    nodeUnknown_[static_cast<std::size_t>(id)] = k;
+    nodeRows_.push_back(k);
+  };
   std::vector<std::vector<int>> internals(devices_.size());
   for (std::size_t k = 0; k < devices_.size(); ++k) {
-    for (const auto& spec : devices_[k]->internalUnknowns()) {
-      internals[k].push_back(static_cast<int>(names_.size()));
-      names_.push_back(devices_[k]->name() + "." + spec.suffix);
-      kinds_.push_back(spec.kind);
-    }
+    for (NodeId t : devices_[k]->terminals()) addNode(t);
+    for (const auto& spec : devices_[k]->internalUnknowns())
+      internals[k].push_back(addUnknown(devices_[k]->name() + "." + spec.suffix, spec.kind, false));
   }
+  for (NodeId id = 0; id < nodes; ++id) addNode(id);
   n_ = static_cast<int>(names_.size());
   if (n_ == 0) throw InputError("the circuit has no nodes or unknowns to solve for");
   terminalIndex_.resize(devices_.size());
   for (std::size_t k = 0; k < devices_.size(); ++k) {
     Binding b;
     b.ground = n_;
-    for (NodeId t : devices_[k]->terminals()) b.terminals.push_back(t == kGround ? n_ : t);
+    for (NodeId t : devices_[k]->terminals()) b.terminals.push_back(unknownOfNode(t));
     b.internals = internals[k];
     b.limitCell = limitCells_;
     limitCells_ += devices_[k]->limitCells();
@@ -114,7 +123,7 @@ System::System(Circuit& circuit) : circuit_(circuit) {
 
 std::string System::describe(int k) const {
   if (k < 0 || k >= n_) return "(none)";
-  if (k < nodes_) return fmt::format("node '{}'", names_[static_cast<std::size_t>(k)]);
+  if (isNode(k)) return fmt::format("node '{}'", names_[static_cast<std::size_t>(k)]);
   return fmt::format("unknown '{}'", names_[static_cast<std::size_t>(k)]);
 }
 
@@ -159,7 +168,7 @@ void System::assemble(double a0, double gmin) {
     for (int k = 0; k < nz; ++k) v[k] = G[static_cast<std::size_t>(k)] + a0 * C[static_cast<std::size_t>(k)];
   }
   if (gmin > 0.0)
-    for (int k = 0; k < nodes_; ++k) v[diag_[static_cast<std::size_t>(k)]] += gmin;
+    for (int k : nodeRows_) v[diag_[static_cast<std::size_t>(k)]] += gmin;
 }
 
 std::vector<double> System::breakpoints(double from, double to) const {
@@ -173,28 +182,22 @@ std::vector<double> System::breakpoints(double from, double to) const {
 }
 
 void System::checkDcTopology() const {
-  // Element k of the union-find is node k; nodes_ stands for gnd.
-  UnionFind dc(nodes_ + 1);
-  UnionFind forced(nodes_ + 1);
-  auto idx = [this](int unknown) { return unknown == n_ ? nodes_ : unknown; };
+  // Union-find over unknown indices; n_ (the ground sentinel) stands for gnd.
+  UnionFind dc(n_ + 1);
+  UnionFind forced(n_ + 1);
   for (std::size_t k = 0; k < devices_.size(); ++k) {
     const auto& t = terminalIndex_[k];
-    for (auto [a, b] : devices_[k]->dcPaths()) {
-      const int ta = t[static_cast<std::size_t>(a)], tb = t[static_cast<std::size_t>(b)];
-      if (ta <= n_ && tb <= n_ && (ta < nodes_ || ta == n_) && (tb < nodes_ || tb == n_))
-        dc.unite(idx(ta), idx(tb));
-    }
-    if (devices_[k]->definesVoltage()) {
-      if (!forced.unite(idx(t[0]), idx(t[1])))
-        throw SingularCircuitError(
-            fmt::format("'{}' closes a loop of voltage sources and inductors: at DC such a loop "
-                        "has no unique current; add a small series resistance",
-                        devices_[k]->name()),
-            devices_[k]->name());
-    }
+    for (auto [a, b] : devices_[k]->dcPaths())
+      dc.unite(t[static_cast<std::size_t>(a)], t[static_cast<std::size_t>(b)]);
+    if (devices_[k]->definesVoltage() && !forced.unite(t[0], t[1]))
+      throw SingularCircuitError(
+          fmt::format("'{}' closes a loop of voltage sources and inductors: at DC such a loop "
+                      "has no unique current; add a small series resistance",
+                      devices_[k]->name()),
+          devices_[k]->name());
   }
-  const int root = dc.find(nodes_);
-  for (int k = 0; k < nodes_; ++k)
+  const int root = dc.find(n_);
+  for (int k : nodeRows_)
     if (dc.find(k) != root)
       throw SingularCircuitError(
           fmt::format("node '{}' has no DC path to gnd (it connects only through capacitors or "

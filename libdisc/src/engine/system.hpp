@@ -21,7 +21,14 @@ class System {
 
   int size() const { return n_; }
   int ground() const { return n_; }
-  int nodeCount() const { return nodes_; }
+  int nodeCount() const { return static_cast<int>(nodeRows_.size()); }
+  /// Unknown index of a circuit node (the ground sentinel for kGround).
+  int unknownOfNode(NodeId id) const {
+    return id == kGround ? n_ : nodeUnknown_[static_cast<std::size_t>(id)];
+  }
+  /// Unknown indices that are node voltages.
+  const std::vector<int>& nodeRows() const { return nodeRows_; }
+  bool isNode(int k) const { return k >= 0 && k < n_ && isNode_[static_cast<std::size_t>(k)]; }
   int nnz() const { return static_cast<int>(jac_.nonZeros()); }
   const std::string& unknownName(int k) const { return names_[static_cast<std::size_t>(k)]; }
   UnknownKind kind(int k) const { return kinds_[static_cast<std::size_t>(k)]; }
@@ -57,7 +64,9 @@ class System {
   Circuit& circuit_;
   std::vector<Device*> devices_;
   int n_ = 0;
-  int nodes_ = 0;
+  std::vector<int> nodeUnknown_;  // by NodeId
+  std::vector<int> nodeRows_;
+  std::vector<char> isNode_;
   int limitCells_ = 0;
   std::vector<std::string> names_;
   std::vector<UnknownKind> kinds_;
