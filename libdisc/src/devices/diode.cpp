@@ -7,6 +7,7 @@
 #include <numbers>
 
 #include "check.hpp"
+#include "junction_math.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
 
@@ -17,18 +18,6 @@ namespace {
 constexpr double kJunctionGmin = 1e-12;
 // Beyond this current the exponential is continued linearly so no value overflows.
 constexpr double kExpLimitCurrent = 1e6;
-
-// Junction voltage limiting for Newton (the classical logarithmic damping of large forward steps).
-double limitJunction(double v, double vnew, double nvt, double vcrit) {
-  if (vnew > vcrit && std::abs(vnew - v) > 2.0 * nvt) {
-    if (v > 0.0) {
-      const double arg = 1.0 + (vnew - v) / nvt;
-      return arg > 0.0 ? v + nvt * std::log(arg) : vcrit;
-    }
-    return nvt * std::log(vnew / nvt);
-  }
-  return vnew;
-}
 
 }  // namespace
 
@@ -76,9 +65,6 @@ void Diode::derive() {
   isT_ = p_.is * std::pow(ratio, p_.xti / p_.n) * std::exp((ratio - 1.0) * p_.eg / nvt_);
   vcrit_ = nvt_ * std::log(nvt_ / (std::numbers::sqrt2 * isT_));
   vexp_ = nvt_ * std::log(kExpLimitCurrent / isT_ + 1.0);
-  f1_ = p_.vj / (1.0 - p_.m) * (1.0 - std::pow(1.0 - p_.fc, 1.0 - p_.m));
-  f2_ = std::pow(1.0 - p_.fc, 1.0 + p_.m);
-  f3_ = 1.0 - p_.fc * (1.0 + p_.m);
 }
 
 std::vector<UnknownSpec> Diode::internalUnknowns() const {
@@ -99,28 +85,13 @@ void Diode::declare(PatternBuilder& pb) {
 }
 
 void Diode::junction(double v, double& id, double& gd) const {
-  auto expLimited = [this](double u, double& e, double& de) {
-    // e = exp(u / nvt), continued linearly above vexp.
-    if (u > vexp_) {
-      const double e0 = std::exp(vexp_ / nvt_);
-      e = e0 * (1.0 + (u - vexp_) / nvt_);
-      de = e0 / nvt_;
-    } else if (u < -700.0 * nvt_) {
-      // exp would underflow to zero anyway, through libm's slow path.
-      e = 0.0;
-      de = 0.0;
-    } else {
-      e = std::exp(u / nvt_);
-      de = e / nvt_;
-    }
-  };
   double e, de;
-  expLimited(v, e, de);
+  detail::limitedExp(v, nvt_, vexp_, e, de);
   id = isT_ * (e - 1.0) + kJunctionGmin * v;
   gd = isT_ * de + kJunctionGmin;
   if (p_.bv > 0.0) {
     double eb, deb;
-    expLimited(-(v + p_.bv), eb, deb);
+    detail::limitedExp(-(v + p_.bv), nvt_, vexp_, eb, deb);
     id -= p_.ibv * eb;
     gd += p_.ibv * deb;
   }
@@ -130,17 +101,10 @@ void Diode::charge(double v, double id, double gd, double& q, double& c) const {
   q = p_.tt * id;
   c = p_.tt * gd;
   if (p_.cj0 <= 0.0) return;
-  const double vj = p_.vj, m = p_.m;
-  if (v < p_.fc * vj) {
-    const double s = 1.0 - v / vj;
-    const double sm = std::pow(s, -m);  // s^(1-m) = s * s^-m: one pow instead of two
-    q += p_.cj0 * vj / (1.0 - m) * (1.0 - s * sm);
-    c += p_.cj0 * sm;
-  } else {
-    const double vf = p_.fc * vj;
-    q += p_.cj0 * (f1_ + (f3_ * (v - vf) + m / (2.0 * vj) * (v * v - vf * vf)) / f2_);
-    c += p_.cj0 / f2_ * (f3_ + m * v / vj);
-  }
+  double qd, cd;
+  detail::depletionCharge(v, p_.cj0, p_.vj, p_.m, p_.fc, qd, cd);
+  q += qd;
+  c += cd;
 }
 
 void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
@@ -149,10 +113,10 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   if (ctx.limits) {
     double& last = ctx.limits[cell_];
     if (!std::isnan(last)) {
-      v = limitJunction(last, vraw, nvt_, vcrit_);
+      v = detail::limitJunction(last, vraw, nvt_, vcrit_);
       if (p_.bv > 0.0) {
         // The breakdown branch is the same exponential mirrored about -bv.
-        const double u = -p_.bv - v, ul = limitJunction(-p_.bv - last, u, nvt_, vcrit_);
+        const double u = -p_.bv - v, ul = detail::limitJunction(-p_.bv - last, u, nvt_, vcrit_);
         if (ul != u) v = -p_.bv - ul;
       }
       if (v != vraw ||

@@ -54,7 +54,7 @@ class Diode : public DeviceBase<Diode> {
   DiodeParams p_;
   double ambient_ = 298.15;
   // Derived at the device temperature.
-  double nvt_ = 0, isT_ = 0, vcrit_ = 0, vexp_ = 0, f1_ = 0, f2_ = 0, f3_ = 0;
+  double nvt_ = 0, isT_ = 0, vcrit_ = 0, vexp_ = 0;
   int a_ = 0, k_ = 0, j_ = 0, cell_ = 0;  // anode, cathode, junction (internal anode) unknowns
   PairSlots sj_;  // junction j-k
   PairSlots ss_;  // series resistance a-j
