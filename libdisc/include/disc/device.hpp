@@ -138,6 +138,13 @@ class Device {
   virtual std::string probeUnit(int k) const;
   /// Value of probe k at the context's state.
   virtual double probe(int k, const EvalContext& ctx) const = 0;
+  /// How many numbered instances probe k has ("temp:SR1#3" is plate 3); 0: not numbered.
+  virtual int probeInstances(int /*k*/) const { return 0; }
+  /// Value of instance `index` (1-based) of probe k.
+  virtual double probeAt(int k, int /*index*/, const EvalContext& ctx) const { return probe(k, ctx); }
+  /// Sets unknowns that carry history (slow states, initial temperature rises) to their
+  /// starting values, before the operating point or a cold start.
+  virtual void initialState(double* /*x*/) const {}
 
  protected:
   std::string name_;

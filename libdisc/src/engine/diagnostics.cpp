@@ -39,9 +39,9 @@ JacobianCheck checkJacobian(Circuit& circuit, const std::vector<double>& x0, dou
       Ca[at] = sys.C[static_cast<std::size_t>(p)];
     }
   std::vector<double> Gf(N * N, 0.0), Cf(N * N, 0.0);
-  for (int col = 0; col < n; ++col) {
-    const auto c = static_cast<std::size_t>(col);
-    const double h = 1e-6 * (1.0 + std::abs(x0[c]));
+  // Central differences at h and h/2 combined by Richardson extrapolation: truncation error
+  // of order h^4, so steep exponentials and rounding can both be kept small.
+  auto central = [&](std::size_t c, double h, std::vector<double>& di, std::vector<double>& dq) {
     x[c] = x0[c] + h;
     sys.evaluate(ctx, false);
     const std::vector<double> ip = sys.i, qp = sys.q;
@@ -49,17 +49,31 @@ JacobianCheck checkJacobian(Circuit& circuit, const std::vector<double>& x0, dou
     sys.evaluate(ctx, false);
     x[c] = x0[c];
     for (std::size_t r = 0; r < N; ++r) {
-      Gf[r * N + c] = (ip[r] - sys.i[r]) / (2.0 * h);
-      Cf[r * N + c] = (qp[r] - sys.q[r]) / (2.0 * h);
+      di[r] = (ip[r] - sys.i[r]) / (2.0 * h);
+      dq[r] = (qp[r] - sys.q[r]) / (2.0 * h);
+    }
+  };
+  std::vector<double> di1(N), dq1(N), di2(N), dq2(N);
+  for (int col = 0; col < n; ++col) {
+    const auto c = static_cast<std::size_t>(col);
+    const double h = 1e-4 * (1.0 + std::abs(x0[c]));
+    central(c, h, di1, dq1);
+    central(c, 0.5 * h, di2, dq2);
+    for (std::size_t r = 0; r < N; ++r) {
+      Gf[r * N + c] = (4.0 * di2[r] - di1[r]) / 3.0;
+      Cf[r * N + c] = (4.0 * dq2[r] - dq1[r]) / 3.0;
     }
   }
   JacobianCheck out;
   auto compare = [&](const std::vector<double>& a, const std::vector<double>& f, double& worst,
                      const char* which) {
-    double scale = 0.0;
-    for (double v : a) scale = std::max(scale, std::abs(v));
-    const double floor = 1e-9 * scale + 1e-300;
+    // Rounding in a finite difference is relative to the row's largest entries, so an entry
+    // many orders smaller than its row's is judged against that scale.
+    std::vector<double> rowScale(N, 0.0);
+    for (std::size_t k = 0; k < a.size(); ++k)
+      rowScale[k / N] = std::max({rowScale[k / N], std::abs(a[k]), std::abs(f[k])});
     for (std::size_t k = 0; k < a.size(); ++k) {
+      const double floor = 1e-6 * rowScale[k / N] + 1e-300;
       const double e = std::abs(a[k] - f[k]) / (std::abs(a[k]) + std::abs(f[k]) + floor);
       if (e > worst) {
         // Name the worst entry over both matrices.

@@ -52,6 +52,7 @@ void solveOperatingPoint(System& sys, LinearSolver& ls, std::vector<double>& x,
 
   // Source stepping: ramp every independent source from zero, shrinking the ramp step on failure.
   std::fill(x.begin(), x.end(), 0.0);
+  sys.initialState(x);
   double scale = 0.0, step = 0.1;
   while (scale < 1.0) {
     const double next = std::min(1.0, scale + step);
@@ -106,6 +107,7 @@ Result operatingPoint(Circuit& circuit, const OperatingPointOptions& options) {
   Result result;
   detail::Recorder recorder(sys, options.record, result);
   std::vector<double> x(static_cast<std::size_t>(sys.size()) + 1, 0.0);
+  sys.initialState(x);
   RunStats& stats = result.stats();
   stats.method = "operating-point";
   stats.unknowns = sys.size();

@@ -52,8 +52,21 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
       static const char* units[] = {"V", "A", "K", ""};
       unit = units[static_cast<int>(sys.kind(s.a))];
     } else {
-      const Device* d = circuit.find(target);
-      if (!d) throw InputError(fmt::format("signal '{}': no device named '{}'", spec, target));
+      // "kind:device#n" names instance n of a numbered quantity (plate n of a stack).
+      std::string deviceName = target;
+      int instance = 0;
+      if (const auto hash = target.find('#'); hash != std::string::npos) {
+        deviceName = target.substr(0, hash);
+        try {
+          std::size_t used = 0;
+          instance = std::stoi(target.substr(hash + 1), &used);
+          if (used != target.size() - hash - 1 || instance < 1) throw std::invalid_argument("");
+        } catch (const std::exception&) {
+          throw InputError(fmt::format("signal '{}': '#' must be followed by a number from 1", spec));
+        }
+      }
+      const Device* d = circuit.find(deviceName);
+      if (!d) throw InputError(fmt::format("signal '{}': no device named '{}'", spec, deviceName));
       const auto probes = d->probes();
       const auto it = std::find(probes.begin(), probes.end(), kind);
       if (it == probes.end()) {
@@ -64,6 +77,14 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
       }
       s.device = d;
       s.probe = static_cast<int>(it - probes.begin());
+      s.instance = instance;
+      if (instance > 0) {
+        const int count = d->probeInstances(s.probe);
+        if (count == 0)
+          throw InputError(fmt::format("signal '{}': '{}' of a {} is not numbered", spec, kind, d->kind()));
+        if (instance > count)
+          throw InputError(fmt::format("signal '{}': {} has {} of them", spec, deviceName, count));
+      }
       unit = d->probeUnit(s.probe);
     }
     result_.addSignal(spec, unit);
@@ -75,7 +96,9 @@ void Recorder::record(const EvalContext& ctx) {
   result_.timeColumn().push_back(ctx.time);
   for (std::size_t k = 0; k < signals_.size(); ++k) {
     const Signal& s = signals_[k];
-    const double v = s.device ? s.device->probe(s.probe, ctx) : ctx.x[s.a] - ctx.x[s.b];
+    const double v = !s.device          ? ctx.x[s.a] - ctx.x[s.b]
+                     : s.instance > 0 ? s.device->probeAt(s.probe, s.instance, ctx)
+                                      : s.device->probe(s.probe, ctx);
     result_.column(k).push_back(v);
   }
 }

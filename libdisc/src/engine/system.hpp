@@ -51,6 +51,10 @@ class System {
   std::vector<double> breakpoints(double from, double to) const;
   /// Throws SingularCircuitError for nodes without a DC path to gnd and voltage-defined loops.
   void checkDcTopology() const;
+  /// Starting values of history-carrying unknowns (slow states, temperature rises).
+  void initialState(std::vector<double>& x) const {
+    for (const Device* d : devices_) d->initialState(x.data());
+  }
   /// Largest sine-resolving step among the sources, or +inf.
   double naturalStep() const;
 

@@ -69,6 +69,7 @@ Result transient(Circuit& circuit, const TransientOptions& options) {
   stats.method = methodName(options.method);
   stats.unknowns = sys.size();
   std::vector<double> x(static_cast<std::size_t>(sys.size()) + 1, 0.0);
+  sys.initialState(x);
   if (options.start == Start::OperatingPoint) {
     OperatingPointOptions op;
     op.tol = options.tol;

@@ -1,0 +1,88 @@
+// A rectifier stack of metal-disc plates: N plates in series per arm, M arms in parallel.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "disc/device.hpp"
+#include "disc/plate_type.hpp"
+
+namespace disc {
+
+namespace detail {
+struct PlateConstants;
+}
+
+/// How the plates of a stack are represented.
+enum class StackMode {
+  PerPlate,  ///< every plate its own unknowns and drawn parameters, thermally coupled in its arm
+  Lumped     ///< each arm as one plate at 1/N of the arm voltage (exact for equal plates)
+};
+
+/// Lognormal spread (standard deviations of the natural logarithm) of plate parameters.
+struct StackSpread {
+  double js = 0.0;   ///< saturation current
+  double rs = 0.0;   ///< series resistance
+  double gsh = 0.0;  ///< shunt leakage
+};
+
+struct StackOptions {
+  int plates = 1;                    ///< plates in series per arm
+  int arms = 1;                      ///< arms in parallel
+  StackMode mode = StackMode::PerPlate;
+  StackSpread spread;
+  std::uint64_t seed = 1;            ///< seed of the spread draw (same seed, same stack)
+  double forming = 1.0;              ///< initial forming state F (1 = fully formed)
+  double storedYears = 0.0;          ///< if > 0: F starts at the value after this storage
+  double ageHours = 0.0;             ///< equivalent operating hours already run
+  double ageTemperature = 0.0;       ///< plate temperature of those hours, K (0: type's t0)
+  double cooling = 1.0;              ///< multiplies the heat conductance to ambient (fan: 2-3)
+  void validate() const;
+};
+
+/// Stack between anode (base-plate end) and cathode (counter-electrode end, the + DC side).
+class Stack : public DeviceBase<Stack> {
+ public:
+  Stack(std::string name, NodeId anode, NodeId cathode, PlateType type, StackOptions options);
+  ~Stack() override;
+  Stack(const Stack& other);
+  std::string_view kind() const override { return "stack"; }
+
+  const PlateType& type() const { return type_; }
+  const StackOptions& options() const { return opt_; }
+  /// Changes the options (plates, arms, spread, history ...); the circuit must be run again.
+  void setOptions(const StackOptions& options);
+  void setType(PlateType type);
+  int plateCount() const { return opt_.plates * opt_.arms; }
+  /// Initial forming state after the options' storage and forming settings.
+  double initialForming() const;
+  /// Rs ageing multiplier from the options' operating hours.
+  double ageing() const;
+
+  void prepare(const Circuit& c) override;
+  std::vector<UnknownSpec> internalUnknowns() const override;
+  void bind(const Binding& b) override;
+  void declare(PatternBuilder& pb) override;
+  void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  void initialState(double* x) const override;
+  int limitCells() const override;
+  std::vector<std::string> probes() const override;
+  std::string probeUnit(int k) const override;
+  double probe(int k, const EvalContext& ctx) const override;
+  int probeInstances(int k) const override;
+  double probeAt(int k, int index, const EvalContext& ctx) const override;
+
+ private:
+  struct Plate;
+  PlateType type_;
+  StackOptions opt_;
+  double ambient_ = 298.15;
+  std::vector<Plate> plates_;
+  int a_ = 0, k_ = 0;
+  void build();
+  double scale() const;
+  const Plate& plateOf(int number) const;  // 1-based plate number
+};
+
+}  // namespace disc

@@ -1,0 +1,414 @@
+// Stack of metal-disc plates: per-plate or lumped arms, spread, thermal coupling, forming state.
+#include "disc/devices/stack.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <fmt/format.h>
+#include <random>
+
+#include "check.hpp"
+#include "disc/circuit.hpp"
+#include "junction_math.hpp"
+#include "plate/plate_model.hpp"
+
+namespace disc {
+
+struct Stack::Plate {
+  detail::PlateConstants k;
+  int arm = 0, pos = 0;
+  double f0 = 1.0;
+  int a = 0, kk = 0, j = 0, t = 0, th = 0, f = 0;
+  int neighbour = -1;  // temperature unknown of the next plate in the arm, or -1
+  int cell = 0;
+  int sAa = 0, sAk = 0, sAj = 0, sAth = 0;
+  int sKa = 0, sKk = 0, sKj = 0, sKth = 0;
+  int sJa = 0, sJk = 0, sJj = 0, sJt = 0, sJth = 0, sJf = 0;
+  int sTj = 0, sTt = 0;
+  int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0;
+  PairSlots coupling;
+  int sFj = 0, sFh = 0, sFf = 0;
+};
+
+namespace {
+
+enum Probe { kI, kP, kV, kTemp, kForm, kIarm, kVrev, kPplate, kVj, kAge, kProbeCount };
+const char* const kProbeNames[] = {"i", "p", "v", "temp", "form", "iarm", "vrev", "pplate", "vj", "age"};
+const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", ""};
+
+}  // namespace
+
+void StackOptions::validate() const {
+  if (plates < 1) throw InputError(fmt::format("a stack needs at least one plate per arm, got {}", plates));
+  if (arms < 1) throw InputError(fmt::format("a stack needs at least one arm, got {}", arms));
+  for (double s : {spread.js, spread.rs, spread.gsh})
+    if (!(s >= 0.0 && s <= 3.0))
+      throw InputError(fmt::format("spread sigmas must lie in [0, 3], got {}", s));
+  if (!(forming >= 0.0 && forming <= 1.0))
+    throw InputError(fmt::format("forming state must lie in [0, 1], got {}", forming));
+  if (!(storedYears >= 0.0) || !std::isfinite(storedYears))
+    throw InputError("stored years must be zero or positive");
+  if (!(ageHours >= 0.0) || !std::isfinite(ageHours))
+    throw InputError("operating hours must be zero or positive");
+  if (!(ageTemperature >= 0.0) || !std::isfinite(ageTemperature))
+    throw InputError("ageing temperature must be zero (type's reference) or positive, in K");
+  if (!(cooling > 0.0) || !std::isfinite(cooling))
+    throw InputError(fmt::format("cooling factor must be positive, got {}", cooling));
+}
+
+Stack::Stack(std::string name, NodeId anode, NodeId cathode, PlateType type, StackOptions options)
+    : DeviceBase(std::move(name), {anode, cathode}), type_(std::move(type)), opt_(options) {
+  try {
+    type_.validate();
+    opt_.validate();
+  } catch (const InputError& e) {
+    throw InputError(name_ + ": " + e.what());
+  }
+  build();
+}
+
+Stack::~Stack() = default;
+Stack::Stack(const Stack& other) = default;
+
+void Stack::setOptions(const StackOptions& options) {
+  try {
+    options.validate();
+  } catch (const InputError& e) {
+    throw InputError(name_ + ": " + e.what());
+  }
+  opt_ = options;
+  build();
+}
+
+void Stack::setType(PlateType type) {
+  type.validate();
+  type_ = std::move(type);
+  build();
+}
+
+double Stack::initialForming() const {
+  return opt_.storedYears > 0.0 ? detail::formingAfterStorage(type_, opt_.storedYears) * opt_.forming
+                                : opt_.forming;
+}
+
+double Stack::ageing() const {
+  const double t = opt_.ageTemperature > 0.0 ? opt_.ageTemperature : type_.physics.t0;
+  return detail::ageingFactor(type_, opt_.ageHours, t);
+}
+
+double Stack::scale() const { return opt_.mode == StackMode::Lumped ? opt_.plates : 1.0; }
+
+void Stack::build() {
+  plates_.clear();
+  std::mt19937_64 rng(opt_.seed);
+  std::normal_distribution<double> normal(0.0, 1.0);
+  const double age = ageing(), f0 = initialForming();
+  const int perArm = opt_.mode == StackMode::Lumped ? 1 : opt_.plates;
+  for (int m = 0; m < opt_.arms; ++m)
+    for (int i = 0; i < perArm; ++i) {
+      Plate p;
+      p.arm = m;
+      p.pos = i;
+      p.f0 = f0;
+      // Draw all three factors for every plate, so a zero sigma leaves the others unchanged.
+      const double zj = normal(rng), zr = normal(rng), zg = normal(rng);
+      p.k = detail::makePlateConstants(type_, std::exp(opt_.spread.js * zj),
+                                       std::exp(opt_.spread.rs * zr),
+                                       std::exp(opt_.spread.gsh * zg), age);
+      p.k.rth /= opt_.cooling;
+      plates_.push_back(p);
+    }
+}
+
+void Stack::prepare(const Circuit& c) { ambient_ = c.ambient(); }
+
+std::vector<UnknownSpec> Stack::internalUnknowns() const {
+  std::vector<UnknownSpec> u;
+  u.reserve(plates_.size() * 5);
+  for (const Plate& p : plates_) {
+    const std::string id = fmt::format("{}", p.arm * opt_.plates + p.pos + 1);
+    if (p.pos > 0) u.push_back({"node" + id, UnknownKind::Voltage});
+    u.push_back({"j" + id, UnknownKind::Voltage});
+    u.push_back({"trap" + id, UnknownKind::Voltage});
+    u.push_back({"temp" + id, UnknownKind::Temperature});
+    u.push_back({"form" + id, UnknownKind::State});
+  }
+  return u;
+}
+
+void Stack::bind(const Binding& b) {
+  a_ = b.terminals[0];
+  k_ = b.terminals[1];
+  std::size_t next = 0;
+  int previous = -1;  // cathode-side chain node of the previous plate in this arm
+  for (std::size_t n = 0; n < plates_.size(); ++n) {
+    Plate& p = plates_[n];
+    const bool last = opt_.mode == StackMode::Lumped || p.pos == opt_.plates - 1;
+    if (p.pos > 0) previous = b.internals[next++];
+    p.a = p.pos == 0 ? a_ : previous;
+    p.j = b.internals[next++];
+    p.t = b.internals[next++];
+    p.th = b.internals[next++];
+    p.f = b.internals[next++];
+    p.cell = b.limitCell + static_cast<int>(n);
+    if (p.pos > 0) plates_[n - 1].kk = p.a;
+    if (last) p.kk = k_;
+    p.neighbour = -1;
+    if (p.pos > 0) plates_[n - 1].neighbour = p.th;
+  }
+}
+
+void Stack::declare(PatternBuilder& pb) {
+  for (Plate& p : plates_) {
+    pb.entry(p.a, p.a, p.sAa);
+    pb.entry(p.a, p.kk, p.sAk);
+    pb.entry(p.a, p.j, p.sAj);
+    pb.entry(p.a, p.th, p.sAth);
+    pb.entry(p.kk, p.a, p.sKa);
+    pb.entry(p.kk, p.kk, p.sKk);
+    pb.entry(p.kk, p.j, p.sKj);
+    pb.entry(p.kk, p.th, p.sKth);
+    pb.entry(p.j, p.a, p.sJa);
+    pb.entry(p.j, p.kk, p.sJk);
+    pb.entry(p.j, p.j, p.sJj);
+    pb.entry(p.j, p.t, p.sJt);
+    pb.entry(p.j, p.th, p.sJth);
+    pb.entry(p.j, p.f, p.sJf);
+    pb.entry(p.t, p.j, p.sTj);
+    pb.entry(p.t, p.t, p.sTt);
+    pb.entry(p.th, p.a, p.sHa);
+    pb.entry(p.th, p.kk, p.sHk);
+    pb.entry(p.th, p.j, p.sHj);
+    pb.entry(p.th, p.t, p.sHt);
+    pb.entry(p.th, p.th, p.sHh);
+    pb.entry(p.th, p.f, p.sHf);
+    if (p.neighbour >= 0) p.coupling.declare(pb, p.th, p.neighbour);
+    pb.entry(p.f, p.j, p.sFj);
+    pb.entry(p.f, p.th, p.sFh);
+    pb.entry(p.f, p.f, p.sFf);
+  }
+}
+
+namespace {
+
+/// Evaluates one plate with Newton limiting of its barrier voltage (when ctx asks for it) and
+/// linearises the result back to the unlimited voltage.
+void evaluateLimited(const detail::PlateConstants& k, double ambient, const EvalContext& ctx,
+                     double vt, double uj, double ut, double th, double f, int cell,
+                     detail::PlateState& s) {
+  double ujl = uj;
+  if (ctx.limits) {
+    double& last = ctx.limits[cell];
+    if (!std::isnan(last)) {
+      double nvt, vcrit;
+      detail::plateLimitScale(k, ambient + th, nvt, vcrit);
+      ujl = detail::limitJunction(last, uj, nvt, vcrit);
+      if (ujl != uj ||
+          std::abs(uj - last) > ctx.reltol * std::max(std::abs(uj), std::abs(last)) + ctx.vabstol)
+        *ctx.unsettled = true;
+    }
+    last = ujl;
+  }
+  detail::evaluatePlate(k, ambient, vt, ujl, ut, th, f, s);
+  const double d = uj - ujl;
+  if (d != 0.0) {
+    s.is += s.dIsDuj * d;
+    s.ib += s.dIbDuj * d;
+    s.p += s.dPdUj * d;
+    s.g += s.dGdUj * d;
+    s.q += s.c * d;
+  }
+}
+
+}  // namespace
+
+void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
+  const double* x = ctx.x;
+  const double sc = scale(), inv = 1.0 / sc;
+  detail::PlateState st;
+  for (const Plate& p : plates_) {
+    const double vt = (x[p.a] - x[p.kk]) * inv;
+    const double uj = x[p.j], ut = x[p.t], th = x[p.th], f = x[p.f];
+    evaluateLimited(p.k, ambient_, ctx, vt, uj, ut, th, f, p.cell, st);
+    const double gth = 1.0 / p.k.rth;
+    s.i[p.a] += st.is;
+    s.i[p.kk] -= st.is;
+    s.i[p.j] += st.ib + st.it - st.is;
+    s.q[p.j] += st.q;
+    s.i[p.t] -= st.it;
+    s.q[p.t] += p.k.ct * ut;
+    s.i[p.th] += gth * th - st.p;
+    s.q[p.th] += p.k.cth * th;
+    if (p.neighbour >= 0) {
+      const double gc = 1.0 / type_.thermal.rthCoupling, flow = gc * (th - x[p.neighbour]);
+      s.i[p.th] += flow;
+      s.i[p.neighbour] -= flow;
+      if (s.jacobian) p.coupling.add(s.G, gc);
+    }
+    // The forming state is held at its start value in DC analyses: it changes over minutes.
+    s.i[p.f] += ctx.dc ? f - p.f0 : -st.g;
+    s.q[p.f] += f;
+    if (!s.jacobian) continue;
+    s.G[p.sAa] += st.dIsDvt * inv;
+    s.G[p.sAk] -= st.dIsDvt * inv;
+    s.G[p.sAj] += st.dIsDuj;
+    s.G[p.sAth] += st.dIsDth;
+    s.G[p.sKa] -= st.dIsDvt * inv;
+    s.G[p.sKk] += st.dIsDvt * inv;
+    s.G[p.sKj] -= st.dIsDuj;
+    s.G[p.sKth] -= st.dIsDth;
+    s.G[p.sJa] -= st.dIsDvt * inv;
+    s.G[p.sJk] += st.dIsDvt * inv;
+    s.G[p.sJj] += st.dIbDuj + p.k.gt - st.dIsDuj;
+    s.G[p.sJt] -= p.k.gt;
+    s.G[p.sJth] += st.dIbDth - st.dIsDth;
+    s.G[p.sJf] += st.dIbDf;
+    s.C[p.sJj] += st.c;
+    s.G[p.sTj] -= p.k.gt;
+    s.G[p.sTt] += p.k.gt;
+    s.C[p.sTt] += p.k.ct;
+    s.G[p.sHa] -= st.dPdVt * inv;
+    s.G[p.sHk] += st.dPdVt * inv;
+    s.G[p.sHj] -= st.dPdUj;
+    s.G[p.sHt] -= st.dPdUt;
+    s.G[p.sHh] += gth - st.dPdTh;
+    s.G[p.sHf] -= st.dPdF;
+    s.C[p.sHh] += p.k.cth;
+    if (ctx.dc) {
+      s.G[p.sFf] += 1.0;
+    } else {
+      s.G[p.sFj] -= st.dGdUj;
+      s.G[p.sFh] -= st.dGdTh;
+      s.G[p.sFf] -= st.dGdF;
+    }
+    s.C[p.sFf] += 1.0;
+  }
+}
+
+void Stack::initialState(double* x) const {
+  for (const Plate& p : plates_) {
+    x[p.f] = p.f0;
+    x[p.th] = 0.0;
+  }
+}
+
+int Stack::limitCells() const { return static_cast<int>(plates_.size()); }
+
+std::vector<std::string> Stack::probes() const {
+  return std::vector<std::string>(std::begin(kProbeNames), std::end(kProbeNames));
+}
+
+std::string Stack::probeUnit(int k) const {
+  return k >= 0 && k < kProbeCount ? kProbeUnits[k] : "";
+}
+
+int Stack::probeInstances(int k) const {
+  switch (k) {
+    case kTemp:
+    case kForm:
+    case kVrev:
+    case kPplate:
+    case kVj:
+      return plateCount();
+    case kIarm:
+      return opt_.arms;
+    default:
+      return 0;
+  }
+}
+
+const Stack::Plate& Stack::plateOf(int number) const {
+  const int n = number - 1;
+  if (opt_.mode == StackMode::Lumped) return plates_[static_cast<std::size_t>(n / opt_.plates)];
+  return plates_[static_cast<std::size_t>(n)];
+}
+
+double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
+  const double* x = ctx.x;
+  const double sc = scale();
+  if (k == kIarm) {
+    for (const Plate& p : plates_)
+      if (p.arm == index - 1 && p.pos == 0) {
+        detail::PlateState st;
+        detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th],
+                              x[p.f], st);
+        return st.is;
+      }
+    return 0.0;
+  }
+  const Plate& p = plateOf(index);
+  switch (k) {
+    case kTemp:
+      return ambient_ + x[p.th];
+    case kForm:
+      return x[p.f];
+    case kVrev:
+      return -(x[p.a] - x[p.kk]) / sc;
+    case kVj:
+      return x[p.j];
+    case kPplate: {
+      detail::PlateState st;
+      detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th],
+                            x[p.f], st);
+      return st.p;
+    }
+    default:
+      return probe(k, ctx);
+  }
+}
+
+double Stack::probe(int k, const EvalContext& ctx) const {
+  const double* x = ctx.x;
+  const double sc = scale();
+  switch (k) {
+    case kV:
+      return x[a_] - x[k_];
+    case kAge:
+      return ageing();
+    case kTemp: {
+      double t = 0.0;
+      for (const Plate& p : plates_) t = std::max(t, ambient_ + x[p.th]);
+      return t;
+    }
+    case kForm: {
+      double f = 1.0;
+      for (const Plate& p : plates_) f = std::min(f, x[p.f]);
+      return f;
+    }
+    case kVrev: {
+      double v = -1e300;
+      for (const Plate& p : plates_) v = std::max(v, -(x[p.a] - x[p.kk]) / sc);
+      return v;
+    }
+    case kVj:
+      return x[plates_.front().j];
+    default:
+      break;
+  }
+  // Current, dissipation and their per-arm and per-plate extremes need the plate laws.
+  double total = 0.0, power = 0.0, largestArm = 0.0, largestPlate = 0.0;
+  detail::PlateState st;
+  for (const Plate& p : plates_) {
+    detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th], x[p.f],
+                          st);
+    power += st.p * sc;
+    largestPlate = std::max(largestPlate, st.p);
+    if (p.pos == 0) {
+      total += st.is;
+      largestArm = std::abs(st.is) > std::abs(largestArm) ? st.is : largestArm;
+    }
+  }
+  switch (k) {
+    case kI:
+      return total;
+    case kP:
+      return power;
+    case kIarm:
+      return largestArm;
+    case kPplate:
+      return largestPlate;
+    default:
+      return 0.0;
+  }
+}
+
+}  // namespace disc

@@ -1,0 +1,186 @@
+// Plate equations. Laws (S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed.,
+// ch. 3, metal-semiconductor contacts, from memory):
+//   Js(T)  = Js0 (T/T0)^2 exp(-(phiB/k)(1/T - 1/T0))                 thermionic emission
+//   Ib     = Is(T) [1 + D(F) (exp(b(T) X) - 1)] (exp(uj/(n kT/q)) - 1)
+//            X = (Vbi + Vr)^(1/4) - Vbi^(1/4), Vr = smooth max(0, -uj), b(T) = b0 T0/T
+//                                                                      image-force lowering
+//          + Gsh0 exp((Esh/k)(1/T0 - 1/T)) D(F) uj                     shunt leakage
+//          - I0 exp((-uj - Vbd)/Vs)                                    soft breakdown
+//   Rs(T)  = Rs0 exp((Ea/k)(1/T - 1/T0)) * ageing                      Arrhenius, NTC
+//   Q(uj)  = Mott-Schottky depletion charge, C = Cj0 / sqrt(1 - uj/Vbi)
+//   D(F)   = 1 + (L - 1)(1 - F)                                        deformed leakage
+//   dF/dt  = (1 - F) Vr / (Vref tau) exp((Ef/k)(1/T0 - 1/T)) - F / tau_storage
+// The forming and ageing laws are libdisc's own proposal (docs/plate-model.md).
+#include "plate_model.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+
+#include "devices/junction_math.hpp"
+#include "disc/constants.hpp"
+
+namespace disc::detail {
+namespace {
+
+constexpr double kSecondsPerYear = 365.25 * 24 * 3600;
+constexpr double kRampWidth = 0.05;  // V, rounding of the reverse-voltage ramp at zero bias
+constexpr double kExpLimitCurrent = 1e4;  // A, where the forward exponential turns linear
+// The laws are evaluated within this temperature range. Beyond it the plate has long failed
+// (selenium melts near 490 K); the clamp keeps Newton iterates and runaways finite.
+constexpr double kLawTmin = 200.0, kLawTmax = 700.0;
+
+}  // namespace
+
+PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double rsFactor,
+                                  double gshFactor, double ageFactor) {
+  const auto& p = type.physics;
+  const double kEv = constants::kBoltzmannEv;
+  PlateConstants k;
+  k.is0 = p.js0 * p.areaCm2 * jsFactor;
+  k.n = p.ideality;
+  k.phiOverK = p.barrierEv / kEv;
+  k.t0 = p.t0;
+  k.b0 = p.imageForce;
+  k.vbi = p.builtIn;
+  k.vbi4 = std::sqrt(std::sqrt(p.builtIn));
+  k.rs0 = p.rsArea / p.areaCm2 * rsFactor * ageFactor;
+  k.rsEaOverK = p.rsActivationEv / kEv;
+  k.gsh0 = p.gshArea * p.areaCm2 * gshFactor;
+  k.gshEaOverK = p.gshActivationEv / kEv;
+  k.leakFactor = type.history.deformedLeakFactor;
+  k.bdV = p.breakdownV;
+  k.bdSlope = p.breakdownSlopeV;
+  k.bdI0 = p.breakdownJ0 * p.areaCm2;
+  k.cj0 = p.c0Area * p.areaCm2;
+  k.fc = p.fc;
+  k.ct = p.trapCArea * p.areaCm2;
+  k.gt = k.ct > 0.0 ? k.ct / p.trapTau : 0.0;
+  k.rth = type.thermal.rth;
+  k.cth = type.thermal.cth;
+  k.reformRate0 = 1.0 / (type.history.reformTau * type.history.reformVoltage);
+  k.reformEaOverK = type.history.reformActivationEv / kEv;
+  k.storageRate = 1.0 / (type.history.storageTauYears * kSecondsPerYear);
+  return k;
+}
+
+double ageingFactor(const PlateType& type, double hours, double kelvin) {
+  const auto& h = type.history;
+  const double weight = std::exp(h.ageActivationEv / constants::kBoltzmannEv *
+                                 (1.0 / type.physics.t0 - 1.0 / kelvin));
+  return 1.0 + h.ageCoefficient * std::log1p(hours * weight / h.ageHoursScale);
+}
+
+double formingAfterStorage(const PlateType& type, double years) {
+  return std::exp(-years / type.history.storageTauYears);
+}
+
+void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit) {
+  t = std::clamp(t, kLawTmin, kLawTmax);
+  nvt = k.n * constants::thermalVoltage(t);
+  const double is = k.is0 * (t / k.t0) * (t / k.t0) * std::exp(-k.phiOverK * (1.0 / t - 1.0 / k.t0));
+  vcrit = nvt * std::log(nvt / (std::numbers::sqrt2 * is));
+}
+
+void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
+                   double theta, double f, PlateState& s) {
+  const double tPlate = ambient + theta;
+  const bool clamped = tPlate < kLawTmin || tPlate > kLawTmax;
+  const double T = std::clamp(tPlate, kLawTmin, kLawTmax);
+  const double invT = 1.0 / T, dInv = invT - 1.0 / k.t0;  // d(dInv)/dT = -1/T^2
+  // Outside the clamp the laws do not move with temperature: their T-derivatives vanish.
+  const double invT2 = clamped ? 0.0 : invT * invT;
+  const double tSlope = clamped ? 0.0 : 1.0;
+  s.temperature = tPlate;
+
+  // Saturation current and its temperature slope.
+  const double tr = T / k.t0;
+  const double is = k.is0 * tr * tr * std::exp(-k.phiOverK * dInv);
+  const double dLnIsDT = tSlope * 2.0 * invT + k.phiOverK * invT2;
+
+  // Image-force enhancement of the reverse saturation current, scaled by deformation.
+  double vr, dVrDuj;
+  smoothRamp(-uj, kRampWidth, vr, dVrDuj);
+  dVrDuj = -dVrDuj;
+  const double root4 = std::sqrt(std::sqrt(k.vbi + vr));
+  const double x = root4 - k.vbi4;
+  const double b = k.b0 * k.t0 * invT;
+  const double eb = std::exp(b * x);
+  const double e1 = eb - 1.0;
+  const double dXdUj = 0.25 / (root4 * root4 * root4) * dVrDuj;
+  const double dE1dUj = eb * b * dXdUj;
+  const double dE1dT = eb * x * (-b * invT) * tSlope;
+  const double d = 1.0 + (k.leakFactor - 1.0) * (1.0 - f);
+  const double dDdF = -(k.leakFactor - 1.0);
+  const double enh = 1.0 + d * e1;
+
+  // Forward exponential (continued linearly past a large current).
+  const double nvt = k.n * constants::thermalVoltage(T);
+  const double ulimit = nvt * std::log(kExpLimitCurrent / is + 1.0);
+  double ex, dEx;
+  limitedExp(uj, nvt, ulimit, ex, dEx);
+  // d(ex)/dT at fixed uj: nvt grows with T, so exp(uj/nvt) falls.
+  const double dExDT = -(uj <= ulimit ? ex * uj / nvt : dEx * uj) * invT * tSlope;
+  const double em1 = ex - 1.0;
+
+  double ib = is * enh * em1;
+  double dIbDuj = is * enh * dEx + is * d * dE1dUj * em1;
+  double dIbDT = is * enh * em1 * dLnIsDT + is * d * dE1dT * em1 + is * enh * dExDT;
+  double dIbDf = is * e1 * dDdF * em1;
+
+  // Shunt leakage.
+  const double gArr = k.gsh0 * std::exp(-k.gshEaOverK * dInv);
+  const double gsh = gArr * d;
+  ib += gsh * uj;
+  dIbDuj += gsh;
+  dIbDT += gsh * k.gshEaOverK * invT2 * uj;
+  dIbDf += gArr * dDdF * uj;
+
+  // Soft breakdown.
+  if (k.bdI0 > 0.0) {
+    double eb2, deb2;
+    limitedExp(-uj - k.bdV, k.bdSlope, 50.0 * k.bdSlope, eb2, deb2);
+    ib -= k.bdI0 * eb2;
+    dIbDuj += k.bdI0 * deb2;
+  }
+  s.ib = ib;
+  s.dIbDuj = dIbDuj;
+  s.dIbDth = dIbDT;
+  s.dIbDf = dIbDf;
+
+  // Series resistance.
+  const double rs = k.rs0 * std::exp(k.rsEaOverK * dInv);
+  const double gs = 1.0 / rs;
+  s.is = (vt - uj) * gs;
+  s.dIsDvt = gs;
+  s.dIsDuj = -gs;
+  s.dIsDth = s.is * k.rsEaOverK * invT2;  // d(1/Rs)/dT = (1/Rs) Ea/(k T^2)
+
+  // Trap branch.
+  s.it = k.gt * (uj - ut);
+
+  // Dissipation: Rs loss + barrier static loss + trap-resistor loss.
+  s.p = s.is * (vt - uj) + ib * uj + s.it * (uj - ut);
+  s.dPdVt = 2.0 * s.is;
+  s.dPdUj = -2.0 * s.is + ib + uj * dIbDuj + 2.0 * s.it;
+  s.dPdUt = -2.0 * s.it;
+  s.dPdTh = (vt - uj) * s.dIsDth + uj * dIbDT;
+  s.dPdF = uj * dIbDf;
+
+  // Forming state.
+  const double rate = k.reformRate0 * std::exp(-k.reformEaOverK * dInv);
+  s.g = (1.0 - f) * rate * vr - f * k.storageRate;
+  s.dGdF = -rate * vr - k.storageRate;
+  s.dGdUj = (1.0 - f) * rate * dVrDuj;
+  s.dGdTh = (1.0 - f) * rate * vr * k.reformEaOverK * invT2;
+
+  // Barrier charge (Mott-Schottky: grading 1/2).
+  if (k.cj0 > 0.0) {
+    depletionCharge(uj, k.cj0, k.vbi, 0.5, k.fc, s.q, s.c);
+  } else {
+    s.q = 0.0;
+    s.c = 0.0;
+  }
+}
+
+}  // namespace disc::detail

@@ -1,0 +1,68 @@
+// The equations of one metal-disc plate, with analytic derivatives (private).
+//
+// A plate, seen from its terminals: series bulk resistance Rs(T) into an internal barrier node;
+// across the barrier the thermionic barrier current (with image-force lowering in reverse), a
+// shunt leakage Gsh(T, F), soft breakdown, the Mott-Schottky barrier charge, and a slow trap
+// branch Rt-Ct. Temperature rise theta and forming state F are unknowns of the plate too.
+// Voltages are per plate and relative to the plate's cathode (counter-electrode).
+#pragma once
+
+#include "disc/plate_type.hpp"
+
+namespace disc::detail {
+
+/// Per-plate constants after area scaling, spread and ageing.
+struct PlateConstants {
+  double is0 = 0;         // A, saturation current at t0
+  double n = 3;           // ideality
+  double phiOverK = 0;    // barrier / k, K
+  double t0 = 300;        // K
+  double b0 = 0;          // image-force coefficient at t0, V^-1/4
+  double vbi = 0.8;       // V
+  double vbi4 = 0;        // vbi^(1/4)
+  double rs0 = 1;         // ohm at t0, ageing included
+  double rsEaOverK = 0;   // K
+  double gsh0 = 0;        // S at t0, formed
+  double gshEaOverK = 0;  // K
+  double leakFactor = 1;  // deformed leakage multiplier at F = 0
+  double bdV = 50, bdSlope = 3, bdI0 = 0;  // V, V, A
+  double cj0 = 0;         // F
+  double fc = 0.5;
+  double ct = 0, gt = 0;  // trap capacitance F, conductance S
+  double rth = 1, cth = 1;  // K/W, J/K
+  double reformRate0 = 0;   // 1/(s V) at t0: (1/tau) / V_ref
+  double reformEaOverK = 0; // K
+  double storageRate = 0;   // 1/s
+};
+
+/// Builds the constants of one plate from its type, spread multipliers and ageing factor.
+PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double rsFactor,
+                                  double gshFactor, double ageFactor);
+
+/// Rs multiplier after `hours` of operation at plate temperature `kelvin`.
+double ageingFactor(const PlateType& type, double hours, double kelvin);
+/// Forming state after `years` unpowered, starting fully formed.
+double formingAfterStorage(const PlateType& type, double years);
+
+/// Values and derivatives of one plate at (vt, uj, ut, theta, F). Rows: Is = series current
+/// into the plate; Ib = barrier static current; It = trap-branch current; P = dissipation;
+/// g = dF/dt; Q = barrier charge and C = dQ/duj.
+struct PlateState {
+  double is, dIsDvt, dIsDuj, dIsDth;
+  double ib, dIbDuj, dIbDth, dIbDf;
+  double it;  // derivatives: +gt / -gt
+  double p, dPdVt, dPdUj, dPdUt, dPdTh, dPdF;
+  double g, dGdUj, dGdTh, dGdF;
+  double q, c;
+  double temperature;  // K
+};
+
+/// Evaluates the plate. `ujLimited` is the barrier voltage the laws are evaluated at (equal to
+/// uj unless Newton limiting moved it); the result is linearised from there.
+void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
+                   double theta, double f, PlateState& s);
+
+/// Critical voltage and thermal voltage n kT/q for junction limiting at temperature t.
+void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit);
+
+}  // namespace disc::detail
