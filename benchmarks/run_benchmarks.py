@@ -87,18 +87,21 @@ def main():
         return
     print("\n## SciPy solve_ivp (Radau) on the same bridge supply\n")
     import scipy_bridge as sb
-    ref = sb.solve(1.0, rtol=1e-8, atol=1e-10)
+    t0 = time.perf_counter()
+    ref = sb.solve(1.0, rtol=1e-6, atol=1e-9)
+    ref_wall = time.perf_counter() - t0
     ref_mean, ref_ripple = sb.output_figures(ref, 1.0)
     disc_json = json.loads(subprocess.run([cli, "example", "bridge", "--method", "trap", "--json"],
                                           check=True, capture_output=True, text=True).stdout)
     disc_err = abs(disc_json["output_mean_V"] - ref_mean) / ref_mean
-    print(f"Reference (Radau rtol 1e-8): mean {ref_mean:.5f} V, ripple {ref_ripple:.5f} V\n")
+    print(f"Reference (Radau rtol 1e-6, {ref_wall:.0f} s): mean {ref_mean:.5f} V, "
+          f"ripple {ref_ripple:.5f} V\n")
     print("| solver | rtol | wall s | mean V | error vs reference |")
     print("|---|---|---|---|---|")
     print(f"| libdisc trap | 1e-3 | {walls.get('trap', float('nan')):.3f} | "
           f"{disc_json['output_mean_V']:.5f} | {disc_err:.2e} |")
     best = None
-    for rtol in (1e-3, 1e-4, 1e-5):
+    for rtol in (1e-3, 1e-4):
         t0 = time.perf_counter()
         sol = sb.solve(1.0, rtol=rtol, atol=rtol * 1e-3)
         wall = time.perf_counter() - t0

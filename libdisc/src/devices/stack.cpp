@@ -234,7 +234,9 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     s.i[p.kk] -= st.is;
     s.i[p.j] += st.ib + st.it - st.is;
     s.q[p.j] += st.q;
-    s.i[p.t] -= st.it;
+    // Without a trap branch its node is pinned to zero so the matrix stays regular.
+    const bool trap = p.k.ct > 0.0;
+    s.i[p.t] += trap ? -st.it : ut;
     s.q[p.t] += p.k.ct * ut;
     s.i[p.th] += gth * th - st.p;
     s.q[p.th] += p.k.cth * th;
@@ -264,7 +266,7 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     s.G[p.sJf] += st.dIbDf;
     s.C[p.sJj] += st.c;
     s.G[p.sTj] -= p.k.gt;
-    s.G[p.sTt] += p.k.gt;
+    s.G[p.sTt] += trap ? p.k.gt : 1.0;
     s.C[p.sTt] += p.k.ct;
     s.G[p.sHa] -= st.dPdVt * inv;
     s.G[p.sHk] += st.dPdVt * inv;
