@@ -34,6 +34,8 @@ void DiodeParams::validate() const {
   detail::requirePositive("diode", "breakdown current", ibv, "A");
   detail::requirePositive("diode", "band gap", eg, "eV");
   detail::requirePositive("diode", "reference temperature", tnom, "K");
+  detail::requireNonNegative("diode", "thermal resistance", rth, "K/W");
+  detail::requirePositive("diode", "heat capacity", cth, "J/K");
   detail::requireNonNegative("diode", "temperature", temperature, "K");
 }
 
@@ -57,41 +59,60 @@ void Diode::prepare(const Circuit& c) {
   derive();
 }
 
-void Diode::derive() {
-  const double t = p_.temperature > 0.0 ? p_.temperature : ambient_;
-  const double vt = constants::thermalVoltage(t);
-  nvt_ = p_.n * vt;
+void Diode::derive() { fixed_ = scaleAt(p_.temperature > 0.0 ? p_.temperature : ambient_); }
+
+Diode::Scale Diode::scaleAt(double t) const {
+  Scale sc;
+  sc.t = t;
+  sc.nvt = p_.n * constants::thermalVoltage(t);
   const double ratio = t / p_.tnom;
-  isT_ = p_.is * std::pow(ratio, p_.xti / p_.n) * std::exp((ratio - 1.0) * p_.eg / nvt_);
-  vcrit_ = nvt_ * std::log(nvt_ / (std::numbers::sqrt2 * isT_));
-  vexp_ = nvt_ * std::log(kExpLimitCurrent / isT_ + 1.0);
+  // Is(T) = Is (T/Tnom)^(xti/n) exp((T/Tnom - 1) Eg / (n kT/q)).
+  sc.is = p_.is * std::pow(ratio, p_.xti / p_.n) * std::exp((ratio - 1.0) * p_.eg / sc.nvt);
+  sc.dLnIsDT = p_.xti / (p_.n * t) + p_.eg / (p_.n * constants::kBoltzmannEv * t * t);
+  sc.vcrit = sc.nvt * std::log(sc.nvt / (std::numbers::sqrt2 * sc.is));
+  sc.vexp = sc.nvt * std::log(kExpLimitCurrent / sc.is + 1.0);
+  return sc;
 }
 
 std::vector<UnknownSpec> Diode::internalUnknowns() const {
-  if (p_.rs > 0.0) return {{"j", UnknownKind::Voltage}};
-  return {};
+  std::vector<UnknownSpec> u;
+  if (p_.rs > 0.0) u.push_back({"j", UnknownKind::Voltage});
+  if (p_.rth > 0.0) u.push_back({"temp", UnknownKind::Temperature});
+  return u;
 }
 
 void Diode::bind(const Binding& b) {
   a_ = b.terminals[0];
   k_ = b.terminals[1];
   j_ = p_.rs > 0.0 ? b.internals[0] : a_;
+  th_ = p_.rth > 0.0 ? b.internals.back() : b.ground;
   cell_ = b.limitCell;
 }
 
 void Diode::declare(PatternBuilder& pb) {
   sj_.declare(pb, j_, k_);
   if (p_.rs > 0.0) ss_.declare(pb, a_, j_);
+  if (p_.rth > 0.0) {
+    pb.entry(th_, th_, sTh_);
+    pb.entry(th_, j_, sThJ_);
+    pb.entry(th_, k_, sThK_);
+    pb.entry(th_, a_, sThA_);
+    pb.entry(j_, th_, sJTh_);
+    pb.entry(k_, th_, sKTh_);
+  }
 }
 
-void Diode::junction(double v, double& id, double& gd) const {
+void Diode::junction(double v, const Scale& sc, double& id, double& gd, double& dIdT) const {
   double e, de;
-  detail::limitedExp(v, nvt_, vexp_, e, de);
-  id = isT_ * (e - 1.0) + kJunctionGmin * v;
-  gd = isT_ * de + kJunctionGmin;
+  detail::limitedExp(v, sc.nvt, sc.vexp, e, de);
+  id = sc.is * (e - 1.0) + kJunctionGmin * v;
+  gd = sc.is * de + kJunctionGmin;
+  // Is grows with T; at fixed v the exponential falls as n kT/q grows.
+  dIdT = sc.is * ((e - 1.0) * sc.dLnIsDT - de * v / sc.t);
   if (p_.bv > 0.0) {
     double eb, deb;
-    detail::limitedExp(-(v + p_.bv), nvt_, vexp_, eb, deb);
+    // Breakdown keeps its device-temperature scale: its thermal behaviour is not modelled.
+    detail::limitedExp(-(v + p_.bv), fixed_.nvt, fixed_.vexp, eb, deb);
     id -= p_.ibv * eb;
     gd += p_.ibv * deb;
   }
@@ -109,6 +130,9 @@ void Diode::charge(double v, double id, double gd, double& q, double& c) const {
 
 void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   const double vraw = ctx.x[j_] - ctx.x[k_];
+  const bool thermal = p_.rth > 0.0;
+  const Scale sc = thermal ? scaleAt(lawTemperature(ctx.x[th_])) : fixed_;
+  const double nvt_ = sc.nvt, vcrit_ = sc.vcrit;
   double v = vraw;
   if (ctx.limits) {
     double& last = ctx.limits[cell_];
@@ -125,12 +149,32 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
     }
     last = v;
   }
-  double id, gd, q, c;
-  junction(v, id, gd);
+  double id, gd, dIdT, q, c;
+  junction(v, sc, id, gd, dIdT);
   charge(v, id, gd, q, c);
   // Linearised from the limited voltage: exact when nothing was limited.
   id += gd * (vraw - v);
   q += c * (vraw - v);
+  if (thermal && lawTemperature(ctx.x[th_]) != ambient_ + ctx.x[th_]) dIdT = 0.0;  // clamped
+  if (thermal) {
+    // Heat balance: cth dT/dt = P - (T - Ta)/rth, P = static junction loss + series loss.
+    const double th = ctx.x[th_], gs = p_.rs > 0.0 ? 1.0 / p_.rs : 0.0;
+    const double vs = ctx.x[a_] - ctx.x[j_];
+    s.i[th_] += th / p_.rth - id * vraw - gs * vs * vs;
+    s.q[th_] += p_.cth * th;
+    if (s.jacobian) {
+      s.G[sTh_] += 1.0 / p_.rth - dIdT * vraw;
+      s.C[sTh_] += p_.cth;
+      const double dPdv = id + gd * vraw;
+      s.G[sThJ_] -= dPdv - 2.0 * gs * vs;
+      s.G[sThK_] += dPdv;
+      s.G[sThA_] -= 2.0 * gs * vs;
+      s.G[sJTh_] += dIdT;
+      s.G[sKTh_] -= dIdT;
+      s.C[sJTh_] += p_.tt * dIdT;  // diffusion charge follows the current
+      s.C[sKTh_] -= p_.tt * dIdT;
+    }
+  }
   s.i[j_] += id;
   s.i[k_] -= id;
   s.q[j_] += q;
@@ -148,17 +192,27 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   }
 }
 
-std::string Diode::probeUnit(int k) const { return k == 0 ? "A" : k == 1 ? "W" : "V"; }
+std::string Diode::probeUnit(int k) const {
+  static const char* units[] = {"A", "W", "V", "K"};
+  return units[k];
+}
+
+double Diode::lawTemperature(double rise) const {
+  // The laws hold between these temperatures; the clamp keeps runaways and iterates finite.
+  return std::clamp(ambient_ + rise, 200.0, 700.0);
+}
 
 double Diode::probe(int k, const EvalContext& ctx) const {
   const double v = ctx.x[j_] - ctx.x[k_];
   if (k == 2) return v;
+  if (k == 3) return p_.rth > 0.0 ? ambient_ + ctx.x[th_] : fixed_.t;
   double i;
   if (p_.rs > 0.0) {
     i = (ctx.x[a_] - ctx.x[j_]) / p_.rs;
   } else {
-    double id, gd, q, c;
-    junction(v, id, gd);
+    double id, gd, dIdT, q, c;
+    const Scale sc = p_.rth > 0.0 ? scaleAt(lawTemperature(ctx.x[th_])) : fixed_;
+    junction(v, sc, id, gd, dIdT);
     charge(v, id, gd, q, c);
     i = id + c * (ctx.xdot[j_] - ctx.xdot[k_]);
   }

@@ -22,6 +22,8 @@ struct DiodeParams {
   double xti = 3.0;           ///< saturation-current temperature exponent
   double tnom = 300.15;       ///< parameter reference temperature, K
   double temperature = 0.0;   ///< device temperature, K (0: circuit ambient)
+  double rth = 0.0;           ///< junction-to-ambient thermal resistance, K/W (0: isothermal)
+  double cth = 0.05;          ///< heat capacity when rth > 0, J/K
   void validate() const;
 };
 
@@ -41,24 +43,30 @@ class Diode : public DeviceBase<Diode> {
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
   int limitCells() const override { return 1; }
-  std::vector<std::string> probes() const override { return {"i", "p", "vj"}; }
+  std::vector<std::string> probes() const override { return {"i", "p", "vj", "temp"}; }
   std::string probeUnit(int k) const override;
   double probe(int k, const EvalContext& ctx) const override;
 
-  /// Static junction current and its derivative at junction voltage v (A, S).
-  void junction(double v, double& id, double& gd) const;
+  /// Temperature-dependent scale of the junction law.
+  struct Scale {
+    double t = 300.0, nvt = 0, is = 0, vcrit = 0, vexp = 0, dLnIsDT = 0;
+  };
+  Scale scaleAt(double kelvin) const;
+  /// Static junction current, its derivative in v and in temperature, at junction voltage v.
+  void junction(double v, const Scale& sc, double& id, double& gd, double& dIdT) const;
   /// Junction charge and capacitance at v (C, F), diffusion charge included.
   void charge(double v, double id, double gd, double& q, double& c) const;
 
  private:
   DiodeParams p_;
   double ambient_ = 298.15;
-  // Derived at the device temperature.
-  double nvt_ = 0, isT_ = 0, vcrit_ = 0, vexp_ = 0;
-  int a_ = 0, k_ = 0, j_ = 0, cell_ = 0;  // anode, cathode, junction (internal anode) unknowns
+  Scale fixed_;  // at the device temperature, when isothermal
+  int a_ = 0, k_ = 0, j_ = 0, th_ = 0, cell_ = 0;
+  int sTh_ = 0, sThJ_ = 0, sThK_ = 0, sThA_ = 0, sJTh_ = 0, sKTh_ = 0;  // anode, cathode, junction (internal anode) unknowns
   PairSlots sj_;  // junction j-k
   PairSlots ss_;  // series resistance a-j
   void derive();
+  double lawTemperature(double rise) const;
 };
 
 }  // namespace disc
