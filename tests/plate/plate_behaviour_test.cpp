@@ -217,3 +217,109 @@ TEST_CASE("Self-heating turns the forward curve back above the energy-balance cu
   CHECK(forwardVoltage(t, 1.2, ta) < simBestV);  // dV/dI < 0 beyond the turnover
   CHECK(bestI / t.ratedCurrent() > 2.0);
 }
+
+namespace {
+
+/// Area of the I-V loop traced over the last of `cycles` periods of a sine sweep through 50 ohm.
+template <class AddDevice>
+double loopArea(double frequency, double amplitude, AddDevice add, int cycles = 4) {
+  Circuit c;
+  c.emplace<VoltageSource>("V1", c.node("s"), kGround, Waveform::sine(amplitude, frequency));
+  c.emplace<Resistor>("R1", c.node("s"), c.node("a"), 50.0);
+  add(c);
+  TransientOptions o;
+  o.stop = cycles / frequency;
+  o.start = Start::Cold;
+  o.maxStep = 1.0 / (frequency * 2000.0);
+  o.tol.reltol = 1e-5;
+  o.record = {"v:a", "i:X1"};
+  const Result r = transient(c, o);
+  const auto& t = r.time();
+  const auto& v = r["v:a"];
+  const auto& i = r["i:X1"];
+  double area = 0.0;
+  for (std::size_t k = 1; k < t.size(); ++k)
+    if (t[k - 1] >= o.stop - 1.0 / frequency) area += 0.5 * (i[k] + i[k - 1]) * (v[k] - v[k - 1]);
+  return std::abs(area);  // W/Hz: the energy the loop encloses per cycle, J
+}
+
+}  // namespace
+
+TEST_CASE("Mains-frequency sweeps trace open loops that shrink when the sweep slows",
+          "[plate][behaviour]") {
+  // Barrier capacitance splits the reverse branch by about omega C V (field notes section 4,
+  // derived): the loop area grows with frequency and with capacitance; a silicon diode's
+  // picofarads leave no visible loop.
+  const PlateType& se = builtin("se-25mm-square");
+  auto plate = [](const PlateType& t) {
+    return [t](Circuit& c) { c.emplace<Stack>("X1", c.node("a"), kGround, t, StackOptions{}); };
+  };
+  const double a50 = loopArea(50.0, 10.0, plate(se));
+  const double a5 = loopArea(5.0, 10.0, plate(se));
+  PlateType bigC = se;
+  bigC.set("c0_F_per_cm2", 2.0 * se.physics.c0Area);
+  const double a50big = loopArea(50.0, 10.0, plate(bigC));
+  const double silicon = loopArea(50.0, 10.0, [](Circuit& c) {
+    c.emplace<Diode>("X1", c.node("a"), kGround, DiodeParams{});
+  });
+  INFO("loop areas: 50 Hz " << a50 << ", 5 Hz " << a5 << ", 50 Hz with 2 C0 " << a50big
+                            << ", silicon " << silicon << " J");
+  CHECK(a50 > 2.0 * a5);
+  CHECK(a50big > 1.3 * a50);
+  CHECK(silicon < 0.02 * a50);
+}
+
+namespace {
+
+/// Current imbalance (I1 - I2) / mean of two paralleled parts carrying `total` between them.
+template <class AddPair>
+double imbalance(double total, AddPair add) {
+  Circuit c;
+  c.emplace<CurrentSource>("I1", kGround, c.node("a"), Waveform::dc(total));
+  add(c);
+  OperatingPointOptions o;
+  o.tol.reltol = 1e-9;
+  o.record = {"i:X1", "i:X2"};
+  const Result r = operatingPoint(c, o);
+  const double i1 = r["i:X1"][0], i2 = r["i:X2"][0];
+  return (i1 - i2) / (0.5 * (i1 + i2));
+}
+
+}  // namespace
+
+TEST_CASE("Paralleled selenium arms share current far better than silicon diodes",
+          "[plate][behaviour]") {
+  // Same 50 mV forward mismatch at rated current: imbalance about dV / (I r_d), about 15 % for
+  // selenium at rated density against 55 % for 1 A silicon diodes (field notes section 6,
+  // derived). Self-heating widens silicon's imbalance more than selenium's.
+  const PlateType& se = builtin("se-25mm-square");
+  PlateType seHigh = se;
+  seHigh.set("rs_ohm_cm2", se.physics.rsArea + 0.05 / se.ratedCurrent() * se.physics.areaCm2);
+  auto selenium = [&](double cooling) {
+    StackOptions o;
+    o.cooling = cooling;
+    return imbalance(2.0 * se.ratedCurrent(), [&](Circuit& c) {
+      c.emplace<Stack>("X1", c.node("a"), kGround, se, o);
+      c.emplace<Stack>("X2", c.node("a"), kGround, seHigh, o);
+    });
+  };
+  auto silicon = [&](double rth) {
+    DiodeParams d1;
+    d1.rth = rth;
+    DiodeParams d2 = d1;
+    d2.is = d1.is * std::exp(-0.05 / (d1.n * constants::thermalVoltage(298.15)));
+    return imbalance(2.0, [&](Circuit& c) {
+      c.emplace<Diode>("X1", c.node("a"), kGround, d1);
+      c.emplace<Diode>("X2", c.node("a"), kGround, d2);
+    });
+  };
+  const double seCold = selenium(1e4), seHot = selenium(1.0);
+  // A 1 A axial diode in free air: about 50 K/W junction to ambient (from memory).
+  const double siCold = silicon(0.0), siHot = silicon(50.0);
+  INFO("selenium " << seCold << " isothermal, " << seHot << " self-heated; silicon " << siCold
+                   << " isothermal, " << siHot << " self-heated");
+  CHECK(seCold == Approx(0.15).margin(0.07));
+  CHECK(siCold == Approx(0.55).margin(0.2));
+  CHECK(siCold > 2.5 * seCold);
+  CHECK(siHot - siCold > seHot - seCold);
+}
