@@ -7,6 +7,7 @@
 
 #include "disc/circuit.hpp"
 #include "disc/devices/diode.hpp"
+#include "disc/devices/stack.hpp"
 #include "disc/devices/transformer.hpp"
 
 namespace disc::reference {
@@ -50,6 +51,26 @@ struct ShockleyBridge {
   double load = 50.0;          ///< ohm
 };
 Circuit shockleyBridge(const ShockleyBridge& spec = {});
+
+/// A selenium bridge supply: mains transformer, four stacks of 5 plates (se-25mm-square),
+/// reservoir capacitor and load, a valve-radio class 75 V, 0.15 A supply. Nodes: line, sa, sb,
+/// out; devices: MAINS, T1, SR1..SR4, C1, RL.
+struct SeleniumBridge {
+  double mainsRms = 230.0;       ///< V
+  double frequency = 50.0;       ///< Hz
+  double secondaryRms = 60.0;    ///< V
+  std::string plateType = "se-25mm-square";
+  StackOptions stack = defaultStack();
+  double reservoir = 100e-6;     ///< F
+  double load = 500.0;           ///< ohm
+  static StackOptions defaultStack();
+};
+Circuit seleniumBridge(const SeleniumBridge& spec = {});
+
+/// Adds the four arms of a bridge as stacks named <name>.1 .. <name>.4 between the AC inputs
+/// ac1, ac2 and the DC outputs plus (+) and minus (-).
+void addBridgeStacks(Circuit& c, const std::string& name, NodeId ac1, NodeId ac2, NodeId plus,
+                     NodeId minus, const PlateType& type, const StackOptions& options);
 
 /// `count` silicon diodes in series (each with its internal series-resistance node) from a
 /// sine source into a load; source amplitude and load scale with count.

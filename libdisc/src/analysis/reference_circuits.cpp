@@ -7,6 +7,7 @@
 #include "disc/devices/resistor.hpp"
 #include "disc/devices/sources.hpp"
 #include "disc/error.hpp"
+#include "disc/plate_type.hpp"
 
 namespace disc::reference {
 
@@ -86,6 +87,38 @@ Circuit shockleyBridge(const ShockleyBridge& s) {
   return c;
 }
 
+StackOptions SeleniumBridge::defaultStack() {
+  StackOptions o;
+  o.plates = 5;
+  return o;
+}
+
+void addBridgeStacks(Circuit& c, const std::string& name, NodeId ac1, NodeId ac2, NodeId plus,
+                     NodeId minus, const PlateType& type, const StackOptions& options) {
+  // Forward current runs anode -> cathode; the cathode end is the + DC side.
+  c.emplace<Stack>(name + ".1", ac1, plus, type, options);
+  c.emplace<Stack>(name + ".2", ac2, plus, type, options);
+  c.emplace<Stack>(name + ".3", minus, ac1, type, options);
+  c.emplace<Stack>(name + ".4", minus, ac2, type, options);
+}
+
+Circuit seleniumBridge(const SeleniumBridge& s) {
+  Circuit c;
+  const NodeId line = c.node("line"), sa = c.node("sa"), sb = c.node("sb"), out = c.node("out");
+  c.add(std::make_unique<VoltageSource>(
+      makeMains("MAINS", line, kGround, s.mainsRms, s.frequency, 0.5, 0.0)));
+  TransformerParams t{s.mainsRms / s.secondaryRms, 10.0, 1.0, 30e-3, 2e-3, 20.0};
+  c.emplace<Transformer>("T1", line, kGround, sa, sb, t);
+  const PlateType& type = PlateLibrary::builtIn().at(s.plateType);
+  c.emplace<Stack>("SR1", sa, out, type, s.stack);
+  c.emplace<Stack>("SR2", sb, out, type, s.stack);
+  c.emplace<Stack>("SR3", kGround, sa, type, s.stack);
+  c.emplace<Stack>("SR4", kGround, sb, type, s.stack);
+  c.emplace<Capacitor>("C1", out, kGround, s.reservoir);
+  c.emplace<Resistor>("RL", out, kGround, s.load);
+  return c;
+}
+
 Circuit diodeLadder(int count) {
   if (count < 1) throw InputError("a diode ladder needs at least one diode");
   Circuit c;
@@ -102,11 +135,17 @@ Circuit diodeLadder(int count) {
   return c;
 }
 
-std::vector<std::string> names() { return {"bridge", "half-wave", "shockley-bridge", "ladder-100"}; }
+std::vector<std::string> names() {
+  return {"bridge", "selenium-bridge", "selenium-bridge-lumped", "half-wave", "shockley-bridge",
+          "ladder-100"};
+}
 
 std::string describe(const std::string& name) {
   if (name == "bridge") return "230 V 50 Hz mains, transformer, silicon bridge, 2200 uF, 18 ohm load";
   if (name == "half-wave") return "120 V 60 Hz, near-ideal diode, 100 uF parallel 500 ohm";
+  if (name == "selenium-bridge")
+    return "230 V 50 Hz mains, 60 V transformer, selenium bridge 4 x 5 plates, 100 uF, 500 ohm";
+  if (name == "selenium-bridge-lumped") return "the selenium bridge with lumped stacks";
   if (name == "shockley-bridge") return "20 V 50 Hz sine, Shockley-diode bridge, 1000 uF, 50 ohm";
   if (const int n = ladderCount(name))
     return fmt::format("{} silicon diodes in series into a resistor, 50 Hz (any ladder-N)", n);
@@ -116,10 +155,16 @@ std::string describe(const std::string& name) {
 Circuit build(const std::string& name) {
   if (const int n = ladderCount(name)) return diodeLadder(n);
   if (name == "bridge") return bridgeSupply();
+  if (name == "selenium-bridge") return seleniumBridge();
+  if (name == "selenium-bridge-lumped") {
+    SeleniumBridge s;
+    s.stack.mode = StackMode::Lumped;
+    return seleniumBridge(s);
+  }
   if (name == "half-wave") return halfWaveRc();
   if (name == "shockley-bridge") return shockleyBridge();
   throw InputError(fmt::format("no reference circuit named '{}'; try one of: bridge, half-wave, "
-                               "shockley-bridge, ladder-N (N diodes)",
+                               "selenium-bridge, selenium-bridge-lumped, shockley-bridge, ladder-N (N diodes)",
                                name));
 }
 

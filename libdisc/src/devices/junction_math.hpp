@@ -40,7 +40,8 @@ inline void depletionCharge(double v, double cj0, double vj, double m, double fc
                             double& c) {
   if (v < fc * vj) {
     const double s = 1.0 - v / vj;
-    const double sm = std::pow(s, -m);  // s^(1-m) = s * s^-m: one pow instead of two
+    // s^(1-m) = s * s^-m: one power instead of two, and a square root for abrupt barriers.
+    const double sm = m == 0.5 ? 1.0 / std::sqrt(s) : std::pow(s, -m);
     q = cj0 * vj / (1.0 - m) * (1.0 - s * sm);
     c = cj0 * sm;
   } else {

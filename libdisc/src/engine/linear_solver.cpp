@@ -8,17 +8,23 @@
 
 namespace disc::detail {
 
-void LinearSolver::factor(const System& sys) {
+bool Klu::refactorize(const Eigen::SparseMatrix<double>& m) {
+  if (!m_numeric || !m_symbolic) return false;
+  const int ok = klu_refactor(const_cast<int*>(m.outerIndexPtr()), const_cast<int*>(m.innerIndexPtr()),
+                              const_cast<double*>(m.valuePtr()), m_symbolic, m_numeric, &m_common);
+  return ok != 0 && m_common.status == KLU_OK;
+}
+
+double Klu::rcond() {
+  if (!m_numeric || !m_symbolic) return 0.0;
+  klu_rcond(m_symbolic, m_numeric, &m_common);
+  return m_common.rcond;
+}
+
+void LinearSolver::fullFactor(const System& sys) {
   const auto& J = sys.jacobian();
-  if (!analyzed_) {
-    klu_.analyzePattern(J);
-    if (klu_.info() != Eigen::Success)
-      throw SingularCircuitError("the circuit matrix could not be analysed (structurally singular): "
-                                 "look for a floating node or an unconnected device",
-                                 "");
-    analyzed_ = true;
-  }
   klu_.factorize(J);
+  ++full_;
   const auto& common = klu_.kluCommon();
   if (klu_.info() != Eigen::Success || common.status == KLU_SINGULAR) {
     const int col = common.singular_col >= 0 && common.singular_col < sys.size()
@@ -31,6 +37,25 @@ void LinearSolver::factor(const System& sys) {
                     where),
         col >= 0 ? sys.unknownName(col) : "");
   }
+  rcondFull_ = klu_.rcond();
+}
+
+void LinearSolver::factor(const System& sys) {
+  const auto& J = sys.jacobian();
+  if (!analyzed_) {
+    klu_.analyzePattern(J);
+    if (klu_.info() != Eigen::Success)
+      throw SingularCircuitError("the circuit matrix could not be analysed (structurally singular): "
+                                 "look for a floating node or an unconnected device",
+                                 "");
+    analyzed_ = true;
+    fullFactor(sys);
+    return;
+  }
+  // Reuse the pivot order while the factors stay about as well conditioned as when the pivots
+  // were chosen; when a diode switching changes the magnitudes, search pivots again.
+  if (klu_.hasNumeric() && klu_.refactorize(J) && klu_.rcond() > 1e-3 * rcondFull_) return;
+  fullFactor(sys);
 }
 
 void LinearSolver::solve(double* rhs, int n) {

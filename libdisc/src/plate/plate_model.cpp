@@ -137,7 +137,8 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   dIbDf += gArr * dDdF * uj;
 
   // Soft breakdown.
-  if (k.bdI0 > 0.0) {
+  // Below 40 slopes from breakdown the term is under 1e-17 of its scale: skip the exponential.
+  if (k.bdI0 > 0.0 && -uj - k.bdV > -40.0 * k.bdSlope) {
     double eb2, deb2;
     limitedExp(-uj - k.bdV, k.bdSlope, 50.0 * k.bdSlope, eb2, deb2);
     ib -= k.bdI0 * eb2;
