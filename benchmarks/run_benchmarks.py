@@ -85,34 +85,62 @@ def main():
 
     if args.quick:
         return
-    print("\n## SciPy solve_ivp (Radau) on the same bridge supply\n")
-    import scipy_bridge as sb
-    t0 = time.perf_counter()
-    ref = sb.solve(1.0, rtol=1e-6, atol=1e-9)
-    ref_wall = time.perf_counter() - t0
-    ref_mean, ref_ripple = sb.output_figures(ref, 1.0)
-    disc_json = json.loads(subprocess.run([cli, "example", "bridge", "--method", "trap", "--json"],
-                                          check=True, capture_output=True, text=True).stdout)
-    disc_err = abs(disc_json["output_mean_V"] - ref_mean) / ref_mean
-    print(f"Reference (Radau rtol 1e-6, {ref_wall:.0f} s): mean {ref_mean:.5f} V, "
-          f"ripple {ref_ripple:.5f} V\n")
-    print("| solver | rtol | wall s | mean V | error vs reference |")
-    print("|---|---|---|---|---|")
-    print(f"| libdisc trap | 1e-3 | {walls.get('trap', float('nan')):.3f} | "
-          f"{disc_json['output_mean_V']:.5f} | {disc_err:.2e} |")
-    best = None
-    for rtol in (1e-3, 1e-4):
+    scipy_comparison(cli)
+
+
+def disc_figures(cli, name, method, reltol, stop=1.0):
+    out = subprocess.run([cli, "example", name, "--method", method, "--reltol", str(reltol),
+                          "--stop", str(stop), "--json"], check=True, capture_output=True,
+                         text=True).stdout
+    return json.loads(out)
+
+
+def scipy_comparison(cli):
+    """libdisc against SciPy's Radau on the Shockley-diode bridge, 1 s, at matched accuracy.
+
+    The transformer bridge with junction capacitance behind series resistance (time constants
+    near a nanosecond) is out of SciPy's reach here: Radau needed over ten minutes for its first
+    20 ms, so the ratio is measured on the bridge that both integrate in reasonable time.
+    """
+    sys.path.insert(0, os.path.join(HERE, "..", "tests", "python"))
+    import numpy as np
+    from scipy.integrate import solve_ivp
+    import test_scipy_bridge as ref
+
+    stop = 1.0
+
+    def radau(rtol, atol):
         t0 = time.perf_counter()
-        sol = sb.solve(1.0, rtol=rtol, atol=rtol * 1e-3)
+        sol = solve_ivp(ref.rhs, (0.0, stop), [0.0, 0.0, 0.0], method="Radau", jac=ref.jac,
+                        rtol=rtol, atol=atol, dense_output=True)
         wall = time.perf_counter() - t0
-        mean, _ = sb.output_figures(sol, 1.0)
-        err = abs(mean - ref_mean) / ref_mean
-        print(f"| SciPy Radau | {rtol:g} | {wall:.2f} | {mean:.5f} | {err:.2e} |")
-        if best is None and err <= max(disc_err, 1e-4):
-            best = wall
-    if best is not None and "trap" in walls:
-        print(f"\nAt matched accuracy (first SciPy tolerance at least as accurate as libdisc): "
-              f"libdisc is {best / walls['trap']:.0f} times faster.")
+        t = np.linspace(stop - 1 / ref.FREQ, stop, 40001)
+        vo = sol.sol(t)[2]
+        return np.trapz(vo, t) / (t[-1] - t[0]), wall
+
+    print("\n## libdisc against SciPy solve_ivp (Radau), Shockley-diode bridge, 1 s\n")
+    ref_mean, ref_wall = radau(1e-10, 1e-12)
+    print(f"Reference: Radau rtol 1e-10 ({ref_wall:.1f} s): mean output {ref_mean:.6f} V\n")
+    print("| solver | tolerance | wall s | mean V | relative error |")
+    print("|---|---|---|---|---|")
+    rows = []
+    for reltol in (1e-3, 1e-4):
+        f = disc_figures(cli, "shockley-bridge", "trap", reltol)
+        err = abs(f["output_mean_V"] - ref_mean) / ref_mean
+        rows.append(("libdisc trap", reltol, f["wall_s"], f["output_mean_V"], err))
+    for rtol in (1e-3, 1e-4, 1e-5, 1e-6):
+        mean, wall = radau(rtol, rtol * 1e-3)
+        rows.append(("SciPy Radau", rtol, wall, mean, abs(mean - ref_mean) / ref_mean))
+    for r in rows:
+        print(f"| {r[0]} | {r[1]:g} | {r[2]:.4f} | {r[3]:.6f} | {r[4]:.2e} |")
+    for name, reltol, wall, _, err in rows:
+        if name != "libdisc trap":
+            continue
+        match = [r for r in rows if r[0] == "SciPy Radau" and r[4] <= err]
+        if match:
+            print(f"\nlibdisc trap at reltol {reltol:g} (error {err:.1e}) against the fastest SciPy "
+                  f"run at least as accurate ({match[0][2]:.2f} s): {match[0][2] / wall:.0f} times "
+                  "faster.")
 
 
 if __name__ == "__main__":

@@ -38,6 +38,7 @@ PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double
   const double kEv = constants::kBoltzmannEv;
   PlateConstants k;
   k.is0 = p.js0 * p.areaCm2 * jsFactor;
+  k.expLimitLog = std::log(kExpLimitCurrent / k.is0 + 1.0);
   k.n = p.ideality;
   k.phiOverK = p.barrierEv / kEv;
   k.t0 = p.t0;
@@ -116,7 +117,8 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
 
   // Forward exponential (continued linearly past a large current).
   const double nvt = k.n * constants::thermalVoltage(T);
-  const double ulimit = nvt * std::log(kExpLimitCurrent / is + 1.0);
+  // Overflow guard only: the log of the limit ratio is taken at t0 (precomputed), not at T.
+  const double ulimit = nvt * k.expLimitLog;
   double ex, dEx;
   limitedExp(uj, nvt, ulimit, ex, dEx);
   // d(ex)/dT at fixed uj: nvt grows with T, so exp(uj/nvt) falls.

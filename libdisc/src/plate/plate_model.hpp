@@ -14,6 +14,7 @@ namespace disc::detail {
 /// Per-plate constants after area scaling, spread and ageing.
 struct PlateConstants {
   double is0 = 0;         // A, saturation current at t0
+  double expLimitLog = 0; // ln(limit current / is0 + 1): where the forward exponential turns linear
   double n = 3;           // ideality
   double phiOverK = 0;    // barrier / k, K
   double t0 = 300;        // K

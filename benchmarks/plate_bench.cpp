@@ -1,0 +1,74 @@
+// Plate-model benchmarks: cost of one plate evaluation (laws, thermal and forming terms,
+// Jacobian), and one second of a 50 Hz selenium bridge per-plate against lumped.
+#include <benchmark/benchmark.h>
+
+#include <vector>
+
+#include "disc/disc.hpp"
+#include "engine/system.hpp"
+#include "plate/plate_model.hpp"
+
+namespace {
+
+void PlateLaws(benchmark::State& st) {
+  const auto k = disc::detail::makePlateConstants(
+      disc::PlateLibrary::builtIn().at("se-25mm-square"), 1.0, 1.0, 1.0, 1.0);
+  disc::detail::PlateState s;
+  double uj = -5.0;
+  for (auto _ : st) {
+    disc::detail::evaluatePlate(k, 300.0, uj + 0.1, uj, 0.01, 12.0, 0.9, s);
+    benchmark::DoNotOptimize(s);
+    uj = uj > 0.6 ? -5.0 : uj + 0.01;  // sweep reverse to forward
+  }
+  st.SetItemsProcessed(st.iterations());
+}
+BENCHMARK(PlateLaws);
+
+// Whole-device evaluation of a 100-plate stack through the engine's assembly, per plate.
+void StackEvaluatePerPlate(benchmark::State& st) {
+  disc::Circuit c;
+  disc::StackOptions o;
+  o.plates = 100;
+  o.spread = {0.2, 0.2, 0.2};
+  c.emplace<disc::Stack>("S1", c.node("a"), disc::kGround,
+                         disc::PlateLibrary::builtIn().at("se-25mm-square"), o);
+  disc::detail::System sys(c);
+  std::vector<double> x(static_cast<std::size_t>(sys.size()) + 1, 0.0), xdot(x.size(), 0.0);
+  for (int k = 0; k < sys.size(); ++k)
+    x[static_cast<std::size_t>(k)] = sys.kind(k) == disc::UnknownKind::State ? 0.9 : 0.3;
+  x[static_cast<std::size_t>(sys.unknownOfNode(c.findNode("a")))] = 80.0;
+  disc::EvalContext ctx;
+  ctx.x = x.data();
+  ctx.xdot = xdot.data();
+  for (auto _ : st) {
+    sys.evaluate(ctx, true);
+    benchmark::DoNotOptimize(sys.i.data());
+  }
+  st.SetItemsProcessed(st.iterations() * 100);
+}
+BENCHMARK(StackEvaluatePerPlate);
+
+void SeleniumBridgeOneSecond(benchmark::State& st) {
+  const bool lumped = st.range(0) == 1;
+  st.SetLabel(lumped ? "lumped" : "per-plate");
+  disc::RunStats stats;
+  for (auto _ : st) {
+    disc::reference::SeleniumBridge spec;
+    spec.stack.mode = lumped ? disc::StackMode::Lumped : disc::StackMode::PerPlate;
+    disc::Circuit c = disc::reference::seleniumBridge(spec);
+    disc::TransientOptions o;
+    o.stop = 1.0;
+    o.method = disc::Method::Bdf2;
+    o.start = disc::Start::Cold;
+    o.record = {"v:out"};
+    const disc::Result r = disc::transient(c, o);
+    benchmark::DoNotOptimize(r["v:out"].back());
+    stats = r.stats();
+  }
+  st.counters["accepted"] = static_cast<double>(stats.acceptedSteps);
+  st.counters["newton"] = static_cast<double>(stats.newtonIterations);
+  st.counters["unknowns"] = stats.unknowns;
+}
+BENCHMARK(SeleniumBridgeOneSecond)->Arg(0)->Arg(1)->Unit(benchmark::kMillisecond);
+
+}  // namespace
