@@ -16,6 +16,7 @@
 #include "disc/diagnostics.hpp"
 #include "disc/error.hpp"
 #include "disc/measures.hpp"
+#include "disc/netlist.hpp"
 #include "disc/plate_type.hpp"
 #include "disc/reference_circuits.hpp"
 #include "disc/result.hpp"

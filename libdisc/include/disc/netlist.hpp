@@ -1,0 +1,71 @@
+// The netlist language: a supply described in a text file (docs/netlist.md).
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "disc/analysis.hpp"
+#include "disc/circuit.hpp"
+#include "disc/error.hpp"
+#include "disc/plate_type.hpp"
+
+namespace disc {
+
+/// Where something stands in a netlist file (1-based line and column).
+struct SourceLocation {
+  std::string file;
+  int line = 0;
+  int column = 0;
+};
+
+/// One problem found in a netlist.
+struct Diagnostic {
+  SourceLocation where;
+  std::string message;
+  std::string lineText;  ///< the offending source line, for the caret display
+  /// "file:line:col: error: message", the line, and a caret under the fault.
+  std::string format() const;
+};
+
+/// A netlist with errors; what() lists every diagnostic in the file:line:col format.
+class NetlistError : public InputError {
+ public:
+  explicit NetlistError(std::vector<Diagnostic> diagnostics);
+  const std::vector<Diagnostic>& diagnostics() const { return diagnostics_; }
+
+ private:
+  std::vector<Diagnostic> diagnostics_;
+};
+
+/// An analysis requested by a `run` statement.
+struct AnalysisRequest {
+  enum class Kind { OperatingPoint, Transient } kind = Kind::Transient;
+  TransientOptions transient;  ///< for Kind::Transient (stop, method, start, max step, reltol)
+  SourceLocation where;
+};
+
+/// The supply's DC output: the node pair and its load element.
+struct OutputSpec {
+  std::string positive, negative, load;
+  enum class LoadKind { Auto, Capacitive, Resistive } kind = LoadKind::Auto;
+  bool given = false;
+};
+
+/// A parsed, validated netlist, ready to run.
+struct Netlist {
+  std::string path;   ///< the file, or a name given for text
+  std::string title;
+  Circuit circuit;
+  PlateLibrary plateTypes;  ///< built-in types plus those the file derives or uses
+  std::vector<AnalysisRequest> analyses;
+  std::vector<std::string> record;  ///< extra signals the file asks for
+  OutputSpec output;
+};
+
+/// Parses netlist text; `name` stands for the file in messages and anchors relative paths of
+/// `include` and `use` (its directory). Throws NetlistError listing every problem found.
+Netlist parseNetlist(const std::string& text, const std::string& name = "<text>");
+/// Reads and parses a .disc file.
+Netlist loadNetlist(const std::string& path);
+
+}  // namespace disc

@@ -1,0 +1,718 @@
+// Netlist statements into a circuit, analyses and an output description.
+#include <algorithm>
+#include <cmath>
+#include <fmt/format.h>
+#include <functional>
+#include <map>
+#include <numeric>
+#include <set>
+
+#include "core/text_match.hpp"
+#include "disc/devices/capacitor.hpp"
+#include "disc/devices/diode.hpp"
+#include "disc/devices/inductor.hpp"
+#include "disc/devices/resistor.hpp"
+#include "disc/devices/sources.hpp"
+#include "disc/devices/stack.hpp"
+#include "disc/devices/switch.hpp"
+#include "disc/devices/transformer.hpp"
+#include "disc/netlist.hpp"
+#include "lexer.hpp"
+#include "units.hpp"
+
+namespace disc {
+namespace detail {
+namespace {
+
+constexpr Dim kWord = static_cast<Dim>(-1);  // a parameter whose value is a word, not a number
+
+struct ParamSpec {
+  const char* name;
+  Dim dim;
+};
+
+struct KindSpec {
+  const char* kind;
+  int nodes;
+  const char* positional;  // parameter a lone positional value sets, or nullptr
+  std::vector<ParamSpec> params;
+  std::vector<const char*> shapes;  // optional shape words after the nodes (sources)
+};
+
+const std::vector<ParamSpec> kWaveParams = {
+    {"dc", Dim::Voltage},    {"amplitude", Dim::Voltage}, {"rms", Dim::Voltage},
+    {"frequency", Dim::Frequency}, {"phase", Dim::Angle}, {"offset", Dim::Voltage},
+    {"points", kWord},       {"on", Dim::Time},           {"off", Dim::Time},
+    {"resistance", Dim::Resistance}, {"inductance", Dim::Inductance}};
+
+std::vector<ParamSpec> currentWaveParams() {
+  std::vector<ParamSpec> p;
+  for (auto s : kWaveParams) {
+    if (std::string(s.name) == "resistance" || std::string(s.name) == "inductance") continue;
+    if (s.dim == Dim::Voltage) s.dim = Dim::Current;
+    p.push_back(s);
+  }
+  return p;
+}
+
+const std::vector<KindSpec>& kinds() {
+  static const std::vector<KindSpec> k = {
+      {"resistor", 2, "resistance", {{"resistance", Dim::Resistance}}, {}},
+      {"capacitor", 2, "capacitance", {{"capacitance", Dim::Capacitance}}, {}},
+      {"inductor", 2, "inductance", {{"inductance", Dim::Inductance}, {"resistance", Dim::Resistance}}, {}},
+      {"coupling", 2, "k", {{"k", Dim::None}}, {}},
+      {"transformer", 4, nullptr,
+       {{"ratio", Dim::None}, {"r1", Dim::Resistance}, {"r2", Dim::Resistance},
+        {"leakage1", Dim::Inductance}, {"leakage2", Dim::Inductance},
+        {"magnetizing", Dim::Inductance}},
+       {}},
+      {"voltage", 2, nullptr, kWaveParams, {"dc", "sine", "points", "mains"}},
+      {"current", 2, nullptr, currentWaveParams(), {"dc", "sine", "points"}},
+      {"battery", 2, "emf", {{"emf", Dim::Voltage}, {"resistance", Dim::Resistance}}, {}},
+      {"diode", 2, nullptr,
+       {{"is", Dim::Current}, {"n", Dim::None}, {"rs", Dim::Resistance}, {"cj0", Dim::Capacitance},
+        {"vj", Dim::Voltage}, {"m", Dim::None}, {"tt", Dim::Time}, {"bv", Dim::Voltage},
+        {"ibv", Dim::Current}, {"rth", Dim::None}, {"cth", Dim::None}, {"temperature", Dim::Temperature}},
+       {}},
+      {"stack", 2, nullptr,
+       {{"type", kWord}, {"plates", Dim::None}, {"parallel", Dim::None}, {"mode", kWord},
+        {"spread", Dim::None}, {"spread-js", Dim::None}, {"spread-rs", Dim::None},
+        {"spread-gsh", Dim::None}, {"seed", Dim::None}, {"forming", Dim::None},
+        {"stored-years", Dim::None}, {"hours", Dim::None}, {"age-temp", Dim::Temperature},
+        {"cooling", Dim::None}},
+       {}},
+      {"switch", 2, nullptr,
+       {{"close", Dim::Time}, {"open", Dim::Time}, {"ron", Dim::Resistance}, {"roff", Dim::Resistance}},
+       {}},
+  };
+  return k;
+}
+
+const KindSpec* kindOf(const std::string& word) {
+  for (const auto& k : kinds())
+    if (word == k.kind) return &k;
+  return nullptr;
+}
+
+std::vector<std::string> statementWords() {
+  std::vector<std::string> w = {"title", "ambient", "plate-type", "use", "include", "output",
+                                "record", "run"};
+  for (const auto& k : kinds()) w.emplace_back(k.kind);
+  return w;
+}
+
+/// Parameters of one element statement after checking.
+struct Params {
+  std::map<std::string, double> num;
+  std::map<std::string, std::string> word;
+  std::map<std::string, SourceLocation> where;
+  bool has(const std::string& k) const { return num.count(k) || word.count(k); }
+  double get(const std::string& k, double fallback) const {
+    auto it = num.find(k);
+    return it == num.end() ? fallback : it->second;
+  }
+};
+
+/// An out-of-range value, reported at the parameter's own position.
+struct ParamError {
+  std::string param, message;
+};
+
+int wholeNumber(const Params& p, const std::string& key, int fallback, int lo) {
+  if (!p.num.count(key)) return fallback;
+  const double v = p.num.at(key);
+  if (v != std::floor(v) || v < lo || v > 1e9)
+    throw ParamError{key, fmt::format("{} must be a whole number of at least {}, got {}", key, lo, v)};
+  return static_cast<int>(v);
+}
+
+Waveform waveformOf(const Params& p, const std::string& shape, bool current) {
+  const char* unit = current ? "A" : "V";
+  Waveform w = Waveform::dc(0.0);
+  const bool sine = shape == "sine" || shape == "mains" || p.has("amplitude") || p.has("rms");
+  if (shape == "points" || p.word.count("points")) {
+    if (!p.word.count("points"))
+      throw ParamError{"points", "a points waveform needs points=\"t1 v1, t2 v2, ...\""};
+    std::vector<std::pair<double, double>> pts;
+    std::string list = p.word.at("points");
+    std::size_t start = 0;
+    while (start <= list.size()) {
+      const std::size_t comma = list.find(',', start);
+      std::string pair = list.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+      std::vector<std::string> parts;
+      std::size_t a = 0;
+      while (a < pair.size()) {
+        while (a < pair.size() && pair[a] == ' ') ++a;
+        std::size_t b = a;
+        while (b < pair.size() && pair[b] != ' ') ++b;
+        if (b > a) parts.push_back(pair.substr(a, b - a));
+        a = b;
+      }
+      if (parts.size() != 2)
+        throw ParamError{"points", fmt::format("each point is 'time value', got '{}'", pair)};
+      std::string err;
+      const auto t = parseQuantity(parts[0], Dim::Time, err);
+      if (!t) throw ParamError{"points", err};
+      const auto v = parseQuantity(parts[1], current ? Dim::Current : Dim::Voltage, err);
+      if (!v) throw ParamError{"points", err};
+      pts.emplace_back(*t, *v);
+      if (comma == std::string::npos) break;
+      start = comma + 1;
+    }
+    try {
+      w = Waveform::points(std::move(pts));
+    } catch (const InputError& e) {
+      throw ParamError{"points", e.what()};
+    }
+  } else if (sine) {
+    if (p.has("amplitude") == p.has("rms"))
+      throw ParamError{"rms", fmt::format("a sine needs either amplitude= or rms= (in {})", unit)};
+    if (!p.has("frequency")) throw ParamError{"frequency", "a sine needs frequency= (in Hz)"};
+    const double phase = p.get("phase", 0.0) * 3.141592653589793 / 180.0;
+    const double f = p.get("frequency", 0.0);
+    if (!(f > 0.0)) throw ParamError{"frequency", fmt::format("frequency must be positive, got {} Hz", f)};
+    w = p.has("rms") ? Waveform::sineRms(p.get("rms", 0), f, phase, p.get("offset", 0))
+                     : Waveform::sine(p.get("amplitude", 0), f, phase, p.get("offset", 0));
+  } else {
+    if (!p.has("dc")) throw ParamError{"dc", fmt::format("give the waveform: dc=, sine (amplitude= or rms=, frequency=), points= or mains")};
+    w = Waveform::dc(p.get("dc", 0.0));
+  }
+  if (p.has("on") || p.has("off")) {
+    const double on = p.get("on", 0.0), off = p.get("off", std::numeric_limits<double>::infinity());
+    if (!(off > on)) throw ParamError{"off", "off= must come after on="};
+    w.gate(on, off);
+  }
+  return w;
+}
+
+}  // namespace
+
+/// Builds a netlist from statements, collecting every problem.
+class Builder {
+ public:
+  Builder(Netlist& nl, Diagnostics& d) : nl_(nl), diags_(d) {}
+
+  void run(const std::vector<Statement>& statements) {
+    nl_.plateTypes = PlateLibrary::builtIn();
+    for (const auto& s : statements)
+      if (isSetup(word(s))) setup(s);
+    for (const auto& s : statements)
+      if (kindOf(word(s))) element(s);
+    for (const auto& s : statements) {
+      const std::string w = word(s);
+      if (w == "output" || w == "record" || w == "run") late(s);
+      else if (!isSetup(w) && !kindOf(w)) unknownStatement(s);
+    }
+    topology();
+    if (nl_.analyses.empty()) {
+      AnalysisRequest a;
+      a.kind = AnalysisRequest::Kind::Transient;
+      a.transient.stop = 1.0;
+      a.transient.start = Start::Cold;
+      nl_.analyses.push_back(a);
+    }
+  }
+
+ private:
+  Netlist& nl_;
+  Diagnostics& diags_;
+  std::map<std::string, SourceLocation> deviceWhere_;
+  std::map<std::string, std::vector<SourceLocation>> nodeRefs_;
+
+  static std::string word(const Statement& s) {
+    return s.tokens.front().keyValue ? std::string() : s.tokens.front().text;
+  }
+  static bool isSetup(const std::string& w) {
+    return w == "title" || w == "ambient" || w == "plate-type" || w == "use";
+  }
+  void error(const SourceLocation& at, std::string msg) { diags_.error(at, std::move(msg)); }
+
+  void unknownStatement(const Statement& s) {
+    const Token& t = s.tokens.front();
+    if (t.keyValue) {
+      error(t.where, "a statement starts with a word (resistor, stack, run, ...), not a parameter");
+      return;
+    }
+    if (!t.text.empty() && t.text[0] == '.') {
+      error(t.where, fmt::format("unknown statement '{}': statements do not start with a dot{}",
+                                 t.text, didYouMean(t.text.substr(1), statementWords())));
+      return;
+    }
+    error(t.where, fmt::format("unknown statement or element kind '{}'{}", t.text,
+                               didYouMean(t.text, statementWords())));
+  }
+
+  std::optional<double> number(const std::string& text, Dim dim, const SourceLocation& at) {
+    std::string err;
+    auto v = parseQuantity(text, dim, err);
+    if (!v) error(at, err);
+    return v;
+  }
+
+  void setup(const Statement& s) {
+    const std::string w = word(s);
+    const auto& t = s.tokens;
+    if (w == "title") {
+      if (t.size() != 2 || t[1].keyValue) return error(s.where, "title takes one quoted text: title \"...\"");
+      nl_.title = t[1].text;
+    } else if (w == "ambient") {
+      if (t.size() != 2 || t[1].keyValue) return error(s.where, "ambient takes one temperature, e.g. ambient 30degC");
+      if (auto v = number(t[1].text, Dim::Temperature, t[1].where)) {
+        if (*v < 200.0 || *v > 450.0)
+          return error(t[1].where, fmt::format("ambient {} K is outside 200-450 K", *v));
+        nl_.circuit.setAmbient(*v);
+      }
+    } else if (w == "use") {
+      if (t.size() != 2 || t[1].keyValue) return error(s.where, "use takes one file name: use \"plate.json\"");
+      const std::string path = resolvePath(s.where.file, t[1].text);
+      try {
+        const PlateLibrary lib = PlateLibrary::load(path);
+        for (const auto& pt : lib.types()) nl_.plateTypes.add(pt);
+      } catch (const InputError& e) {
+        error(t[1].where, e.what());
+      }
+    } else if (w == "plate-type") {
+      if (t.size() < 3 || t[1].keyValue)
+        return error(s.where, "plate-type NAME base=TYPE key=value ...");
+      std::string base;
+      std::map<std::string, double> changes;
+      std::map<std::string, SourceLocation> where;
+      for (std::size_t k = 2; k < t.size(); ++k) {
+        if (!t[k].keyValue) return error(t[k].where, fmt::format("expected key=value, got '{}'", t[k].text));
+        if (t[k].key == "base") {
+          base = t[k].value;
+          continue;
+        }
+        if (auto v = number(t[k].value, Dim::None, t[k].valueWhere)) {
+          changes[t[k].key] = *v;
+          where[t[k].key] = t[k].where;
+        }
+      }
+      if (base.empty()) return error(s.where, "plate-type needs base=TYPE (a built-in or earlier type)");
+      const PlateType* b = nl_.plateTypes.find(base);
+      if (!b) return error(s.where, fmt::format("unknown plate type '{}'{}", base, didYouMean(base, nl_.plateTypes.names())));
+      PlateType derived = *b;
+      derived.name = t[1].text;
+      derived.description = fmt::format("derived from {}", base);
+      for (const auto& [key, value] : changes) {
+        try {
+          derived.set(key, value);
+          derived.notes[key] = fmt::format("set in {}", s.where.file);
+        } catch (const InputError& e) {
+          error(where[key], e.what());
+        }
+      }
+      try {
+        nl_.plateTypes.add(derived);
+      } catch (const InputError& e) {
+        error(s.where, e.what());
+      }
+    }
+  }
+
+  void element(const Statement& s) {
+    const KindSpec& spec = *kindOf(word(s));
+    const auto& t = s.tokens;
+    if (t.size() < 2 || t[1].keyValue) return error(s.where, fmt::format("a {} needs a name after the kind", spec.kind));
+    const std::string name = t[1].text;
+    std::vector<const Token*> positional;
+    Params p;
+    std::string shape;
+    bool ok = true;
+    for (std::size_t k = 2; k < t.size(); ++k) {
+      const Token& tok = t[k];
+      if (!tok.keyValue) {
+        positional.push_back(&tok);
+        continue;
+      }
+      const auto it = std::find_if(spec.params.begin(), spec.params.end(),
+                                   [&](const ParamSpec& ps) { return tok.key == ps.name; });
+      if (it == spec.params.end()) {
+        std::vector<std::string> names;
+        for (const auto& ps : spec.params) names.emplace_back(ps.name);
+        error(tok.where, fmt::format("a {} has no parameter '{}'{}", spec.kind, tok.key, didYouMean(tok.key, names)));
+        ok = false;
+        continue;
+      }
+      if (p.has(tok.key)) {
+        error(tok.where, fmt::format("parameter '{}' given twice", tok.key));
+        ok = false;
+        continue;
+      }
+      p.where[tok.key] = tok.where;
+      if (it->dim == kWord) {
+        p.word[tok.key] = tok.value;
+      } else if (auto v = number(tok.value, it->dim, tok.valueWhere)) {
+        p.num[tok.key] = *v;
+      } else {
+        ok = false;
+      }
+    }
+    // Shape words of sources sit after the nodes.
+    if (!spec.shapes.empty() && static_cast<int>(positional.size()) > spec.nodes) {
+      const Token* last = positional[static_cast<std::size_t>(spec.nodes)];
+      if (std::find_if(spec.shapes.begin(), spec.shapes.end(),
+                       [&](const char* w) { return last->text == w; }) != spec.shapes.end()) {
+        shape = last->text;
+        positional.erase(positional.begin() + spec.nodes);
+      }
+    }
+    const int nodeCount = spec.nodes;
+    if (static_cast<int>(positional.size()) < nodeCount) {
+      error(positional.empty() ? t[1].where : positional.back()->where,
+            fmt::format("a {} needs {} {}; found {}", spec.kind, nodeCount,
+                        std::string(spec.kind) == "coupling" ? "inductor names" : "nodes",
+                        positional.size()));
+      return;
+    }
+    if (static_cast<int>(positional.size()) > nodeCount + (spec.positional ? 1 : 0)) {
+      const Token* extra = positional[static_cast<std::size_t>(nodeCount + (spec.positional ? 1 : 0))];
+      error(extra->where, fmt::format("too many nodes or values for a {}: '{}' is extra", spec.kind, extra->text));
+      return;
+    }
+    if (static_cast<int>(positional.size()) == nodeCount + 1) {
+      const Token* v = positional.back();
+      if (p.has(spec.positional)) {
+        error(v->where, fmt::format("{} given both as a value and as {}=", spec.positional, spec.positional));
+        return;
+      }
+      const auto ps = std::find_if(spec.params.begin(), spec.params.end(),
+                                   [&](const ParamSpec& x) { return std::string(x.name) == spec.positional; });
+      if (auto val = number(v->text, ps->dim, v->where)) {
+        p.num[spec.positional] = *val;
+        p.where[spec.positional] = v->where;
+      } else {
+        ok = false;
+      }
+      positional.pop_back();
+    }
+    if (!ok) return;
+    if (deviceWhere_.count(name)) {
+      const auto& first = deviceWhere_[name];
+      error(t[1].where, fmt::format("duplicate name '{}' (first used at {}:{})", name, first.file, first.line));
+      return;
+    }
+    std::vector<std::string> nodes;
+    for (const Token* tok : positional) nodes.push_back(tok->text);
+    try {
+      auto device = build(spec, name, nodes, shape, p, s);
+      if (!device) return;
+      nl_.circuit.add(std::move(device));
+      deviceWhere_[name] = t[1].where;
+      if (std::string(spec.kind) != "coupling")
+        for (std::size_t k = 0; k < nodes.size(); ++k)
+          if (nodes[k] != "gnd") nodeRefs_[nodes[k]].push_back(positional[k]->where);
+    } catch (const ParamError& e) {
+      error(p.where.count(e.param) ? p.where[e.param] : t[1].where, e.message);
+    } catch (const InputError& e) {
+      error(t[1].where, e.what());
+    }
+  }
+
+  std::unique_ptr<Device> build(const KindSpec& spec, const std::string& name,
+                                const std::vector<std::string>& nodes, const std::string& shape,
+                                const Params& p, const Statement& s) {
+    const std::string kind = spec.kind;
+    Circuit& c = nl_.circuit;
+    auto require = [&](const char* key, const char* what) {
+      if (!p.has(key)) throw ParamError{key, fmt::format("a {} needs {}= ({})", kind, key, what)};
+    };
+    auto positive = [&](const char* key) {
+      const double v = p.get(key, 0.0);
+      if (!(v > 0.0))
+        throw ParamError{key, fmt::format("{} must be positive, got {}", key, v)};
+      return v;
+    };
+    if (kind == "coupling") return std::make_unique<Coupling>(name, nodes[0], nodes[1], p.get("k", 0.0));
+    std::vector<NodeId> n;
+    for (const auto& node : nodes) n.push_back(c.node(node));
+    if (kind == "resistor") {
+      require("resistance", "ohm");
+      return std::make_unique<Resistor>(name, n[0], n[1], positive("resistance"));
+    }
+    if (kind == "capacitor") {
+      require("capacitance", "F");
+      return std::make_unique<Capacitor>(name, n[0], n[1], positive("capacitance"));
+    }
+    if (kind == "inductor") {
+      require("inductance", "H");
+      return std::make_unique<Inductor>(name, n[0], n[1], positive("inductance"), p.get("resistance", 0.0));
+    }
+    if (kind == "transformer") {
+      require("ratio", "primary turns / secondary turns");
+      TransformerParams tp;
+      tp.ratio = p.get("ratio", 1.0);
+      tp.r1 = p.get("r1", 0.0);
+      tp.r2 = p.get("r2", 0.0);
+      tp.leakage1 = p.get("leakage1", 0.0);
+      tp.leakage2 = p.get("leakage2", 0.0);
+      tp.magnetizing = p.get("magnetizing", tp.magnetizing);
+      return std::make_unique<Transformer>(name, n[0], n[1], n[2], n[3], tp);
+    }
+    if (kind == "voltage") {
+      Waveform w = waveformOf(p, shape, false);
+      return std::make_unique<VoltageSource>(name, n[0], n[1], std::move(w), p.get("resistance", 0.0),
+                                             p.get("inductance", 0.0));
+    }
+    if (kind == "current") return std::make_unique<CurrentSource>(name, n[0], n[1], waveformOf(p, shape, true));
+    if (kind == "battery") {
+      require("emf", "V");
+      return std::make_unique<VoltageSource>(makeBattery(name, n[0], n[1], p.get("emf", 0.0), p.get("resistance", 0.0)));
+    }
+    if (kind == "diode") {
+      DiodeParams d;
+      d.is = p.get("is", d.is);
+      d.n = p.get("n", d.n);
+      d.rs = p.get("rs", d.rs);
+      d.cj0 = p.get("cj0", d.cj0);
+      d.vj = p.get("vj", d.vj);
+      d.m = p.get("m", d.m);
+      d.tt = p.get("tt", d.tt);
+      d.bv = p.get("bv", d.bv);
+      d.ibv = p.get("ibv", d.ibv);
+      d.rth = p.get("rth", d.rth);
+      d.cth = p.get("cth", d.cth);
+      d.temperature = p.get("temperature", d.temperature);
+      return std::make_unique<Diode>(name, n[0], n[1], d);
+    }
+    if (kind == "stack") {
+      if (!p.word.count("type")) throw ParamError{"type", "a stack needs type= (see 'disc plates')"};
+      const std::string typeName = p.word.at("type");
+      const PlateType* type = nl_.plateTypes.find(typeName);
+      if (!type)
+        throw ParamError{"type", fmt::format("unknown plate type '{}'{}", typeName,
+                                             didYouMean(typeName, nl_.plateTypes.names()))};
+      StackOptions o;
+      o.plates = wholeNumber(p, "plates", 1, 1);
+      o.arms = wholeNumber(p, "parallel", 1, 1);
+      if (p.word.count("mode")) {
+        const std::string m = p.word.at("mode");
+        if (m == "per-plate") o.mode = StackMode::PerPlate;
+        else if (m == "lumped") o.mode = StackMode::Lumped;
+        else throw ParamError{"mode", fmt::format("mode is per-plate or lumped, got '{}'", m)};
+      }
+      const double spread = p.get("spread", 0.0);
+      o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread), p.get("spread-gsh", spread)};
+      o.seed = static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0));
+      o.forming = p.get("forming", 1.0);
+      o.storedYears = p.get("stored-years", 0.0);
+      o.ageHours = p.get("hours", 0.0);
+      o.ageTemperature = p.get("age-temp", 0.0);
+      o.cooling = p.get("cooling", 1.0);
+      try {
+        o.validate();
+      } catch (const InputError& e) {
+        throw ParamError{"", e.what()};
+      }
+      return std::make_unique<Stack>(name, n[0], n[1], *type, o);
+    }
+    if (kind == "switch") {
+      std::vector<std::pair<double, bool>> events;  // (time, closes)
+      if (p.has("close")) events.emplace_back(p.get("close", 0), true);
+      if (p.has("open")) events.emplace_back(p.get("open", 0), false);
+      if (events.empty()) throw ParamError{"close", "a switch needs close= or open= (a time)"};
+      std::sort(events.begin(), events.end());
+      std::vector<double> times;
+      for (const auto& e : events) times.push_back(e.first);
+      const bool closedAtStart = !events.front().second;
+      return std::make_unique<Switch>(name, n[0], n[1], closedAtStart, times, p.get("ron", 1e-3), p.get("roff", 1e9));
+    }
+    (void)s;
+    return nullptr;
+  }
+
+  void late(const Statement& s) {
+    const std::string w = word(s);
+    const auto& t = s.tokens;
+    Circuit& c = nl_.circuit;
+    auto nodeExists = [&](const std::string& n) {
+      if (n == "gnd") return true;
+      try {
+        c.findNode(n);
+        return true;
+      } catch (const InputError&) {
+        return false;
+      }
+    };
+    if (w == "output") {
+      if (t.size() < 4 || t[1].keyValue || t[2].keyValue)
+        return error(s.where, "output NODE_P NODE_N load=NAME");
+      for (int k : {1, 2})
+        if (!nodeExists(t[static_cast<std::size_t>(k)].text))
+          return error(t[static_cast<std::size_t>(k)].where, fmt::format("no node named '{}'", t[static_cast<std::size_t>(k)].text));
+      nl_.output.positive = t[1].text;
+      nl_.output.negative = t[2].text;
+      for (std::size_t k = 3; k < t.size(); ++k) {
+        if (t[k].keyValue && t[k].key == "load") {
+          if (!c.find(t[k].value)) return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
+          nl_.output.load = t[k].value;
+        } else if (t[k].keyValue && t[k].key == "kind") {
+          if (t[k].value == "capacitive") nl_.output.kind = OutputSpec::LoadKind::Capacitive;
+          else if (t[k].value == "resistive") nl_.output.kind = OutputSpec::LoadKind::Resistive;
+          else return error(t[k].valueWhere, "kind is capacitive or resistive");
+        } else {
+          return error(t[k].where, fmt::format("unexpected '{}': output takes load= and kind=", t[k].text));
+        }
+      }
+      if (nl_.output.load.empty()) return error(s.where, "output needs load=NAME (the element that is the load)");
+      nl_.output.given = true;
+    } else if (w == "record") {
+      if (t.size() < 2) return error(s.where, "record takes one or more signals: record v:out i:SR1");
+      for (std::size_t k = 1; k < t.size(); ++k) {
+        if (auto msg = checkSignal(t[k].text); !msg.empty()) error(t[k].where, msg);
+        else nl_.record.push_back(t[k].text);
+      }
+    } else if (w == "run") {
+      if (t.size() < 2 || t[1].keyValue) return error(s.where, "run operating-point, or run transient stop=TIME ...");
+      AnalysisRequest a;
+      a.where = s.where;
+      if (t[1].text == "operating-point") {
+        a.kind = AnalysisRequest::Kind::OperatingPoint;
+        if (t.size() > 2) return error(t[2].where, "run operating-point takes no parameters");
+      } else if (t[1].text == "transient") {
+        a.kind = AnalysisRequest::Kind::Transient;
+        a.transient.start = Start::Cold;
+        bool haveStop = false;
+        for (std::size_t k = 2; k < t.size(); ++k) {
+          const Token& tok = t[k];
+          if (!tok.keyValue) return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
+          if (tok.key == "stop" || tok.key == "max-step") {
+            auto v = number(tok.value, Dim::Time, tok.valueWhere);
+            if (!v) continue;
+            if (!(*v > 0.0)) {
+              error(tok.valueWhere, fmt::format("{} must be positive", tok.key));
+              continue;
+            }
+            (tok.key == "stop" ? a.transient.stop : a.transient.maxStep) = *v;
+            haveStop = haveStop || tok.key == "stop";
+          } else if (tok.key == "method") {
+            if (tok.value == "trap" || tok.value == "bdf2" || tok.value == "ida") a.transient.method = parseMethod(tok.value);
+            else error(tok.valueWhere, fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
+          } else if (tok.key == "start") {
+            if (tok.value == "cold") a.transient.start = Start::Cold;
+            else if (tok.value == "operating-point") a.transient.start = Start::OperatingPoint;
+            else error(tok.valueWhere, "start is cold or operating-point");
+          } else if (tok.key == "reltol") {
+            auto v = number(tok.value, Dim::None, tok.valueWhere);
+            if (v && (*v <= 0.0 || *v >= 0.1)) error(tok.valueWhere, "reltol must lie between 0 and 0.1");
+            else if (v) a.transient.tol.reltol = *v;
+          } else {
+            error(tok.where, fmt::format("run transient has no parameter '{}'{}", tok.key,
+                                         didYouMean(tok.key, {"stop", "max-step", "method", "start", "reltol"})));
+          }
+        }
+        if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
+      } else {
+        return error(t[1].where, fmt::format("unknown analysis '{}'{}", t[1].text,
+                                             didYouMean(t[1].text, {"operating-point", "transient"})));
+      }
+      nl_.analyses.push_back(a);
+    }
+  }
+
+  /// "" when a signal name refers to existing nodes and device quantities.
+  std::string checkSignal(const std::string& sig) {
+    const auto colon = sig.find(':');
+    if (colon == std::string::npos || colon == 0 || colon + 1 == sig.size())
+      return fmt::format("signal '{}' must be kind:target (v:node, i:element, temp:stack#3, ...)", sig);
+    const std::string kind = sig.substr(0, colon), target = sig.substr(colon + 1);
+    Circuit& c = nl_.circuit;
+    if (kind == "v") {
+      std::size_t start = 0;
+      while (true) {
+        const auto comma = target.find(',', start);
+        const std::string node = target.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+        if (node != "gnd") {
+          try {
+            c.findNode(node);
+          } catch (const InputError&) {
+            return fmt::format("signal '{}': no node named '{}'", sig, node);
+          }
+        }
+        if (comma == std::string::npos) break;
+        start = comma + 1;
+      }
+      return "";
+    }
+    const std::string deviceName = target.substr(0, target.find('#'));
+    const Device* d = c.find(deviceName);
+    if (!d) return fmt::format("signal '{}': no element named '{}'", sig, deviceName);
+    const auto probes = d->probes();
+    if (std::find(probes.begin(), probes.end(), kind) == probes.end()) {
+      std::string list;
+      for (const auto& p : probes) list += (list.empty() ? "" : ", ") + p;
+      return fmt::format("signal '{}': a {} has no quantity '{}' (it has {})", sig, d->kind(), kind, list);
+    }
+    return "";
+  }
+
+  void topology() {
+    Circuit& c = nl_.circuit;
+    // A node connected only once is a dangling end, usually a misspelt name.
+    for (const auto& [node, refs] : nodeRefs_)
+      if (refs.size() == 1)
+        error(refs.front(), fmt::format("node '{}' is connected only once (a dangling end): check its spelling", node));
+    // Floating parts and loops of voltage-defined elements, by union-find over node ids.
+    const int n = c.nodeCount();
+    std::vector<int> parent(static_cast<std::size_t>(n) + 1), forced(static_cast<std::size_t>(n) + 1);
+    std::iota(parent.begin(), parent.end(), 0);
+    std::iota(forced.begin(), forced.end(), 0);
+    auto find = [](std::vector<int>& p, int a) {
+      while (p[static_cast<std::size_t>(a)] != a) a = p[static_cast<std::size_t>(a)] = p[static_cast<std::size_t>(p[static_cast<std::size_t>(a)])];
+      return a;
+    };
+    auto id = [n](NodeId node) { return node == kGround ? n : node; };
+    for (const auto& d : c.devices()) {
+      const auto& t = d->terminals();
+      for (std::size_t k = 1; k < t.size(); ++k) {
+        const int a = find(parent, id(t[0])), b = find(parent, id(t[k]));
+        if (a != b) parent[static_cast<std::size_t>(a)] = b;
+      }
+      // Transformers join their windings magnetically, not electrically: the secondary may float.
+      if (t.size() == 4) {
+        const int a = find(parent, id(t[0])), b = find(parent, id(t[2]));
+        if (a != b) parent[static_cast<std::size_t>(a)] = b;
+      }
+      if (d->definesVoltage()) {
+        const int a = find(forced, id(t[0])), b = find(forced, id(t[1]));
+        if (a == b)
+          error(deviceWhere_[d->name()],
+                fmt::format("'{}' closes a loop of voltage sources and inductors: add a small series resistance", d->name()));
+        else
+          forced[static_cast<std::size_t>(a)] = b;
+      }
+    }
+    std::map<int, std::vector<std::string>> islands;
+    for (NodeId k = 0; k < n; ++k)
+      if (find(parent, k) != find(parent, n)) islands[find(parent, k)].push_back(c.nodeName(k));
+    for (const auto& [root, names] : islands) {
+      std::string list;
+      for (const auto& nm : names) list += (list.empty() ? "" : ", ") + nm;
+      const auto& refs = nodeRefs_[names.front()];
+      error(refs.empty() ? SourceLocation{nl_.path, 1, 1} : refs.front(),
+            fmt::format("nodes {} form a part of the circuit with no path to gnd", list));
+    }
+  }
+};
+
+}  // namespace detail
+
+Netlist parseNetlist(const std::string& text, const std::string& name) {
+  detail::Diagnostics diags;
+  std::vector<std::string> includeStack{name};
+  const auto statements = detail::lex(text, name, diags, includeStack);
+  Netlist nl;
+  nl.path = name;
+  detail::Builder(nl, diags).run(statements);
+  if (!diags.empty()) throw NetlistError(diags.list());
+  return nl;
+}
+
+Netlist loadNetlist(const std::string& path) {
+  std::string text;
+  if (!detail::readFile(path, text))
+    throw InputError(fmt::format("{}: cannot open the netlist file", path));
+  return parseNetlist(text, path);
+}
+
+}  // namespace disc

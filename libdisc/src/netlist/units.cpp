@@ -1,0 +1,152 @@
+// SI prefixes (SI Brochure, 9th ed., table 7) and unit symbols.
+#include "units.hpp"
+
+#include <cctype>
+#include <cmath>
+#include <cstdlib>
+#include <fmt/format.h>
+#include <utility>
+#include <vector>
+
+namespace disc::detail {
+namespace {
+
+struct Unit {
+  const char* symbol;
+  Dim dim;
+  bool prefixable;
+};
+
+const std::vector<Unit>& units() {
+  static const std::vector<Unit> u = {
+      {"V", Dim::Voltage, true},     {"A", Dim::Current, true},
+      {"ohm", Dim::Resistance, true}, {"\xCE\xA9", Dim::Resistance, true},  // Ω
+      {"F", Dim::Capacitance, true}, {"H", Dim::Inductance, true},
+      {"Hz", Dim::Frequency, true},  {"s", Dim::Time, true},
+      {"W", Dim::Power, true},       {"J", Dim::Energy, true},
+      {"K", Dim::Temperature, false}, {"degC", Dim::Temperature, false},
+      {"\xC2\xB0" "C", Dim::Temperature, false},  // °C
+      {"deg", Dim::Angle, false},
+  };
+  return u;
+}
+
+const std::vector<std::pair<std::string, double>>& prefixes() {
+  static const std::vector<std::pair<std::string, double>> p = {
+      {"p", 1e-12}, {"n", 1e-9}, {"u", 1e-6}, {"\xC2\xB5", 1e-6} /* µ */, {"m", 1e-3},
+      {"k", 1e3},   {"M", 1e6},  {"G", 1e9}};
+  return p;
+}
+
+const Unit* unitOf(const std::string& s) {
+  for (const auto& u : units())
+    if (s == u.symbol) return &u;
+  return nullptr;
+}
+
+}  // namespace
+
+const char* dimName(Dim d) {
+  switch (d) {
+    case Dim::None: return "a plain number";
+    case Dim::Voltage: return "a voltage";
+    case Dim::Current: return "a current";
+    case Dim::Resistance: return "a resistance";
+    case Dim::Capacitance: return "a capacitance";
+    case Dim::Inductance: return "an inductance";
+    case Dim::Frequency: return "a frequency";
+    case Dim::Time: return "a time";
+    case Dim::Power: return "a power";
+    case Dim::Energy: return "an energy";
+    case Dim::Temperature: return "a temperature";
+    case Dim::Angle: return "an angle";
+  }
+  return "?";
+}
+
+const char* dimUnit(Dim d) {
+  switch (d) {
+    case Dim::Voltage: return "V";
+    case Dim::Current: return "A";
+    case Dim::Resistance: return "ohm";
+    case Dim::Capacitance: return "F";
+    case Dim::Inductance: return "H";
+    case Dim::Frequency: return "Hz";
+    case Dim::Time: return "s";
+    case Dim::Power: return "W";
+    case Dim::Energy: return "J";
+    case Dim::Temperature: return "K or degC";
+    case Dim::Angle: return "deg";
+    default: return "";
+  }
+}
+
+std::optional<double> parseQuantity(const std::string& text, Dim dim, std::string& error) {
+  // The numeric part: [+-] digits [. digits] [e [+-] digits].
+  std::size_t k = 0;
+  if (k < text.size() && (text[k] == '+' || text[k] == '-')) ++k;
+  const std::size_t digitsStart = k;
+  while (k < text.size() && std::isdigit(static_cast<unsigned char>(text[k]))) ++k;
+  if (k < text.size() && text[k] == '.') {
+    ++k;
+    while (k < text.size() && std::isdigit(static_cast<unsigned char>(text[k]))) ++k;
+  }
+  if (k == digitsStart || (k == digitsStart + 1 && text[digitsStart] == '.')) {
+    error = fmt::format("'{}' is not a number", text);
+    return std::nullopt;
+  }
+  if (k < text.size() && (text[k] == 'e' || text[k] == 'E')) {
+    std::size_t e = k + 1;
+    if (e < text.size() && (text[e] == '+' || text[e] == '-')) ++e;
+    const std::size_t expDigits = e;
+    while (e < text.size() && std::isdigit(static_cast<unsigned char>(text[e]))) ++e;
+    if (e > expDigits) k = e;  // otherwise 'e' is not an exponent (no unit starts with e)
+  }
+  double value = std::strtod(text.substr(0, k).c_str(), nullptr);
+  const std::string suffix = text.substr(k);
+  double scale = 1.0;
+  const Unit* unit = nullptr;
+  if (!suffix.empty()) {
+    unit = unitOf(suffix);
+    if (!unit) {
+      for (const auto& [p, factor] : prefixes()) {
+        if (suffix.compare(0, p.size(), p) != 0) continue;
+        const std::string rest = suffix.substr(p.size());
+        const Unit* u = rest.empty() ? nullptr : unitOf(rest);
+        if (rest.empty() || (u && u->prefixable)) {
+          scale = factor;
+          unit = u;
+          break;
+        }
+      }
+      if (scale == 1.0 && !unit) {
+        error = fmt::format("'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
+                            "units V A ohm F H Hz s W J K degC)",
+                            text, suffix);
+        return std::nullopt;
+      }
+    }
+  }
+  if (unit && unit->dim != dim) {
+    error = fmt::format("'{}' is {}, but this parameter is {}{}", text, dimName(unit->dim),
+                        dimName(dim), dim == Dim::None ? "" : fmt::format(" ({})", dimUnit(dim)));
+    return std::nullopt;
+  }
+  value *= scale;
+  if (unit && (std::string(unit->symbol) == "degC" || std::string(unit->symbol) == "\xC2\xB0" "C"))
+    value += 273.15;
+  else if (!unit && dim == Dim::Temperature && scale == 1.0) {
+    // A bare temperature is taken as kelvin; a value below 150 is almost surely meant as degC.
+    if (value < 150.0) {
+      error = fmt::format("'{}': give a unit for temperatures ({}degC or {}K)", text, text, text);
+      return std::nullopt;
+    }
+  }
+  if (!std::isfinite(value)) {
+    error = fmt::format("'{}' is not a finite number", text);
+    return std::nullopt;
+  }
+  return value;
+}
+
+}  // namespace disc::detail
