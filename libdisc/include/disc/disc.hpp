@@ -20,5 +20,7 @@
 #include "disc/plate_type.hpp"
 #include "disc/reference_circuits.hpp"
 #include "disc/result.hpp"
+#include "disc/session.hpp"
+#include "disc/supply_report.hpp"
 #include "disc/version.hpp"
 #include "disc/waveform.hpp"

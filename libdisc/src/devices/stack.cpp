@@ -31,9 +31,10 @@ struct Stack::Plate {
 
 namespace {
 
-enum Probe { kI, kP, kV, kTemp, kForm, kIarm, kVrev, kPplate, kVj, kAge, kProbeCount };
-const char* const kProbeNames[] = {"i", "p", "v", "temp", "form", "iarm", "vrev", "pplate", "vj", "age"};
-const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", ""};
+enum Probe { kI, kP, kV, kTemp, kForm, kIarm, kVrev, kPplate, kVj, kAge, kPfwd, kPrev, kProbeCount };
+const char* const kProbeNames[] = {"i",    "p",      "v",  "temp", "form", "iarm",
+                                   "vrev", "pplate", "vj", "age",  "pfwd", "prev"};
+const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", "", "W", "W"};
 
 }  // namespace
 
@@ -387,12 +388,13 @@ double Stack::probe(int k, const EvalContext& ctx) const {
       break;
   }
   // Current, dissipation and their per-arm and per-plate extremes need the plate laws.
-  double total = 0.0, power = 0.0, largestArm = 0.0, largestPlate = 0.0;
+  double total = 0.0, power = 0.0, largestArm = 0.0, largestPlate = 0.0, fwd = 0.0, rev = 0.0;
   detail::PlateState st;
   for (const Plate& p : plates_) {
-    detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th], x[p.f],
-                          st);
+    const double vt = (x[p.a] - x[p.kk]) / sc;
+    detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st);
     power += st.p * sc;
+    (vt >= 0.0 ? fwd : rev) += st.p * sc;
     largestPlate = std::max(largestPlate, st.p);
     if (p.pos == 0) {
       total += st.is;
@@ -408,6 +410,10 @@ double Stack::probe(int k, const EvalContext& ctx) const {
       return largestArm;
     case kPplate:
       return largestPlate;
+    case kPfwd:
+      return fwd;
+    case kPrev:
+      return rev;
     default:
       return 0.0;
   }

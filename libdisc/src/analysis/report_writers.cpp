@@ -1,0 +1,393 @@
+// Report text, JSON, HTML, CSV and SVG plots; atomic file writing.
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fmt/format.h>
+#include <fstream>
+#include <nlohmann/json.hpp>
+
+#include "disc/error.hpp"
+#include "disc/session.hpp"
+#include "disc/version.hpp"
+
+namespace disc {
+namespace {
+
+double toC(double kelvin) { return kelvin - 273.15; }
+
+std::string escapeHtml(const std::string& s) {
+  std::string o;
+  for (char c : s) {
+    switch (c) {
+      case '<': o += "&lt;"; break;
+      case '>': o += "&gt;"; break;
+      case '&': o += "&amp;"; break;
+      case '"': o += "&quot;"; break;
+      default: o += c;
+    }
+  }
+  return o;
+}
+
+nlohmann::json verdictJson(const Verdict& v) {
+  return {{"figure", v.figure}, {"value", v.value}, {"limit", v.limit}, {"unit", v.unit},
+          {"level", v.level}, {"rule", v.rule}};
+}
+
+/// "Nice" tick positions covering [lo, hi].
+std::vector<double> ticks(double lo, double hi) {
+  const double span = hi - lo;
+  const double raw = span / 5.0;
+  const double mag = std::pow(10.0, std::floor(std::log10(raw)));
+  const double norm = raw / mag;
+  const double step = (norm < 1.5 ? 1.0 : norm < 3.5 ? 2.0 : norm < 7.5 ? 5.0 : 10.0) * mag;
+  std::vector<double> t;
+  for (double v = std::ceil(lo / step) * step; v <= hi + 1e-9 * span; v += step) t.push_back(v);
+  return t;
+}
+
+}  // namespace
+
+std::string reportText(const SupplyReport& r) {
+  std::string s;
+  auto line = [&](const std::string& l) { s += l + "\n"; };
+  line(fmt::format("libdisc supply report{}", r.title.empty() ? "" : ": " + r.title));
+  line(fmt::format("file {}, ambient {:.1f} degC", r.file, toC(r.ambient)));
+  if (r.frequency > 0)
+    line(fmt::format("figures over {} settled cycle(s) of {:g} Hz, {:.4f} to {:.4f} s{}", r.cycles,
+                     r.frequency, r.window0, r.window1, r.settled ? "" : " (NOT settled)"));
+  line("");
+  const auto& o = r.output;
+  line("OUTPUT");
+  line(fmt::format("  DC voltage            {:10.3f} V", o.mean));
+  line(fmt::format("  ripple                {:10.3f} V peak-to-peak, {:.3f} V rms (ripple factor {:.4f})",
+                   o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
+  line(fmt::format("  load current          {:10.4f} A", o.loadCurrent));
+  line(fmt::format("  output power          {:10.3f} W", o.outputPower));
+  line(fmt::format("  input power           {:10.3f} W   efficiency {:.1f} %   power factor {:.3f}",
+                   o.inputPower, 100 * o.efficiency, o.powerFactor));
+  if (o.hasTransformer)
+    line(fmt::format("  transformer secondary {:10.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent, o.secondaryVA));
+  for (const auto& st : r.stacks) {
+    line("");
+    line(fmt::format("STACK {}: {} x {} plate(s) of {} ({}, {}), {} load", st.name, st.arms, st.plates,
+                     st.type, st.material, st.mode, st.loadKind));
+    line(fmt::format("  forward current       {:.4f} A average, {:.4f} A rms, {:.4f} A peak; switch-on surge {:.3f} A",
+                     st.currentAverage, st.currentRms, st.currentPeak, st.surgePeak));
+    line(fmt::format("  dissipation           {:.3f} W forward + {:.3f} W reverse ({:.3f} W per plate)",
+                     st.powerForward, st.powerReverse, st.powerPerPlate));
+    line(fmt::format("  hottest plate         {:.1f} degC at end of run, {:.1f} degC steady-state estimate, limit {:.0f} degC",
+                     toC(st.temperatureEnd), toC(st.temperatureSteady), toC(st.temperatureLimit)));
+    if (st.arms > 1) {
+      std::string shares;
+      for (double a : st.armShare) shares += fmt::format(" {:.1f} %", 100 * a);
+      line("  arm current shares   " + shares);
+    }
+    if (st.formingStart < 0.999 || st.formingEnd < 0.999)
+      line(fmt::format("  forming state         {:.3f} at start, {:.3f} at end", st.formingStart, st.formingEnd));
+    for (const auto& v : st.verdicts)
+      line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value, v.unit,
+                       v.limit, v.unit));
+  }
+  line("");
+  line(fmt::format("OVERALL: {}", r.worst));
+  if (!r.warnings.empty()) {
+    line("WARNINGS");
+    for (const auto& w : r.warnings) line("  - " + w);
+  }
+  line("CAUTIONS");
+  for (const auto& c : r.cautions) line("  - " + c);
+  line(r.disclaimer);
+  return s;
+}
+
+std::string reportJson(const SupplyReport& r) {
+  nlohmann::json j;
+  j["schema"] = SupplyReport::kSchema;
+  j["generator"] = std::string("libdisc ") + kVersion;
+  j["title"] = r.title;
+  j["file"] = r.file;
+  j["ambient_K"] = r.ambient;
+  j["frequency_Hz"] = r.frequency;
+  j["settled"] = r.settled;
+  j["cycles"] = r.cycles;
+  j["window_s"] = {r.window0, r.window1};
+  const auto& o = r.output;
+  j["output"] = {{"mean_V", o.mean},
+                 {"ripple_pp_V", o.ripplePeakToPeak},
+                 {"ripple_rms_V", o.rippleRms},
+                 {"ripple_factor", o.rippleFactor},
+                 {"load_current_A", o.loadCurrent},
+                 {"output_power_W", o.outputPower},
+                 {"input_power_W", o.inputPower},
+                 {"efficiency", o.efficiency},
+                 {"power_factor", o.powerFactor},
+                 {"secondary_rms_current_A", o.secondaryRmsCurrent},
+                 {"secondary_VA", o.secondaryVA}};
+  j["stacks"] = nlohmann::json::array();
+  for (const auto& s : r.stacks) {
+    nlohmann::json v = nlohmann::json::array();
+    for (const auto& x : s.verdicts) v.push_back(verdictJson(x));
+    j["stacks"].push_back({{"name", s.name},
+                           {"type", s.type},
+                           {"material", s.material},
+                           {"mode", s.mode},
+                           {"load_kind", s.loadKind},
+                           {"plates_per_arm", s.plates},
+                           {"arms", s.arms},
+                           {"peak_reverse_per_plate_V", s.peakReverse},
+                           {"rms_reverse_per_plate_V", s.rmsReverse},
+                           {"rms_reverse_rating_V", s.rmsRating},
+                           {"peak_reverse_rating_V", s.peakRating},
+                           {"current_average_A", s.currentAverage},
+                           {"current_rms_A", s.currentRms},
+                           {"current_peak_A", s.currentPeak},
+                           {"current_density_average_A_per_cm2", s.densityAverage},
+                           {"current_density_rating_A_per_cm2", s.densityRating},
+                           {"switch_on_surge_A", s.surgePeak},
+                           {"dissipation_forward_W", s.powerForward},
+                           {"dissipation_reverse_W", s.powerReverse},
+                           {"dissipation_per_plate_W", s.powerPerPlate},
+                           {"temperature_end_K", s.temperatureEnd},
+                           {"temperature_steady_estimate_K", s.temperatureSteady},
+                           {"temperature_limit_K", s.temperatureLimit},
+                           {"arm_share", s.armShare},
+                           {"forming_start", s.formingStart},
+                           {"forming_end", s.formingEnd},
+                           {"verdicts", v}});
+  }
+  j["overall"] = r.worst;
+  j["warnings"] = r.warnings;
+  j["cautions"] = r.cautions;
+  j["disclaimer"] = r.disclaimer;
+  j["run"] = {{"method", r.stats.method},
+              {"accepted_steps", r.stats.acceptedSteps},
+              {"rejected_steps", r.stats.rejectedSteps},
+              {"newton_iterations", r.stats.newtonIterations},
+              {"wall_s", r.stats.wallSeconds}};
+  return j.dump(2) + "\n";
+}
+
+std::string resultCsv(const Result& r) {
+  std::string s = "time [s]";
+  for (const auto& n : r.signals()) s += fmt::format(",{} [{}]", n, r.unit(n));
+  s += "\n";
+  const auto& t = r.time();
+  for (std::size_t k = 0; k < t.size(); ++k) {
+    s += fmt::format("{:.12g}", t[k]);
+    for (const auto& n : r.signals()) s += fmt::format(",{:.10g}", r[n][k]);
+    s += "\n";
+  }
+  return s;
+}
+
+std::string svgPlot(const std::string& title, const std::string& xLabel, const std::string& yLabel,
+                    const std::vector<PlotSeries>& series) {
+  const double W = 720, H = 360, L = 80, R = 150, T = 40, B = 50;
+  double x0 = INFINITY, x1 = -INFINITY, y0 = INFINITY, y1 = -INFINITY;
+  for (const auto& s : series)
+    for (std::size_t k = 0; k < s.x.size(); ++k) {
+      x0 = std::min(x0, s.x[k]);
+      x1 = std::max(x1, s.x[k]);
+      y0 = std::min(y0, s.y[k]);
+      y1 = std::max(y1, s.y[k]);
+    }
+  if (!(x1 > x0)) x1 = x0 + 1.0;
+  if (!(y1 > y0)) {
+    y0 -= 0.5;
+    y1 += 0.5;
+  }
+  const double pad = 0.05 * (y1 - y0);
+  y0 -= pad;
+  y1 += pad;
+  auto px = [&](double x) { return L + (x - x0) / (x1 - x0) * (W - L - R); };
+  auto py = [&](double y) { return H - B - (y - y0) / (y1 - y0) * (H - T - B); };
+  static const char* palette[] = {"#1f5fa8", "#c0392b", "#2e8b57", "#8e44ad", "#d68910", "#17a2b8",
+                                  "#6d4c41", "#e91e63", "#455a64", "#7cb342", "#ff7043", "#3949ab"};
+  std::string s = fmt::format(
+      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} {1}\" "
+      "font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"{0}\" height=\"{1}\" fill=\"white\"/>\n"
+      "<text x=\"{2}\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{3}</text>\n",
+      W, H, L, escapeHtml(title));
+  for (double tx : ticks(x0, x1))
+    s += fmt::format("<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#e4e4e4\"/>"
+                     "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4:g}</text>\n",
+                     px(tx), T, H - B, H - B + 16, tx);
+  for (double ty : ticks(y0, y1))
+    s += fmt::format("<line x1=\"{0}\" y1=\"{1:.1f}\" x2=\"{2}\" y2=\"{1:.1f}\" stroke=\"#e4e4e4\"/>"
+                     "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5:g}</text>\n",
+                     L, py(ty), W - R, L - 6, py(ty) + 4, ty);
+  s += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#444\"/>\n",
+                   L, T, W - L - R, H - T - B);
+  s += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", (L + W - R) / 2, H - 12,
+                   escapeHtml(xLabel));
+  s += fmt::format("<text x=\"18\" y=\"{0}\" text-anchor=\"middle\" transform=\"rotate(-90 18 {0})\">{1}</text>\n",
+                   (T + H - B) / 2, escapeHtml(yLabel));
+  for (std::size_t k = 0; k < series.size(); ++k) {
+    const auto& sr = series[k];
+    const char* colour = palette[k % 12];
+    const std::size_t stride = std::max<std::size_t>(1, sr.x.size() / 3000);
+    std::string pts;
+    for (std::size_t i = 0; i < sr.x.size(); i += stride) pts += fmt::format("{:.1f},{:.1f} ", px(sr.x[i]), py(sr.y[i]));
+    s += fmt::format("<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"1.3\" points=\"{}\"/>\n", colour, pts);
+    s += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"2\"/>"
+                     "<text x=\"{4}\" y=\"{5}\">{6}</text>\n",
+                     W - R + 10, T + 10 + 16 * k, W - R + 28, colour, W - R + 32, T + 14 + 16 * k,
+                     escapeHtml(sr.name));
+  }
+  s += "</svg>\n";
+  return s;
+}
+
+std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl, const RunOutcome& out) {
+  std::vector<std::pair<std::string, std::string>> plots;
+  if (!out.hasReport) return plots;
+  const SupplyReport& rep = out.report;
+  // The transient behind the report is the last one.
+  const Result* r = nullptr;
+  for (const auto& a : out.analyses)
+    if (a.request.kind == AnalysisRequest::Kind::Transient) r = &a.result;
+  if (!r) return plots;
+  const auto& t = r->time();
+  auto window = [&](const std::vector<double>& y, std::vector<double>& xs, std::vector<double>& ys) {
+    for (std::size_t k = 0; k < t.size(); ++k)
+      if (t[k] >= rep.window0) {
+        xs.push_back(t[k]);
+        ys.push_back(y[k]);
+      }
+  };
+  const std::string outSig = fmt::format("v:{},{}", nl.output.positive, nl.output.negative);
+  plots.emplace_back("output-voltage", svgPlot("Output voltage", "time (s)", "V", {{outSig, t, (*r)[outSig]}}));
+  std::vector<PlotSeries> temps;
+  for (const auto& st : rep.stacks) {
+    PlotSeries cur{"i:" + st.name, {}, {}}, rev{"vrev:" + st.name, {}, {}};
+    window((*r)["i:" + st.name], cur.x, cur.y);
+    window((*r)["vrev:" + st.name], rev.x, rev.y);
+    plots.emplace_back(st.name + "-current", svgPlot(st.name + ": current over the settled window", "time (s)", "A", {cur}));
+    plots.emplace_back(st.name + "-reverse-voltage",
+                       svgPlot(st.name + ": largest reverse voltage per plate", "time (s)", "V", {rev}));
+    std::vector<PlotSeries> iv;
+    const int traced = std::min(st.plates * st.arms, 12);
+    for (int n = 1; n <= traced; ++n) {
+      const int arm = (n - 1) / st.plates + 1;
+      PlotSeries s{fmt::format("plate {}", n), {}, {}};
+      std::vector<double> xs, v, ys, i;
+      window((*r)[fmt::format("vrev:{}#{}", st.name, n)], xs, v);
+      xs.clear();
+      window((*r)[fmt::format("iarm:{}#{}", st.name, arm)], xs, i);
+      for (double& x : v) x = -x;
+      s.x = v;
+      s.y = i;
+      iv.push_back(std::move(s));
+    }
+    plots.emplace_back(st.name + "-plate-iv", svgPlot(st.name + ": plate I-V trajectories", "plate voltage (V)", "A", iv));
+    PlotSeries tp{"hottest plate of " + st.name, t, (*r)["temp:" + st.name]};
+    for (double& v : tp.y) v -= 273.15;
+    temps.push_back(std::move(tp));
+  }
+  if (!temps.empty()) plots.emplace_back("temperatures", svgPlot("Plate temperatures", "time (s)", "degC", temps));
+  return plots;
+}
+
+std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
+  const SupplyReport& r = out.report;
+  std::string h = "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>" +
+                  escapeHtml(r.title.empty() ? nl.path : r.title) + "</title>\n<style>"
+                  "body{font-family:sans-serif;max-width:1000px;margin:2em auto;color:#222}"
+                  "table{border-collapse:collapse;margin:0.5em 0}td,th{border:1px solid #bbb;padding:3px 8px;text-align:left}"
+                  ".ok{background:#e3f1e3}.marginal{background:#fff3cd}.exceeds{background:#f8d7da}"
+                  ".caution{border-left:4px solid #b03a2e;padding-left:8px}</style></head><body>\n";
+  h += "<h1>" + escapeHtml(r.title.empty() ? "Supply report" : r.title) + "</h1>\n";
+  h += fmt::format("<p>File {}; ambient {:.1f} &deg;C; {} settled cycle(s) at {:g} Hz ({:.4f}-{:.4f} s){}. "
+                   "Overall: <span class=\"{}\">{}</span>.</p>\n",
+                   escapeHtml(r.file), toC(r.ambient), r.cycles, r.frequency, r.window0, r.window1,
+                   r.settled ? "" : " &mdash; not settled", r.worst, r.worst);
+  h += "<h2>Cautions</h2>\n";
+  for (const auto& c : r.cautions) h += "<p class=\"caution\">" + escapeHtml(c) + "</p>\n";
+  h += "<p><em>" + escapeHtml(r.disclaimer) + "</em></p>\n";
+  const auto& o = r.output;
+  h += "<h2>Output</h2>\n<table>";
+  auto row = [&](const std::string& k, const std::string& v) { h += "<tr><th>" + k + "</th><td>" + v + "</td></tr>"; };
+  row("DC voltage", fmt::format("{:.3f} V", o.mean));
+  row("ripple", fmt::format("{:.3f} V peak-to-peak, {:.3f} V rms, factor {:.4f}", o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
+  row("load current", fmt::format("{:.4f} A", o.loadCurrent));
+  row("output / input power", fmt::format("{:.3f} W / {:.3f} W, efficiency {:.1f} %", o.outputPower, o.inputPower, 100 * o.efficiency));
+  row("input power factor", fmt::format("{:.3f}", o.powerFactor));
+  if (o.hasTransformer) row("transformer secondary", fmt::format("{:.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent, o.secondaryVA));
+  h += "</table>\n";
+  for (const auto& s : r.stacks) {
+    h += fmt::format("<h2>Stack {}</h2>\n<p>{} arm(s) of {} plate(s), type {} ({}), {} model, {} load.</p>\n<table>",
+                     escapeHtml(s.name), s.arms, s.plates, escapeHtml(s.type), escapeHtml(s.material), s.mode, s.loadKind);
+    row("forward current", fmt::format("{:.4f} A average, {:.4f} A rms, {:.4f} A peak", s.currentAverage, s.currentRms, s.currentPeak));
+    row("switch-on surge", fmt::format("{:.3f} A", s.surgePeak));
+    row("dissipation", fmt::format("{:.3f} W forward, {:.3f} W reverse, {:.3f} W per plate", s.powerForward, s.powerReverse, s.powerPerPlate));
+    row("hottest plate", fmt::format("{:.1f} &deg;C at end, {:.1f} &deg;C steady estimate, limit {:.0f} &deg;C",
+                                     toC(s.temperatureEnd), toC(s.temperatureSteady), toC(s.temperatureLimit)));
+    if (s.arms > 1) {
+      std::string shares;
+      for (double a : s.armShare) shares += fmt::format("{:.1f} % ", 100 * a);
+      row("arm shares", shares);
+    }
+    row("forming state", fmt::format("{:.3f} at start, {:.3f} at end", s.formingStart, s.formingEnd));
+    h += "</table>\n<table><tr><th>figure</th><th>value</th><th>limit</th><th>verdict</th><th>rule</th></tr>";
+    for (const auto& v : s.verdicts)
+      h += fmt::format("<tr class=\"{}\"><td>{}</td><td>{:.3g} {}</td><td>{:.3g} {}</td><td>{}</td><td>{}</td></tr>",
+                       v.level, escapeHtml(v.figure), v.value, v.unit, v.limit, v.unit, v.level, escapeHtml(v.rule));
+    h += "</table>\n";
+  }
+  if (!r.warnings.empty()) {
+    h += "<h2>Warnings</h2><ul>";
+    for (const auto& w : r.warnings) h += "<li>" + escapeHtml(w) + "</li>";
+    h += "</ul>\n";
+  }
+  h += "<h2>Plots</h2>\n";
+  for (const auto& [name, svg] : runPlots(nl, out)) h += "<div>" + svg + "</div>\n";
+  h += fmt::format("<p><small>libdisc {}; {} steps, {} rejected, {} Newton iterations, {:.3f} s.</small></p>\n",
+                   kVersion, r.stats.acceptedSteps, r.stats.rejectedSteps, r.stats.newtonIterations, r.stats.wallSeconds);
+  h += "</body></html>\n";
+  return h;
+}
+
+void writeFileAtomically(const std::string& path, const std::string& content) {
+  const std::string tmp = path + ".part";
+  {
+    std::ofstream f(tmp, std::ios::binary);
+    if (!f) throw Error(fmt::format("cannot write '{}'", tmp));
+    f << content;
+    f.flush();
+    if (!f) {
+      std::remove(tmp.c_str());
+      throw Error(fmt::format("failed writing '{}' (disk full?)", tmp));
+    }
+  }
+  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
+    std::remove(tmp.c_str());
+    throw Error(fmt::format("cannot move '{}' into place", path));
+  }
+}
+
+std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out, const std::string& dir) {
+  std::error_code ec;
+  std::filesystem::create_directories(dir, ec);
+  if (ec) throw Error(fmt::format("cannot create the output folder '{}': {}", dir, ec.message()));
+  std::vector<std::string> written;
+  auto put = [&](const std::string& name, const std::string& content) {
+    const std::string path = (std::filesystem::path(dir) / name).string();
+    writeFileAtomically(path, content);
+    written.push_back(path);
+  };
+  for (std::size_t k = 0; k < out.analyses.size(); ++k) {
+    const auto& a = out.analyses[k];
+    const char* kind = a.request.kind == AnalysisRequest::Kind::Transient ? "transient" : "operating-point";
+    put(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
+  }
+  if (out.hasReport) {
+    put("report.json", reportJson(out.report));
+    put("report.html", reportHtml(nl, out));
+    for (const auto& [name, svg] : runPlots(nl, out)) put(name + ".svg", svg);
+  }
+  return written;
+}
+
+}  // namespace disc
