@@ -1,5 +1,9 @@
 // The `disc` command-line program: a thin front end over libdisc.
+#include <unistd.h>
+
 #include <CLI/CLI.hpp>
+#include <chrono>
+#include <cstdio>
 #include <fstream>
 #include <fmt/format.h>
 #include <iostream>
@@ -9,9 +13,82 @@
 
 namespace {
 
-// Exit codes: 0 success, 2 bad input, 3 simulation failed.
+// Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded (with --strict).
 constexpr int kExitInput = 2;
 constexpr int kExitSimulation = 3;
+constexpr int kExitRatings = 4;
+
+struct RunArgs {
+  std::string file;
+  std::string outDir;
+  bool strict = false;
+  bool quiet = false;
+};
+
+/// Progress on stderr for runs longer than a second, only when stderr is a terminal.
+class Progress {
+ public:
+  Progress() : tty_(isatty(fileno(stderr)) != 0), start_(std::chrono::steady_clock::now()) {}
+  bool operator()(double t, double stop) {
+    if (!tty_) return true;
+    const auto now = std::chrono::steady_clock::now();
+    if (now - start_ < std::chrono::seconds(1) || now - last_ < std::chrono::milliseconds(200)) return true;
+    last_ = now;
+    shown_ = true;
+    fmt::print(stderr, "\rsimulating: {:5.1f} % ({:.4g} of {:.4g} s)", 100.0 * t / stop, t, stop);
+    return true;
+  }
+  ~Progress() {
+    if (shown_) fmt::print(stderr, "\r{:60}\r", "");
+  }
+
+ private:
+  bool tty_, shown_ = false;
+  std::chrono::steady_clock::time_point start_, last_{};
+};
+
+std::string stemOf(const std::string& path) {
+  std::string name = path.substr(path.find_last_of('/') + 1);
+  const auto dot = name.rfind('.');
+  return dot == std::string::npos || dot == 0 ? name : name.substr(0, dot);
+}
+
+int runFile(const RunArgs& a) {
+  disc::Netlist nl = disc::loadNetlist(a.file);
+  const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) : a.outDir;
+  disc::RunOutcome out;
+  {
+    Progress progress;
+    out = disc::runNetlist(nl, [&progress](double t, double stop) { return progress(t, stop); });
+  }
+  const auto files = disc::writeRunFiles(nl, out, dir);
+  if (out.hasReport) {
+    if (!a.quiet) fmt::print("{}", disc::reportText(out.report));
+  } else if (!a.quiet) {
+    fmt::print("{}: no output statement, so no supply report; results written as CSV.\n", a.file);
+  }
+  if (!a.quiet) fmt::print("\nwritten to {}/ ({} files)\n", dir, files.size());
+  if (a.strict && out.hasReport && out.report.worst == "exceeds") return kExitRatings;
+  return 0;
+}
+
+int checkFile(const std::string& file) {
+  disc::Netlist nl = disc::loadNetlist(file);
+  fmt::print("{}: ok ({} elements, {} nodes, {} analyses{})\n", file, nl.circuit.devices().size(),
+             nl.circuit.nodeCount(), nl.analyses.size(), nl.output.given ? ", output named" : "");
+  return 0;
+}
+
+int listPlates() {
+  fmt::print("{:20} {:13} {:>7} {:>8} {:>8} {:>7} {:>8} {:>6}\n", "type", "material", "area", "rms res",
+             "rms cap", "peak", "rated", "limit");
+  fmt::print("{:20} {:13} {:>7} {:>8} {:>8} {:>7} {:>8} {:>6}\n", "", "", "cm2", "V", "V", "V", "mA", "degC");
+  for (const auto& t : disc::PlateLibrary::builtIn().types())
+    fmt::print("{:20} {:13} {:7.2f} {:8.1f} {:8.1f} {:7.1f} {:8.1f} {:6.0f}\n", t.name, t.material,
+               t.physics.areaCm2, t.ratings.rmsReverseResistive, t.ratings.rmsReverseCapacitive,
+               t.ratings.peakReverse, 1e3 * t.ratedCurrent(), t.ratings.maxPlateTemperature - 273.15);
+  return 0;
+}
 
 struct ExampleArgs {
   std::string name;
@@ -90,6 +167,18 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("disc ") + disc::kVersion);
   app.require_subcommand(1);
 
+  RunArgs ra;
+  auto* run = app.add_subcommand("run", "Simulate a netlist and print the supply report");
+  run->add_option("file", ra.file, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
+  run->add_option("-o,--out", ra.outDir, "Output folder (default out/<file stem>)");
+  run->add_flag("--strict", ra.strict, "Exit with code 4 when a rating is exceeded");
+  run->add_flag("-q,--quiet", ra.quiet, "Print nothing; only write the files");
+  std::string checkPath;
+  auto* check = app.add_subcommand("check", "Parse and validate a netlist without simulating");
+  check->add_option("file", checkPath, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
+  auto* plates = app.add_subcommand("plates", "List the built-in plate types and their ratings");
+  app.footer("Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded (--strict).");
+
   ExampleArgs ex;
   auto* example = app.add_subcommand("example", "Run a reference circuit built into the library");
   example->add_option("name", ex.name, "Reference circuit (or 'list')")->required();
@@ -111,6 +200,9 @@ int main(int argc, char** argv) {
     return code == 0 ? 0 : kExitInput;
   }
   try {
+    if (run->parsed()) return runFile(ra);
+    if (check->parsed()) return checkFile(checkPath);
+    if (plates->parsed()) return listPlates();
     if (example->parsed()) {
       if (ex.name == "list") {
         for (const auto& n : disc::reference::names())
@@ -119,6 +211,9 @@ int main(int argc, char** argv) {
       }
       return runExample(ex);
     }
+  } catch (const disc::NetlistError& e) {
+    fmt::print(stderr, "{}\n", e.what());
+    return kExitInput;
   } catch (const disc::InputError& e) {
     fmt::print(stderr, "disc: error: {}\n", e.what());
     return kExitInput;

@@ -60,7 +60,7 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
       s.push_back("i2:" + d->name());
       s.push_back(fmt::format("v:{},{}", vname(c, t[2]), vname(c, t[3])));
     } else if (auto* st = dynamic_cast<const Stack*>(d.get())) {
-      for (const char* q : {"i", "vrev", "temp", "form", "pfwd", "prev", "v"})
+      for (const char* q : {"i", "vrev", "temp", "form", "pfwd", "prev"})
         s.push_back(fmt::format("{}:{}", q, d->name()));
       for (int m = 1; m <= st->options().arms; ++m) s.push_back(fmt::format("iarm:{}#{}", d->name(), m));
       const int traced = std::min(st->plateCount(), kMaxPlateTraces);

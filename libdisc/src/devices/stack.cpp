@@ -32,7 +32,7 @@ struct Stack::Plate {
 namespace {
 
 enum Probe { kI, kP, kV, kTemp, kForm, kIarm, kVrev, kPplate, kVj, kAge, kPfwd, kPrev, kProbeCount };
-const char* const kProbeNames[] = {"i",    "p",      "v",  "temp", "form", "iarm",
+const char* const kProbeNames[] = {"i",    "p",      "vstack", "temp", "form", "iarm",
                                    "vrev", "pplate", "vj", "age",  "pfwd", "prev"};
 const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", "", "W", "W"};
 
