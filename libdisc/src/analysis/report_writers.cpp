@@ -213,11 +213,11 @@ std::string svgPlot(const std::string& title, const std::string& xLabel, const s
   for (double tx : ticks(x0, x1))
     s += fmt::format("<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#e4e4e4\"/>"
                      "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4:g}</text>\n",
-                     px(tx), T, H - B, H - B + 16, tx);
+                     px(tx), T, H - B, H - B + 16, std::abs(tx) < 1e-9 * (x1 - x0) ? 0.0 : tx);
   for (double ty : ticks(y0, y1))
     s += fmt::format("<line x1=\"{0}\" y1=\"{1:.1f}\" x2=\"{2}\" y2=\"{1:.1f}\" stroke=\"#e4e4e4\"/>"
                      "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5:g}</text>\n",
-                     L, py(ty), W - R, L - 6, py(ty) + 4, ty);
+                     L, py(ty), W - R, L - 6, py(ty) + 4, std::abs(ty) < 1e-9 * (y1 - y0) ? 0.0 : ty);
   s += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#444\"/>\n",
                    L, T, W - L - R, H - T - B);
   s += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", (L + W - R) / 2, H - 12,
