@@ -15,7 +15,7 @@ build: configure
 	@cmake --build $(BUILD) -j $(JOBS)
 
 demo: build
-	@$(BUILD)/bindings/cli/disc example bridge
+	@$(BUILD)/bindings/cli/disc run netlists/table-radio-half-wave.disc -o out/table-radio-half-wave
 
 test: build
 	@cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
