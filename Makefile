@@ -3,7 +3,7 @@ BUILD ?= build-release
 JOBS ?= $(shell nproc)
 CMAKE_FLAGS ?=
 
-.PHONY: deps configure build demo test bench clean
+.PHONY: deps configure build demo test test-sanitize fuzz bench clean
 
 deps:
 	@bash .ci/install-deps
@@ -19,6 +19,24 @@ demo: build
 
 test: build
 	@cd $(BUILD) && ctest --output-on-failure -j $(JOBS)
+
+# The C++ tests again under AddressSanitizer and UndefinedBehaviorSanitizer (CI runs this too).
+test-sanitize: deps
+	@cmake -S . -B build-asan -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo -DDISC_SANITIZE=ON \
+	    -DDISC_BUILD_BENCHMARKS=OFF >/dev/null
+	@cmake --build build-asan -j $(JOBS)
+	@cd build-asan && ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 \
+	    ctest --output-on-failure -j $(JOBS) -E "python|bench"
+
+# Fuzz the netlist parser with libFuzzer for FUZZ_SECONDS (not part of CI).
+FUZZ_SECONDS ?= 120
+fuzz: deps
+	@bash .ci/install-deps clang libclang-rt-14-dev
+	@CXX=clang++ cmake -S . -B build-fuzz -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo -DDISC_FUZZ=ON \
+	    -DDISC_BUILD_TESTS=OFF -DDISC_BUILD_BENCHMARKS=OFF >/dev/null
+	@cmake --build build-fuzz -j $(JOBS) --target netlist_fuzz
+	@mkdir -p build-fuzz/corpus && cp netlists/*.disc build-fuzz/corpus/
+	@build-fuzz/netlist_fuzz -max_total_time=$(FUZZ_SECONDS) -timeout=10 -rss_limit_mb=2048 build-fuzz/corpus
 
 bench: build
 	@/usr/bin/python3 benchmarks/run_benchmarks.py --build $(BUILD)

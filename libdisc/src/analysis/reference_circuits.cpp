@@ -74,6 +74,7 @@ Circuit shockleyBridge(const ShockleyBridge& s) {
   d.tt = 0.0;
   d.bv = 0.0;
   d.temperature = 300.0;
+  d.tnom = 300.0;  // Is given at the operating temperature, as the independent model has it
   c.emplace<VoltageSource>("VS", src, b, Waveform::sine(s.amplitude, s.frequency));
   c.emplace<Resistor>("RW", src, a, s.winding);
   c.emplace<Diode>("D1", a, out, d);
