@@ -1,11 +1,11 @@
 // The `disc` command-line program: a thin front end over libdisc.
 #include <unistd.h>
 
+#include <fmt/format.h>
 #include <CLI/CLI.hpp>
 #include <chrono>
 #include <cstdio>
 #include <fstream>
-#include <fmt/format.h>
 #include <iostream>
 #include <nlohmann/json.hpp>
 
@@ -32,7 +32,8 @@ class Progress {
   bool operator()(double t, double stop) {
     if (!tty_) return true;
     const auto now = std::chrono::steady_clock::now();
-    if (now - start_ < std::chrono::seconds(1) || now - last_ < std::chrono::milliseconds(200)) return true;
+    if (now - start_ < std::chrono::seconds(1) || now - last_ < std::chrono::milliseconds(200))
+      return true;
     last_ = now;
     shown_ = true;
     fmt::print(stderr, "\rsimulating: {:5.1f} % ({:.4g} of {:.4g} s)", 100.0 * t / stop, t, stop);
@@ -80,13 +81,15 @@ int checkFile(const std::string& file) {
 }
 
 int listPlates() {
-  fmt::print("{:20} {:13} {:>7} {:>8} {:>8} {:>7} {:>8} {:>6}\n", "type", "material", "area", "rms res",
-             "rms cap", "peak", "rated", "limit");
-  fmt::print("{:20} {:13} {:>7} {:>8} {:>8} {:>7} {:>8} {:>6}\n", "", "", "cm2", "V", "V", "V", "mA", "degC");
+  fmt::print("{:20} {:13} {:>7} {:>8} {:>8} {:>7} {:>8} {:>6}\n", "type", "material", "area",
+             "rms res", "rms cap", "peak", "rated", "limit");
+  fmt::print("{:20} {:13} {:>7} {:>8} {:>8} {:>7} {:>8} {:>6}\n", "", "", "cm2", "V", "V", "V",
+             "mA", "degC");
   for (const auto& t : disc::PlateLibrary::builtIn().types())
     fmt::print("{:20} {:13} {:7.2f} {:8.1f} {:8.1f} {:7.1f} {:8.1f} {:6.0f}\n", t.name, t.material,
                t.physics.areaCm2, t.ratings.rmsReverseResistive, t.ratings.rmsReverseCapacitive,
-               t.ratings.peakReverse, 1e3 * t.ratedCurrent(), t.ratings.maxPlateTemperature - 273.15);
+               t.ratings.peakReverse, 1e3 * t.ratedCurrent(),
+               t.ratings.maxPlateTemperature - 273.15);
   return 0;
 }
 
@@ -150,8 +153,8 @@ int runExample(const ExampleArgs& a) {
   fmt::print("{}: {}\n", a.name, disc::reference::describe(a.name));
   fmt::print("transient 0 to {} s, {} integration, start {}\n", a.stop, s.method,
              a.cold ? "cold (switch-on)" : "from operating point");
-  fmt::print("  output mean          {:10.4f} V   (last {} cycle(s), {:.4f} to {:.4f} s)\n", fig.mean,
-             fig.cycles, fig.window0, fig.window1);
+  fmt::print("  output mean          {:10.4f} V   (last {} cycle(s), {:.4f} to {:.4f} s)\n",
+             fig.mean, fig.cycles, fig.window0, fig.window1);
   fmt::print("  ripple peak-to-peak  {:10.4f} V\n", fig.ripplePeakToPeak);
   fmt::print("  ripple rms           {:10.4f} V\n", fig.rippleRms);
   fmt::print("  steps {} accepted, {} rejected; {} Newton iterations; {:.3f} s wall\n",
@@ -177,14 +180,16 @@ int main(int argc, char** argv) {
   auto* check = app.add_subcommand("check", "Parse and validate a netlist without simulating");
   check->add_option("file", checkPath, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
   auto* plates = app.add_subcommand("plates", "List the built-in plate types and their ratings");
-  app.footer("Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded (--strict).");
+  app.footer(
+      "Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded (--strict).");
 
   ExampleArgs ex;
   auto* example = app.add_subcommand("example", "Run a reference circuit built into the library");
   example->add_option("name", ex.name, "Reference circuit (or 'list')")->required();
   example->add_option("--method", ex.method, "Integration method: trap, bdf2 or ida")
       ->check(CLI::IsMember({"trap", "bdf2", "ida"}));
-  example->add_option("--stop", ex.stop, "End time of the transient, s")->check(CLI::PositiveNumber);
+  example->add_option("--stop", ex.stop, "End time of the transient, s")
+      ->check(CLI::PositiveNumber);
   example->add_option("--cycles", ex.cycles, "Settled mains cycles to measure over")
       ->check(CLI::Range(1, 1000));
   example->add_flag("--json", ex.json, "Print the figures as JSON");

@@ -83,3 +83,25 @@ TEST_CASE("Cloned circuits run independently", "[engine][clone]") {
   CHECK(fb.ripplePeakToPeak < 0.1 * fa.ripplePeakToPeak);
   CHECK(static_cast<Capacitor&>(a.at("C1")).capacitance() == 100e-6);
 }
+
+TEST_CASE("Device parameters by netlist name, checked like the constructors",
+          "[engine][parameters]") {
+  Netlist nl = parseNetlist(
+      "voltage V1 a gnd sine rms=20V frequency=50Hz\nstack S1 a b type=se-25mm-square plates=2\n"
+      "resistor RL b gnd 100\ncapacitor C1 b gnd 10u\n");
+  Device& s = nl.circuit.at("S1");
+  CHECK(s.parameter("plates") == 2.0);
+  s.setParameter("plates", 5);
+  CHECK(static_cast<Stack&>(s).plateCount() == 5);
+  REQUIRE_THROWS_WITH(s.setParameter("plates", 0), Contains("at least one plate"));
+  REQUIRE_THROWS_WITH(s.setParameter("plates", 2.5), Contains("whole number"));
+  REQUIRE_THROWS_WITH(s.parameter("plate"), Contains("did you mean 'plates'"));
+  nl.circuit.at("RL").setParameter("resistance", 220.0);
+  CHECK(static_cast<Resistor&>(nl.circuit.at("RL")).resistance() == 220.0);
+  REQUIRE_THROWS_WITH(nl.circuit.at("RL").setParameter("resistance", -1), Contains("positive"));
+  // Elements added through the element API meet the same checks and messages as the language.
+  REQUIRE_THROWS_WITH(addElement(nl, "capacitor", "C2", {"b", "gnd"}, {{"capacitance", "-1u"}}),
+                      Contains("must be positive"));
+  addElement(nl, "capacitor", "C2", {"b", "gnd"}, {{"capacitance", "22u"}});
+  CHECK(nl.circuit.find("C2") != nullptr);
+}

@@ -30,7 +30,9 @@ double worstError(const Result& r, const std::string& signal, Exact exact) {
   return worst;
 }
 
-Waveform step(double v) { return Waveform::dc(v).gate(0.0); }
+Waveform step(double v) {
+  return Waveform::dc(v).gate(0.0);
+}
 
 }  // namespace
 
@@ -90,7 +92,8 @@ TEST_CASE("Series RLC step response, under- and over-damped", "[engine][linear]"
   }
 }
 
-TEST_CASE("Coupled inductors transfer a step with the ideal-transformer ratio", "[engine][linear]") {
+TEST_CASE("Coupled inductors transfer a step with the ideal-transformer ratio",
+          "[engine][linear]") {
   // Two windings with k close to 1: the secondary open-circuit voltage is M/L1 times the primary
   // (Nilsson and Riedel, magnetically coupled circuits).
   Circuit c;

@@ -37,8 +37,8 @@ TEST_CASE("Diode and resistor: the Shockley law solved independently by bisectio
   for (int k = 0; k < 200; ++k) {
     const double v = 0.5 * (lo + hi);
     // 1 pS junction shunt plus the 1 pS node-to-gnd conductance of the operating point.
-    const double id = p.is * (std::exp(v / nvt) - 1.0) + 2e-12 * v -
-                      p.ibv * std::exp(-(v + p.bv) / nvt);
+    const double id =
+        p.is * (std::exp(v / nvt) - 1.0) + 2e-12 * v - p.ibv * std::exp(-(v + p.bv) / nvt);
     ((5.0 - v) / 100.0 > id ? lo : hi) = v;
   }
   CHECK(r["v:a"][0] == Approx(0.5 * (lo + hi)).epsilon(1e-6));

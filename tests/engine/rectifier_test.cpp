@@ -32,7 +32,8 @@ HartFigures hart(double vm, double f, double R, double C) {
 
 }  // namespace
 
-TEST_CASE("Half-wave RC rectifier matches Hart's turn-off and turn-on angles", "[engine][rectifier]") {
+TEST_CASE("Half-wave RC rectifier matches Hart's turn-off and turn-on angles",
+          "[engine][rectifier]") {
   // Check values (shared field notes, checks 7 and 8, derived): 120 V rms, 60 Hz, 500 ohm;
   // 100 uF: theta 93.04 deg, alpha 48.23 deg, ripple 43.13 V; 3300 uF: alpha 81.96 deg,
   // ripple 1.667 V.
@@ -69,8 +70,8 @@ TEST_CASE("Half-wave RC rectifier matches Hart's turn-off and turn-on angles", "
       REQUIRE(on.size() == 1);
       auto deg = [](double time) { return std::fmod(time * 60.0, 1.0) * 360.0; };
       const auto ref = hart(120 * std::sqrt(2.0), 60, 500, C);
-      const double ripple = measure::maximum(t, r["v:out"], t0, t1) -
-                            measure::minimum(t, r["v:out"], t0, t1);
+      const double ripple =
+          measure::maximum(t, r["v:out"], t0, t1) - measure::minimum(t, r["v:out"], t0, t1);
       INFO(methodName(m) << " C = " << C);
       CHECK(deg(off[0]) == Approx(ref.offDeg).margin(0.5));
       CHECK(deg(on[0]) == Approx(ref.onDeg).margin(0.5));
@@ -91,8 +92,8 @@ TEST_CASE("Energy balance over a bridge-supply switch-on", "[engine][energy]") {
     o.method = m;
     o.start = Start::Cold;
     o.tol.reltol = 1e-5;
-    o.record = {"p:MAINS", "p:RL", "p:D1", "p:D2", "p:D3", "p:D4", "loss:T1", "energy:T1",
-                "energy:C1"};
+    o.record = {"p:MAINS", "p:RL",    "p:D1",      "p:D2",     "p:D3",
+                "p:D4",    "loss:T1", "energy:T1", "energy:C1"};
     const Result r = transient(c, o);
     const auto& t = r.time();
     auto energy = [&](const char* s) { return measure::integral(t, r[s], 0.0, o.stop); };
@@ -101,8 +102,8 @@ TEST_CASE("Energy balance over a bridge-supply switch-on", "[engine][energy]") {
                               energy("p:D4") + energy("loss:T1");
     const double stored = r["energy:T1"].back() - r["energy:T1"].front() + r["energy:C1"].back() -
                           r["energy:C1"].front();
-    INFO(methodName(m) << ": source " << source << " J, dissipated " << dissipated
-                       << " J, stored " << stored << " J");
+    INFO(methodName(m) << ": source " << source << " J, dissipated " << dissipated << " J, stored "
+                       << stored << " J");
     CHECK(std::abs(source - dissipated - stored) <= 1e-3 * source);
   }
 }
@@ -110,8 +111,8 @@ TEST_CASE("Energy balance over a bridge-supply switch-on", "[engine][energy]") {
 TEST_CASE("Bridge supply output is near the peak secondary voltage less two diode drops",
           "[engine][rectifier]") {
   // Capacitor-input full-wave: V_dc ~ V_m - 2 V_diode - I_dc / (4 f C) (ripple about I/(2 f C)
-  // peak-to-peak; J. Millman and C. C. Halkias, Electronic Devices and Circuits, 1967, from memory).
-  // The transformer's resistance lowers it further; accept within 10 %.
+  // peak-to-peak; J. Millman and C. C. Halkias, Electronic Devices and Circuits, 1967, from
+  // memory). The transformer's resistance lowers it further; accept within 10 %.
   Circuit c = reference::bridgeSupply();
   TransientOptions o;
   o.stop = 1.0;

@@ -24,7 +24,8 @@ Run runExample(const std::string& name) {
 }
 
 double windowMean(const Run& r, const std::string& sig) {
-  return measure::mean(r.result().time(), r.result()[sig], r.out.report.window0, r.out.report.window1);
+  return measure::mean(r.result().time(), r.result()[sig], r.out.report.window0,
+                       r.out.report.window1);
 }
 
 }  // namespace
@@ -50,8 +51,9 @@ TEST_CASE("Table radio: half-wave capacitor input", "[netlist][examples]") {
 
 TEST_CASE("Battery chargers: Ohm's law at the battery and the charging-current estimate",
           "[netlist][examples]") {
-  for (auto [file, emf, rbat, ratio, r2] : {std::tuple{"battery-charger-12v.disc", 12.6, 0.02, 14.4, 0.25},
-                                           std::tuple{"battery-charger-6v.disc", 6.3, 0.01, 25.5, 0.12}}) {
+  for (auto [file, emf, rbat, ratio, r2] :
+       {std::tuple{"battery-charger-12v.disc", 12.6, 0.02, 14.4, 0.25},
+        std::tuple{"battery-charger-6v.disc", 6.3, 0.01, 25.5, 0.12}}) {
     const Run r = runExample(file);
     const auto& rep = r.out.report;
     INFO(file);
@@ -65,7 +67,8 @@ TEST_CASE("Battery chargers: Ohm's law at the battery and the charging-current e
     const double e = emf + 2 * 0.47;
     const double rt = r2 + (2.0 + 0.3) / (ratio * ratio) + 0.05 + rbat + 2 * 10.0 / 85.0;
     const double a = std::asin(e / vm);
-    const double estimate = (2 * vm * std::cos(a) - e * (std::numbers::pi - 2 * a)) / (std::numbers::pi * rt);
+    const double estimate =
+        (2 * vm * std::cos(a) - e * (std::numbers::pi - 2 * a)) / (std::numbers::pi * rt);
     CHECK(i == Approx(estimate).epsilon(0.3));
   }
 }
@@ -87,7 +90,8 @@ TEST_CASE("Amplifier: choke input holds 0.9 Vrms less the resistive drops", "[ne
   CHECK(measure::minimum(t, r.result()["i:CHOKE"], rep.window0, rep.window1) > 0.0);
 }
 
-TEST_CASE("Signalling supply: ripple bound and uneven but bounded arm sharing", "[netlist][examples]") {
+TEST_CASE("Signalling supply: ripple bound and uneven but bounded arm sharing",
+          "[netlist][examples]") {
   const Run r = runExample("signalling-parallel-stacks.disc");
   const auto& rep = r.out.report;
   const double i = rep.output.loadCurrent;

@@ -49,8 +49,10 @@ TEST_CASE("A valid netlist parses into a circuit", "[netlist][parser]") {
 }
 
 TEST_CASE("Numbers take SI prefixes and checked units", "[netlist][parser]") {
-  const Netlist nl = parseNetlist(kOk + "capacitor C1 a gnd 2.2uF\ncapacitor C2 a gnd 10nF\n"
-                                        "inductor L1 a b 3mH\nresistor R2 b gnd 1.5Mohm\nambient 30degC\n");
+  const Netlist nl =
+      parseNetlist(kOk +
+                   "capacitor C1 a gnd 2.2uF\ncapacitor C2 a gnd 10nF\n"
+                   "inductor L1 a b 3mH\nresistor R2 b gnd 1.5Mohm\nambient 30degC\n");
   CHECK(static_cast<const Capacitor&>(*nl.circuit.find("C1")).capacitance() == Approx(2.2e-6));
   CHECK(static_cast<const Capacitor&>(*nl.circuit.find("C2")).capacitance() == Approx(10e-9));
   CHECK(static_cast<const Inductor&>(*nl.circuit.find("L1")).inductance() == Approx(3e-3));
@@ -82,7 +84,8 @@ TEST_CASE("Each error class is located and explained", "[netlist][parser]") {
 }
 
 TEST_CASE("Several errors are reported in one pass, nothing is built", "[netlist][parser]") {
-  const auto d = errorsOf("voltage V1 a gnd dc=10V\nresistor R1 a gnd 1q\ncapacitor C1 a gnd -1u\nfoo bar\n");
+  const auto d =
+      errorsOf("voltage V1 a gnd dc=10V\nresistor R1 a gnd 1q\ncapacitor C1 a gnd -1u\nfoo bar\n");
   CHECK(d.size() >= 3);  // and the node left dangling by the rejected elements
   // The message carries the line and a caret under the fault.
   const std::string text = d.front().format();
@@ -114,12 +117,14 @@ TEST_CASE("Derived and used plate types", "[netlist][parser]") {
   PlateType t = PlateLibrary::derive(PlateLibrary::builtIn().at("se-25mm-square"), "my-plate",
                                      {{"rs_ohm_cm2", 14.0}});
   PlateLibrary::save(t, dir + "/my-plate.json");
-  writeFileAtomically(dir + "/n.disc",
-                      "use \"my-plate.json\"\nplate-type worn base=my-plate gsh_S_per_cm2=1e-4\n"
-                      "voltage V1 a gnd dc=1V\nstack S1 a gnd type=worn\nstack S2 a gnd type=my-plate\n");
+  writeFileAtomically(
+      dir + "/n.disc",
+      "use \"my-plate.json\"\nplate-type worn base=my-plate gsh_S_per_cm2=1e-4\n"
+      "voltage V1 a gnd dc=1V\nstack S1 a gnd type=worn\nstack S2 a gnd type=my-plate\n");
   const Netlist nl = loadNetlist(dir + "/n.disc");
   CHECK(static_cast<const Stack&>(*nl.circuit.find("S1")).type().physics.gshArea == Approx(1e-4));
   CHECK(static_cast<const Stack&>(*nl.circuit.find("S1")).type().physics.rsArea == Approx(14.0));
-  expectError("plate-type x base=se-25mm-square rs_ohm_cm=3\nvoltage V1 a gnd dc=1V\nresistor R a gnd 1\n",
-              1, 34, "did you mean 'rs_ohm_cm2'");
+  expectError(
+      "plate-type x base=se-25mm-square rs_ohm_cm=3\nvoltage V1 a gnd dc=1V\nresistor R a gnd 1\n",
+      1, 34, "did you mean 'rs_ohm_cm2'");
 }

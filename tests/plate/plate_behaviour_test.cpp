@@ -9,7 +9,9 @@ using namespace disc;
 
 namespace {
 
-const PlateType& builtin(const char* name) { return PlateLibrary::builtIn().at(name); }
+const PlateType& builtin(const char* name) {
+  return PlateLibrary::builtIn().at(name);
+}
 
 /// Forward voltage of one plate carrying a DC current, at thermal steady state (operating point).
 double forwardVoltage(const PlateType& t, double current, double ambient = 298.15,
@@ -71,7 +73,8 @@ TEST_CASE("Built-in reverse ratings follow the historical selenium classes", "[p
   CHECK(builtin("cuox-12mm-meter").ratings.rmsReverseResistive == Approx(6.0));
   for (const auto& t : PlateLibrary::builtIn().types()) {
     INFO(t.name);
-    CHECK(t.ratings.peakReverse == Approx(std::sqrt(2.0) * t.ratings.rmsReverseResistive).epsilon(1e-3));
+    CHECK(t.ratings.peakReverse ==
+          Approx(std::sqrt(2.0) * t.ratings.rmsReverseResistive).epsilon(1e-3));
     // Five 26 V plates for 120 V rms resistive duty (field notes check 2, derived).
     CHECK(t.notes.count("rms_reverse_resistive_V") == 1);
   }
@@ -194,7 +197,8 @@ TEST_CASE("Self-heating turns the forward curve back above the energy-balance cu
     auto volts = [&](double temp) {
       const double is = ph.js0 * ph.areaCm2 * std::pow(temp / ph.t0, 2) *
                         std::exp(-ph.barrierEv / kb * (1 / temp - 1 / ph.t0));
-      const double rs = ph.rsArea / ph.areaCm2 * std::exp(ph.rsActivationEv / kb * (1 / temp - 1 / ph.t0));
+      const double rs =
+          ph.rsArea / ph.areaCm2 * std::exp(ph.rsActivationEv / kb * (1 / temp - 1 / ph.t0));
       return ph.ideality * kb * temp * std::log1p(i / is) + i * rs;
     };
     for (int k = 0; k < 200; ++k) {
@@ -261,9 +265,8 @@ TEST_CASE("Mains-frequency sweeps trace open loops that shrink when the sweep sl
   PlateType bigC = se;
   bigC.set("c0_F_per_cm2", 2.0 * se.physics.c0Area);
   const double a50big = loopArea(50.0, 10.0, plate(bigC));
-  const double silicon = loopArea(50.0, 10.0, [](Circuit& c) {
-    c.emplace<Diode>("X1", c.node("a"), kGround, DiodeParams{});
-  });
+  const double silicon = loopArea(
+      50.0, 10.0, [](Circuit& c) { c.emplace<Diode>("X1", c.node("a"), kGround, DiodeParams{}); });
   INFO("loop areas: 50 Hz " << a50 << ", 5 Hz " << a5 << ", 50 Hz with 2 C0 " << a50big
                             << ", silicon " << silicon << " J");
   CHECK(a50 > 2.0 * a5);

@@ -31,7 +31,8 @@ TEST_CASE("Barrier current follows thermionic emission with ideality n", "[plate
       detail::PlateState s;
       detail::evaluatePlate(k, T, 0.0, v, 0.0, 0.0, 1.0, s);
       const auto& p = t.physics;
-      const double js = p.js0 * std::pow(T / p.t0, 2) * std::exp(-p.barrierEv / kb * (1 / T - 1 / p.t0));
+      const double js =
+          p.js0 * std::pow(T / p.t0, 2) * std::exp(-p.barrierEv / kb * (1 / T - 1 / p.t0));
       const double expected = js * p.areaCm2 * (std::exp(v / (p.ideality * kb * T)) - 1.0);
       INFO("T = " << T << " K, V = " << v << " V");
       CHECK(s.ib == Approx(expected).epsilon(1e-9));

@@ -25,12 +25,18 @@ TEST_CASE("Stack Jacobians match finite differences", "[plate][jacobian]") {
         std::vector<double> x(names.size());
         for (std::size_t k = 0; k < x.size(); ++k) {
           const std::string& n = names[k];
-          if (n == "a") x[k] = bias;
-          else if (n == "k") x[k] = 0.0;
-          else if (n.find(".temp") != std::string::npos) x[k] = 20.0 + 100.0 * u(rng);
-          else if (n.find(".form") != std::string::npos) x[k] = 0.5 + u(rng);
-          else if (n.find(".node") != std::string::npos) x[k] = bias * 0.5 + u(rng);
-          else x[k] = (bias > 0 ? 0.35 : bias / 3.0) + u(rng);
+          if (n == "a")
+            x[k] = bias;
+          else if (n == "k")
+            x[k] = 0.0;
+          else if (n.find(".temp") != std::string::npos)
+            x[k] = 20.0 + 100.0 * u(rng);
+          else if (n.find(".form") != std::string::npos)
+            x[k] = 0.5 + u(rng);
+          else if (n.find(".node") != std::string::npos)
+            x[k] = bias * 0.5 + u(rng);
+          else
+            x[k] = (bias > 0 ? 0.35 : bias / 3.0) + u(rng);
         }
         const JacobianCheck j = checkJacobian(c, x, 0.0);
         INFO(type << (mode == StackMode::Lumped ? " lumped" : " per-plate") << " bias " << bias

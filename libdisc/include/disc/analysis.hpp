@@ -12,20 +12,20 @@ namespace disc {
 
 /// Convergence and truncation-error tolerances.
 struct Tolerances {
-  double reltol = 1e-3;        ///< relative, on unknowns and on charges
-  double voltage = 1e-6;       ///< absolute, V
-  double current = 1e-6;       ///< absolute, A
-  double temperature = 1e-4;   ///< absolute, K
-  double state = 1e-6;         ///< absolute, dimensionless slow states
+  double reltol = 1e-3;       ///< relative, on unknowns and on charges
+  double voltage = 1e-6;      ///< absolute, V
+  double current = 1e-6;      ///< absolute, A
+  double temperature = 1e-4;  ///< absolute, K
+  double state = 1e-6;        ///< absolute, dimensionless slow states
   void validate() const;
 };
 
 /// Options of the DC operating point (Newton-Raphson, then gmin stepping, then source stepping).
 struct OperatingPointOptions {
   Tolerances tol;
-  int maxIterations = 150;         ///< per Newton solve
-  double gmin = 1e-12;             ///< S, from every node to gnd
-  std::vector<std::string> record; ///< signals; empty = every node voltage and device current
+  int maxIterations = 150;          ///< per Newton solve
+  double gmin = 1e-12;              ///< S, from every node to gnd
+  std::vector<std::string> record;  ///< signals; empty = every node voltage and device current
   void validate() const;
 };
 
@@ -43,18 +43,18 @@ enum class Start {
 };
 
 struct TransientOptions {
-  double stop = 0.0;               ///< s, end time (required)
-  double maxStep = 0.0;            ///< s; 0 = automatic (a fraction of stop and of sine periods)
-  double initialStep = 0.0;        ///< s; 0 = automatic
-  double recordFrom = 0.0;         ///< s; points before this time are not stored
+  double stop = 0.0;         ///< s, end time (required)
+  double maxStep = 0.0;      ///< s; 0 = automatic (a fraction of stop and of sine periods)
+  double initialStep = 0.0;  ///< s; 0 = automatic
+  double recordFrom = 0.0;   ///< s; points before this time are not stored
   Method method = Method::Trapezoidal;
   Start start = Start::OperatingPoint;
   Tolerances tol;
-  int maxNewton = 12;              ///< Newton iterations per step before the step is cut
+  int maxNewton = 12;  ///< Newton iterations per step before the step is cut
   /// Highest BDF order IDA may use (1-5). Orders above 2 are not A-stable: the lightly damped
   /// resonances of leakage inductance with junction capacitance force them into tiny steps.
   int idaMaxOrder = 2;
-  std::vector<std::string> record; ///< signals; empty = every node voltage and device current
+  std::vector<std::string> record;  ///< signals; empty = every node voltage and device current
   /// Called after each accepted step with (time, stop); return false to cancel the run (the
   /// analysis then throws Cancelled).
   std::function<bool(double, double)> progress;

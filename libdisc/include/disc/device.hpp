@@ -5,6 +5,7 @@
 // Jacobians G = di/dx and C = dq/dx into matrix slots it reserved during set-up.
 #pragma once
 
+#include <functional>
 #include <memory>
 #include <string>
 #include <string_view>
@@ -90,6 +91,15 @@ struct Binding {
   int limitCell = 0;           ///< first of this device's limitCells() in EvalContext::limits
 };
 
+class Device;
+
+/// A device parameter readable and settable by its netlist name (for sweeps without re-parsing).
+struct DeviceParameter {
+  std::string name;
+  std::function<double(const Device&)> get;
+  std::function<void(Device&, double)> set;  ///< validates like the constructor
+};
+
 /// Base of every circuit element.
 class Device {
  public:
@@ -136,12 +146,21 @@ class Device {
   virtual std::vector<std::string> probes() const { return {"i", "p"}; }
   /// Unit symbol of probe k.
   virtual std::string probeUnit(int k) const;
+  /// Parameters by netlist name (e.g. "resistance", "plates"); empty for devices without any.
+  virtual const std::vector<DeviceParameter>& parameterTable() const;
+  std::vector<std::string> parameterNames() const;
+  /// Throws InputError naming the device and suggesting a parameter for a misspelt name.
+  double parameter(const std::string& name) const;
+  void setParameter(const std::string& name, double value);
+
   /// Value of probe k at the context's state.
   virtual double probe(int k, const EvalContext& ctx) const = 0;
   /// How many numbered instances probe k has ("temp:SR1#3" is plate 3); 0: not numbered.
   virtual int probeInstances(int /*k*/) const { return 0; }
   /// Value of instance `index` (1-based) of probe k.
-  virtual double probeAt(int k, int /*index*/, const EvalContext& ctx) const { return probe(k, ctx); }
+  virtual double probeAt(int k, int /*index*/, const EvalContext& ctx) const {
+    return probe(k, ctx);
+  }
   /// Sets unknowns that carry history (slow states, initial temperature rises) to their
   /// starting values, before the operating point or a cold start.
   virtual void initialState(double* /*x*/) const {}
@@ -150,6 +169,14 @@ class Device {
   std::string name_;
   std::vector<NodeId> terminals_;
 };
+
+/// A DeviceParameter from a getter and a setter of device type D.
+template <class D, class G, class S>
+DeviceParameter parameterOf(std::string name, G getter, S setter) {
+  return {std::move(name),
+          [getter](const Device& d) { return (static_cast<const D&>(d).*getter)(); },
+          [setter](Device& d, double v) { (static_cast<D&>(d).*setter)(v); }};
+}
 
 /// CRTP helper giving a device its clone().
 template <class Derived>

@@ -24,9 +24,9 @@ namespace disc::measure {
 
 /// DC output figures over the last `cycles` mains periods of a run.
 struct OutputFigures {
-  double mean = 0.0;              ///< V
-  double ripplePeakToPeak = 0.0;  ///< V
-  double rippleRms = 0.0;         ///< V, rms of v - mean
+  double mean = 0.0;                    ///< V
+  double ripplePeakToPeak = 0.0;        ///< V
+  double rippleRms = 0.0;               ///< V, rms of v - mean
   double window0 = 0.0, window1 = 0.0;  ///< s, the window used
   int cycles = 0;
 };

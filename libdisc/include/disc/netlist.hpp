@@ -1,7 +1,9 @@
 // The netlist language: a supply described in a text file (docs/netlist.md).
 #pragma once
 
+#include <map>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "disc/analysis.hpp"
@@ -53,14 +55,32 @@ struct OutputSpec {
 
 /// A parsed, validated netlist, ready to run.
 struct Netlist {
-  std::string path;   ///< the file, or a name given for text
+  std::string path;  ///< the file, or a name given for text
   std::string title;
   Circuit circuit;
   PlateLibrary plateTypes;  ///< built-in types plus those the file derives or uses
   std::vector<AnalysisRequest> analyses;
   std::vector<std::string> record;  ///< extra signals the file asks for
   OutputSpec output;
+  /// Where each element and each node reference was written (for topology messages).
+  std::map<std::string, SourceLocation> elementWhere;
+  std::map<std::string, std::vector<SourceLocation>> nodeRefs;
 };
+
+/// A netlist with the built-in plate types and nothing else, to be filled by appendNetlist().
+Netlist emptyNetlist(const std::string& name = "<text>");
+/// Adds statements (any of the language) to a netlist, with the same checks and messages as a
+/// file; `name` stands for the text in messages. Throws NetlistError; the netlist keeps what
+/// was added before the failing text.
+void appendNetlist(Netlist& netlist, const std::string& text, const std::string& name = "<text>");
+/// The whole-circuit checks (dangling nodes, parts without a path to gnd, loops of voltage
+/// sources and inductors). Throws NetlistError.
+void checkNetlist(const Netlist& netlist);
+/// One element statement from its parts: kind, name, nodes, and parameters as text values
+/// ("4.7k", "se-25mm-square"). The same checks as the language.
+void addElement(Netlist& netlist, const std::string& kind, const std::string& name,
+                const std::vector<std::string>& nodes,
+                const std::vector<std::pair<std::string, std::string>>& params);
 
 /// Parses netlist text; `name` stands for the file in messages and anchors relative paths of
 /// `include` and `use` (its directory). Throws NetlistError listing every problem found.

@@ -33,8 +33,8 @@ struct PlatePhysics {
 
 /// Heat path of one plate.
 struct PlateThermal {
-  double rth = 67.0;        ///< plate to ambient, K/W
-  double cth = 1.5;         ///< heat capacity, J/K
+  double rth = 67.0;          ///< plate to ambient, K/W
+  double cth = 1.5;           ///< heat capacity, J/K
   double rthCoupling = 50.0;  ///< to each neighbour on the same spindle, K/W
 };
 
@@ -53,12 +53,12 @@ struct PlateHistory {
 
 /// Ratings as the trade states them, per plate.
 struct PlateRatings {
-  double rmsReverseResistive = 26.0;   ///< V rms, resistive load
-  double rmsReverseCapacitive = 13.0;  ///< V rms, capacitive (reservoir) load
-  double peakReverse = 36.77;          ///< V
-  double currentDensity = 0.030;       ///< rated DC average density, natural cooling, A/cm^2
-  double maxPlateTemperature = 348.15; ///< K
-  double ambientReference = 308.15;    ///< K, full rating up to this ambient
+  double rmsReverseResistive = 26.0;    ///< V rms, resistive load
+  double rmsReverseCapacitive = 13.0;   ///< V rms, capacitive (reservoir) load
+  double peakReverse = 36.77;           ///< V
+  double currentDensity = 0.030;        ///< rated DC average density, natural cooling, A/cm^2
+  double maxPlateTemperature = 348.15;  ///< K
+  double ambientReference = 308.15;     ///< K, full rating up to this ambient
 };
 
 /// One plate type.

@@ -15,21 +15,21 @@ namespace disc::reference {
 /// Mains transformer, silicon bridge, reservoir capacitor and resistive load: a 15 V, 1 A class
 /// bench supply. Nodes: line, sa, sb (secondary), out; devices: MAINS, T1, D1..D4, C1, RL.
 struct BridgeSupply {
-  double mainsRms = 230.0;         ///< V
-  double frequency = 50.0;         ///< Hz
-  double mainsResistance = 0.5;    ///< ohm
+  double mainsRms = 230.0;       ///< V
+  double frequency = 50.0;       ///< Hz
+  double mainsResistance = 0.5;  ///< ohm
   TransformerParams transformer{230.0 / 15.0, 4.0, 0.1, 20e-3, 1e-4, 20.0};
   DiodeParams diode{};
-  double reservoir = 2200e-6;      ///< F
-  double load = 18.0;              ///< ohm
+  double reservoir = 2200e-6;  ///< F
+  double load = 18.0;          ///< ohm
 };
 Circuit bridgeSupply(const BridgeSupply& spec = {});
 
 /// Sine source, one diode, R parallel C. Nodes: in, out; devices: V1, D1, C1, RL.
 struct HalfWaveRc {
-  double rms = 120.0;         ///< V
-  double frequency = 60.0;    ///< Hz
-  double load = 500.0;        ///< ohm
+  double rms = 120.0;           ///< V
+  double frequency = 60.0;      ///< Hz
+  double load = 500.0;          ///< ohm
   double capacitance = 100e-6;  ///< F
   DiodeParams diode = stiffDiode();
   /// A nearly ideal rectifier: 0.05 emission coefficient gives about 36 mV at 1 A.
@@ -41,14 +41,14 @@ Circuit halfWaveRc(const HalfWaveRc& spec = {});
 /// behind a winding resistance, with small capacitances from the bridge inputs to gnd so the
 /// problem is an ODE that an independent solver can integrate. Nodes: s, a, b, out.
 struct ShockleyBridge {
-  double amplitude = 20.0;     ///< V
-  double frequency = 50.0;     ///< Hz
-  double winding = 1.0;        ///< ohm
-  double is = 1e-9;            ///< A
+  double amplitude = 20.0;  ///< V
+  double frequency = 50.0;  ///< Hz
+  double winding = 1.0;     ///< ohm
+  double is = 1e-9;         ///< A
   double n = 1.5;
   double inputCapacitance = 10e-9;  ///< F, a and b to gnd
-  double reservoir = 1000e-6;  ///< F
-  double load = 50.0;          ///< ohm
+  double reservoir = 1000e-6;       ///< F
+  double load = 50.0;               ///< ohm
 };
 Circuit shockleyBridge(const ShockleyBridge& spec = {});
 
@@ -56,13 +56,13 @@ Circuit shockleyBridge(const ShockleyBridge& spec = {});
 /// reservoir capacitor and load, a valve-radio class 75 V, 0.15 A supply. Nodes: line, sa, sb,
 /// out; devices: MAINS, T1, SR1..SR4, C1, RL.
 struct SeleniumBridge {
-  double mainsRms = 230.0;       ///< V
-  double frequency = 50.0;       ///< Hz
-  double secondaryRms = 60.0;    ///< V
+  double mainsRms = 230.0;     ///< V
+  double frequency = 50.0;     ///< Hz
+  double secondaryRms = 60.0;  ///< V
   std::string plateType = "se-25mm-square";
   StackOptions stack = defaultStack();
-  double reservoir = 100e-6;     ///< F
-  double load = 500.0;           ///< ohm
+  double reservoir = 100e-6;  ///< F
+  double load = 500.0;        ///< ohm
   static StackOptions defaultStack();
 };
 Circuit seleniumBridge(const SeleniumBridge& spec = {});

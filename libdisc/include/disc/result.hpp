@@ -10,12 +10,12 @@ namespace disc {
 
 /// Work counters of one analysis run.
 struct RunStats {
-  std::string method;          ///< "operating-point", "trap", "bdf2" or "ida"
+  std::string method;  ///< "operating-point", "trap", "bdf2" or "ida"
   long acceptedSteps = 0;
-  long rejectedSteps = 0;      ///< truncation-error and Newton-failure rejections together
+  long rejectedSteps = 0;  ///< truncation-error and Newton-failure rejections together
   long newtonIterations = 0;
   long factorizations = 0;
-  long evaluations = 0;        ///< device-evaluation sweeps
+  long evaluations = 0;  ///< device-evaluation sweeps
   int unknowns = 0;
   double wallSeconds = 0.0;
 };

@@ -15,26 +15,26 @@ struct Verdict {
   double value = 0.0;
   double limit = 0.0;
   std::string unit;
-  std::string level;   ///< "ok" (at most 90 % of the limit), "marginal" (90-100 %), "exceeds"
-  std::string rule;    ///< the rule used, in words
+  std::string level;  ///< "ok" (at most 90 % of the limit), "marginal" (90-100 %), "exceeds"
+  std::string rule;   ///< the rule used, in words
 };
 
 struct StackFigures {
   std::string name, type, material, mode, loadKind;  ///< loadKind: "capacitive" or "resistive"
   int plates = 1, arms = 1;
-  double peakReverse = 0;        ///< V per plate, largest over plates, settled window
-  double rmsReverse = 0;         ///< V per plate, sine-equivalent AC rms for the load kind
+  double peakReverse = 0;                ///< V per plate, largest over plates, settled window
+  double rmsReverse = 0;                 ///< V per plate, sine-equivalent AC rms for the load kind
   double rmsRating = 0, peakRating = 0;  ///< V per plate
   double currentAverage = 0, currentRms = 0, currentPeak = 0;  ///< A, whole stack, forward
-  double densityAverage = 0;     ///< A/cm2, per plate area, average forward per arm
-  double densityRating = 0;      ///< A/cm2, derated for the ambient
-  double surgePeak = 0;          ///< A, largest stack current over the whole run
+  double densityAverage = 0;                  ///< A/cm2, per plate area, average forward per arm
+  double densityRating = 0;                   ///< A/cm2, derated for the ambient
+  double surgePeak = 0;                       ///< A, largest stack current over the whole run
   double powerForward = 0, powerReverse = 0;  ///< W, whole stack, settled averages
-  double powerPerPlate = 0;      ///< W, average per plate
-  double temperatureEnd = 0;     ///< K, hottest plate at the end of the run
-  double temperatureSteady = 0;  ///< K, steady-state estimate for the hottest plate
-  double temperatureLimit = 0;   ///< K
-  std::vector<double> armShare;  ///< fraction of the stack current per parallel arm
+  double powerPerPlate = 0;                   ///< W, average per plate
+  double temperatureEnd = 0;                  ///< K, hottest plate at the end of the run
+  double temperatureSteady = 0;               ///< K, steady-state estimate for the hottest plate
+  double temperatureLimit = 0;                ///< K
+  std::vector<double> armShare;               ///< fraction of the stack current per parallel arm
   double formingStart = 1, formingEnd = 1;
   std::vector<Verdict> verdicts;
 };
@@ -49,8 +49,8 @@ struct OutputFigures {
 struct SupplyReport {
   static constexpr int kSchema = 1;
   std::string title, file;
-  double ambient = 0;               ///< K
-  double frequency = 0;             ///< Hz of the mains (0 for DC supplies)
+  double ambient = 0;    ///< K
+  double frequency = 0;  ///< Hz of the mains (0 for DC supplies)
   bool settled = false;
   int cycles = 0;                   ///< settled cycles the figures use
   double window0 = 0, window1 = 0;  ///< s
@@ -59,7 +59,7 @@ struct SupplyReport {
   std::vector<std::string> warnings;
   std::vector<std::string> cautions;
   std::string disclaimer;
-  std::string worst = "ok";         ///< worst verdict level
+  std::string worst = "ok";  ///< worst verdict level
   RunStats stats;
 };
 

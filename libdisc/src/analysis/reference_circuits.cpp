@@ -137,12 +137,13 @@ Circuit diodeLadder(int count) {
 }
 
 std::vector<std::string> names() {
-  return {"bridge", "selenium-bridge", "selenium-bridge-lumped", "half-wave", "shockley-bridge",
-          "ladder-100"};
+  return {"bridge",    "selenium-bridge", "selenium-bridge-lumped",
+          "half-wave", "shockley-bridge", "ladder-100"};
 }
 
 std::string describe(const std::string& name) {
-  if (name == "bridge") return "230 V 50 Hz mains, transformer, silicon bridge, 2200 uF, 18 ohm load";
+  if (name == "bridge")
+    return "230 V 50 Hz mains, transformer, silicon bridge, 2200 uF, 18 ohm load";
   if (name == "half-wave") return "120 V 60 Hz, near-ideal diode, 100 uF parallel 500 ohm";
   if (name == "selenium-bridge")
     return "230 V 50 Hz mains, 60 V transformer, selenium bridge 4 x 5 plates, 100 uF, 500 ohm";
@@ -164,9 +165,10 @@ Circuit build(const std::string& name) {
   }
   if (name == "half-wave") return halfWaveRc();
   if (name == "shockley-bridge") return shockleyBridge();
-  throw InputError(fmt::format("no reference circuit named '{}'; try one of: bridge, half-wave, "
-                               "selenium-bridge, selenium-bridge-lumped, shockley-bridge, ladder-N (N diodes)",
-                               name));
+  throw InputError(
+      fmt::format("no reference circuit named '{}'; try one of: bridge, half-wave, "
+                  "selenium-bridge, selenium-bridge-lumped, shockley-bridge, ladder-N (N diodes)",
+                  name));
 }
 
 std::string outputNode(const std::string& name) {

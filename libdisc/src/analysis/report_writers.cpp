@@ -1,9 +1,9 @@
 // Report text, JSON, HTML, CSV and SVG plots; atomic file writing.
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <fmt/format.h>
 #include <fstream>
 #include <nlohmann/json.hpp>
 
@@ -14,25 +14,36 @@
 namespace disc {
 namespace {
 
-double toC(double kelvin) { return kelvin - 273.15; }
+double toC(double kelvin) {
+  return kelvin - 273.15;
+}
 
 std::string escapeHtml(const std::string& s) {
   std::string o;
   for (char c : s) {
     switch (c) {
-      case '<': o += "&lt;"; break;
-      case '>': o += "&gt;"; break;
-      case '&': o += "&amp;"; break;
-      case '"': o += "&quot;"; break;
-      default: o += c;
+      case '<':
+        o += "&lt;";
+        break;
+      case '>':
+        o += "&gt;";
+        break;
+      case '&':
+        o += "&amp;";
+        break;
+      case '"':
+        o += "&quot;";
+        break;
+      default:
+        o += c;
     }
   }
   return o;
 }
 
 nlohmann::json verdictJson(const Verdict& v) {
-  return {{"figure", v.figure}, {"value", v.value}, {"limit", v.limit}, {"unit", v.unit},
-          {"level", v.level}, {"rule", v.rule}};
+  return {{"figure", v.figure}, {"value", v.value}, {"limit", v.limit},
+          {"unit", v.unit},     {"level", v.level}, {"rule", v.rule}};
 }
 
 /// "Nice" tick positions covering [lo, hi].
@@ -61,34 +72,42 @@ std::string reportText(const SupplyReport& r) {
   const auto& o = r.output;
   line("OUTPUT");
   line(fmt::format("  DC voltage            {:10.3f} V", o.mean));
-  line(fmt::format("  ripple                {:10.3f} V peak-to-peak, {:.3f} V rms (ripple factor {:.4f})",
-                   o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
+  line(fmt::format(
+      "  ripple                {:10.3f} V peak-to-peak, {:.3f} V rms (ripple factor {:.4f})",
+      o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
   line(fmt::format("  load current          {:10.4f} A", o.loadCurrent));
   line(fmt::format("  output power          {:10.3f} W", o.outputPower));
   line(fmt::format("  input power           {:10.3f} W   efficiency {:.1f} %   power factor {:.3f}",
                    o.inputPower, 100 * o.efficiency, o.powerFactor));
   if (o.hasTransformer)
-    line(fmt::format("  transformer secondary {:10.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent, o.secondaryVA));
+    line(fmt::format("  transformer secondary {:10.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent,
+                     o.secondaryVA));
   for (const auto& st : r.stacks) {
     line("");
-    line(fmt::format("STACK {}: {} x {} plate(s) of {} ({}, {}), {} load", st.name, st.arms, st.plates,
-                     st.type, st.material, st.mode, st.loadKind));
-    line(fmt::format("  forward current       {:.4f} A average, {:.4f} A rms, {:.4f} A peak; switch-on surge {:.3f} A",
-                     st.currentAverage, st.currentRms, st.currentPeak, st.surgePeak));
-    line(fmt::format("  dissipation           {:.3f} W forward + {:.3f} W reverse ({:.3f} W per plate)",
-                     st.powerForward, st.powerReverse, st.powerPerPlate));
-    line(fmt::format("  hottest plate         {:.1f} degC at end of run, {:.1f} degC steady-state estimate, limit {:.0f} degC",
-                     toC(st.temperatureEnd), toC(st.temperatureSteady), toC(st.temperatureLimit)));
+    line(fmt::format("STACK {}: {} x {} plate(s) of {} ({}, {}), {} load", st.name, st.arms,
+                     st.plates, st.type, st.material, st.mode, st.loadKind));
+    line(
+        fmt::format("  forward current       {:.4f} A average, {:.4f} A rms, {:.4f} A peak; "
+                    "switch-on surge {:.3f} A",
+                    st.currentAverage, st.currentRms, st.currentPeak, st.surgePeak));
+    line(fmt::format(
+        "  dissipation           {:.3f} W forward + {:.3f} W reverse ({:.3f} W per plate)",
+        st.powerForward, st.powerReverse, st.powerPerPlate));
+    line(
+        fmt::format("  hottest plate         {:.1f} degC at end of run, {:.1f} degC steady-state "
+                    "estimate, limit {:.0f} degC",
+                    toC(st.temperatureEnd), toC(st.temperatureSteady), toC(st.temperatureLimit)));
     if (st.arms > 1) {
       std::string shares;
       for (double a : st.armShare) shares += fmt::format(" {:.1f} %", 100 * a);
       line("  arm current shares   " + shares);
     }
     if (st.formingStart < 0.999 || st.formingEnd < 0.999)
-      line(fmt::format("  forming state         {:.3f} at start, {:.3f} at end", st.formingStart, st.formingEnd));
+      line(fmt::format("  forming state         {:.3f} at start, {:.3f} at end", st.formingStart,
+                       st.formingEnd));
     for (const auto& v : st.verdicts)
-      line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value, v.unit,
-                       v.limit, v.unit));
+      line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value,
+                       v.unit, v.limit, v.unit));
   }
   line("");
   line(fmt::format("OVERALL: {}", r.worst));
@@ -206,41 +225,52 @@ std::string svgPlot(const std::string& title, const std::string& xLabel, const s
   static const char* palette[] = {"#1f5fa8", "#c0392b", "#2e8b57", "#8e44ad", "#d68910", "#17a2b8",
                                   "#6d4c41", "#e91e63", "#455a64", "#7cb342", "#ff7043", "#3949ab"};
   std::string s = fmt::format(
-      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} {1}\" "
-      "font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"{0}\" height=\"{1}\" fill=\"white\"/>\n"
+      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} "
+      "{1}\" "
+      "font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"{0}\" height=\"{1}\" "
+      "fill=\"white\"/>\n"
       "<text x=\"{2}\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{3}</text>\n",
       W, H, L, escapeHtml(title));
   for (double tx : ticks(x0, x1))
-    s += fmt::format("<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#e4e4e4\"/>"
-                     "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4:g}</text>\n",
-                     px(tx), T, H - B, H - B + 16, std::abs(tx) < 1e-9 * (x1 - x0) ? 0.0 : tx);
+    s += fmt::format(
+        "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#e4e4e4\"/>"
+        "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4:g}</text>\n",
+        px(tx), T, H - B, H - B + 16, std::abs(tx) < 1e-9 * (x1 - x0) ? 0.0 : tx);
   for (double ty : ticks(y0, y1))
-    s += fmt::format("<line x1=\"{0}\" y1=\"{1:.1f}\" x2=\"{2}\" y2=\"{1:.1f}\" stroke=\"#e4e4e4\"/>"
-                     "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5:g}</text>\n",
-                     L, py(ty), W - R, L - 6, py(ty) + 4, std::abs(ty) < 1e-9 * (y1 - y0) ? 0.0 : ty);
-  s += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#444\"/>\n",
-                   L, T, W - L - R, H - T - B);
-  s += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", (L + W - R) / 2, H - 12,
-                   escapeHtml(xLabel));
-  s += fmt::format("<text x=\"18\" y=\"{0}\" text-anchor=\"middle\" transform=\"rotate(-90 18 {0})\">{1}</text>\n",
-                   (T + H - B) / 2, escapeHtml(yLabel));
+    s += fmt::format(
+        "<line x1=\"{0}\" y1=\"{1:.1f}\" x2=\"{2}\" y2=\"{1:.1f}\" stroke=\"#e4e4e4\"/>"
+        "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5:g}</text>\n",
+        L, py(ty), W - R, L - 6, py(ty) + 4, std::abs(ty) < 1e-9 * (y1 - y0) ? 0.0 : ty);
+  s += fmt::format(
+      "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#444\"/>\n", L, T,
+      W - L - R, H - T - B);
+  s += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", (L + W - R) / 2,
+                   H - 12, escapeHtml(xLabel));
+  s += fmt::format(
+      "<text x=\"18\" y=\"{0}\" text-anchor=\"middle\" transform=\"rotate(-90 18 "
+      "{0})\">{1}</text>\n",
+      (T + H - B) / 2, escapeHtml(yLabel));
   for (std::size_t k = 0; k < series.size(); ++k) {
     const auto& sr = series[k];
     const char* colour = palette[k % 12];
     const std::size_t stride = std::max<std::size_t>(1, sr.x.size() / 3000);
     std::string pts;
-    for (std::size_t i = 0; i < sr.x.size(); i += stride) pts += fmt::format("{:.1f},{:.1f} ", px(sr.x[i]), py(sr.y[i]));
-    s += fmt::format("<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"1.3\" points=\"{}\"/>\n", colour, pts);
-    s += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"2\"/>"
-                     "<text x=\"{4}\" y=\"{5}\">{6}</text>\n",
-                     W - R + 10, T + 10 + 16 * k, W - R + 28, colour, W - R + 32, T + 14 + 16 * k,
-                     escapeHtml(sr.name));
+    for (std::size_t i = 0; i < sr.x.size(); i += stride)
+      pts += fmt::format("{:.1f},{:.1f} ", px(sr.x[i]), py(sr.y[i]));
+    s += fmt::format("<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"1.3\" points=\"{}\"/>\n",
+                     colour, pts);
+    s += fmt::format(
+        "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"2\"/>"
+        "<text x=\"{4}\" y=\"{5}\">{6}</text>\n",
+        W - R + 10, T + 10 + 16 * k, W - R + 28, colour, W - R + 32, T + 14 + 16 * k,
+        escapeHtml(sr.name));
   }
   s += "</svg>\n";
   return s;
 }
 
-std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl, const RunOutcome& out) {
+std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl,
+                                                          const RunOutcome& out) {
   std::vector<std::pair<std::string, std::string>> plots;
   if (!out.hasReport) return plots;
   const SupplyReport& rep = out.report;
@@ -250,7 +280,8 @@ std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl, con
     if (a.request.kind == AnalysisRequest::Kind::Transient) r = &a.result;
   if (!r) return plots;
   const auto& t = r->time();
-  auto window = [&](const std::vector<double>& y, std::vector<double>& xs, std::vector<double>& ys) {
+  auto window = [&](const std::vector<double>& y, std::vector<double>& xs,
+                    std::vector<double>& ys) {
     for (std::size_t k = 0; k < t.size(); ++k)
       if (t[k] >= rep.window0) {
         xs.push_back(t[k]);
@@ -258,15 +289,18 @@ std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl, con
       }
   };
   const std::string outSig = fmt::format("v:{},{}", nl.output.positive, nl.output.negative);
-  plots.emplace_back("output-voltage", svgPlot("Output voltage", "time (s)", "V", {{outSig, t, (*r)[outSig]}}));
+  plots.emplace_back("output-voltage",
+                     svgPlot("Output voltage", "time (s)", "V", {{outSig, t, (*r)[outSig]}}));
   std::vector<PlotSeries> temps;
   for (const auto& st : rep.stacks) {
     PlotSeries cur{"i:" + st.name, {}, {}}, rev{"vrev:" + st.name, {}, {}};
     window((*r)["i:" + st.name], cur.x, cur.y);
     window((*r)["vrev:" + st.name], rev.x, rev.y);
-    plots.emplace_back(st.name + "-current", svgPlot(st.name + ": current over the settled window", "time (s)", "A", {cur}));
-    plots.emplace_back(st.name + "-reverse-voltage",
-                       svgPlot(st.name + ": largest reverse voltage per plate", "time (s)", "V", {rev}));
+    plots.emplace_back(st.name + "-current", svgPlot(st.name + ": current over the settled window",
+                                                     "time (s)", "A", {cur}));
+    plots.emplace_back(
+        st.name + "-reverse-voltage",
+        svgPlot(st.name + ": largest reverse voltage per plate", "time (s)", "V", {rev}));
     std::vector<PlotSeries> iv;
     const int traced = std::min(st.plates * st.arms, 12);
     for (int n = 1; n <= traced; ++n) {
@@ -281,59 +315,81 @@ std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl, con
       s.y = i;
       iv.push_back(std::move(s));
     }
-    plots.emplace_back(st.name + "-plate-iv", svgPlot(st.name + ": plate I-V trajectories", "plate voltage (V)", "A", iv));
+    plots.emplace_back(st.name + "-plate-iv",
+                       svgPlot(st.name + ": plate I-V trajectories", "plate voltage (V)", "A", iv));
     PlotSeries tp{"hottest plate of " + st.name, t, (*r)["temp:" + st.name]};
     for (double& v : tp.y) v -= 273.15;
     temps.push_back(std::move(tp));
   }
-  if (!temps.empty()) plots.emplace_back("temperatures", svgPlot("Plate temperatures", "time (s)", "degC", temps));
+  if (!temps.empty())
+    plots.emplace_back("temperatures", svgPlot("Plate temperatures", "time (s)", "degC", temps));
   return plots;
 }
 
 std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   const SupplyReport& r = out.report;
   std::string h = "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>" +
-                  escapeHtml(r.title.empty() ? nl.path : r.title) + "</title>\n<style>"
+                  escapeHtml(r.title.empty() ? nl.path : r.title) +
+                  "</title>\n<style>"
                   "body{font-family:sans-serif;max-width:1000px;margin:2em auto;color:#222}"
-                  "table{border-collapse:collapse;margin:0.5em 0}td,th{border:1px solid #bbb;padding:3px 8px;text-align:left}"
+                  "table{border-collapse:collapse;margin:0.5em 0}td,th{border:1px solid "
+                  "#bbb;padding:3px 8px;text-align:left}"
                   ".ok{background:#e3f1e3}.marginal{background:#fff3cd}.exceeds{background:#f8d7da}"
                   ".caution{border-left:4px solid #b03a2e;padding-left:8px}</style></head><body>\n";
   h += "<h1>" + escapeHtml(r.title.empty() ? "Supply report" : r.title) + "</h1>\n";
-  h += fmt::format("<p>File {}; ambient {:.1f} &deg;C; {} settled cycle(s) at {:g} Hz ({:.4f}-{:.4f} s){}. "
-                   "Overall: <span class=\"{}\">{}</span>.</p>\n",
-                   escapeHtml(r.file), toC(r.ambient), r.cycles, r.frequency, r.window0, r.window1,
-                   r.settled ? "" : " &mdash; not settled", r.worst, r.worst);
+  h += fmt::format(
+      "<p>File {}; ambient {:.1f} &deg;C; {} settled cycle(s) at {:g} Hz ({:.4f}-{:.4f} s){}. "
+      "Overall: <span class=\"{}\">{}</span>.</p>\n",
+      escapeHtml(r.file), toC(r.ambient), r.cycles, r.frequency, r.window0, r.window1,
+      r.settled ? "" : " &mdash; not settled", r.worst, r.worst);
   h += "<h2>Cautions</h2>\n";
   for (const auto& c : r.cautions) h += "<p class=\"caution\">" + escapeHtml(c) + "</p>\n";
   h += "<p><em>" + escapeHtml(r.disclaimer) + "</em></p>\n";
   const auto& o = r.output;
   h += "<h2>Output</h2>\n<table>";
-  auto row = [&](const std::string& k, const std::string& v) { h += "<tr><th>" + k + "</th><td>" + v + "</td></tr>"; };
+  auto row = [&](const std::string& k, const std::string& v) {
+    h += "<tr><th>" + k + "</th><td>" + v + "</td></tr>";
+  };
   row("DC voltage", fmt::format("{:.3f} V", o.mean));
-  row("ripple", fmt::format("{:.3f} V peak-to-peak, {:.3f} V rms, factor {:.4f}", o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
+  row("ripple", fmt::format("{:.3f} V peak-to-peak, {:.3f} V rms, factor {:.4f}",
+                            o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
   row("load current", fmt::format("{:.4f} A", o.loadCurrent));
-  row("output / input power", fmt::format("{:.3f} W / {:.3f} W, efficiency {:.1f} %", o.outputPower, o.inputPower, 100 * o.efficiency));
+  row("output / input power", fmt::format("{:.3f} W / {:.3f} W, efficiency {:.1f} %", o.outputPower,
+                                          o.inputPower, 100 * o.efficiency));
   row("input power factor", fmt::format("{:.3f}", o.powerFactor));
-  if (o.hasTransformer) row("transformer secondary", fmt::format("{:.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent, o.secondaryVA));
+  if (o.hasTransformer)
+    row("transformer secondary",
+        fmt::format("{:.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent, o.secondaryVA));
   h += "</table>\n";
   for (const auto& s : r.stacks) {
-    h += fmt::format("<h2>Stack {}</h2>\n<p>{} arm(s) of {} plate(s), type {} ({}), {} model, {} load.</p>\n<table>",
-                     escapeHtml(s.name), s.arms, s.plates, escapeHtml(s.type), escapeHtml(s.material), s.mode, s.loadKind);
-    row("forward current", fmt::format("{:.4f} A average, {:.4f} A rms, {:.4f} A peak", s.currentAverage, s.currentRms, s.currentPeak));
+    h += fmt::format(
+        "<h2>Stack {}</h2>\n<p>{} arm(s) of {} plate(s), type {} ({}), {} model, {} "
+        "load.</p>\n<table>",
+        escapeHtml(s.name), s.arms, s.plates, escapeHtml(s.type), escapeHtml(s.material), s.mode,
+        s.loadKind);
+    row("forward current", fmt::format("{:.4f} A average, {:.4f} A rms, {:.4f} A peak",
+                                       s.currentAverage, s.currentRms, s.currentPeak));
     row("switch-on surge", fmt::format("{:.3f} A", s.surgePeak));
-    row("dissipation", fmt::format("{:.3f} W forward, {:.3f} W reverse, {:.3f} W per plate", s.powerForward, s.powerReverse, s.powerPerPlate));
-    row("hottest plate", fmt::format("{:.1f} &deg;C at end, {:.1f} &deg;C steady estimate, limit {:.0f} &deg;C",
-                                     toC(s.temperatureEnd), toC(s.temperatureSteady), toC(s.temperatureLimit)));
+    row("dissipation", fmt::format("{:.3f} W forward, {:.3f} W reverse, {:.3f} W per plate",
+                                   s.powerForward, s.powerReverse, s.powerPerPlate));
+    row("hottest plate",
+        fmt::format("{:.1f} &deg;C at end, {:.1f} &deg;C steady estimate, limit {:.0f} &deg;C",
+                    toC(s.temperatureEnd), toC(s.temperatureSteady), toC(s.temperatureLimit)));
     if (s.arms > 1) {
       std::string shares;
       for (double a : s.armShare) shares += fmt::format("{:.1f} % ", 100 * a);
       row("arm shares", shares);
     }
-    row("forming state", fmt::format("{:.3f} at start, {:.3f} at end", s.formingStart, s.formingEnd));
-    h += "</table>\n<table><tr><th>figure</th><th>value</th><th>limit</th><th>verdict</th><th>rule</th></tr>";
+    row("forming state",
+        fmt::format("{:.3f} at start, {:.3f} at end", s.formingStart, s.formingEnd));
+    h += "</table>\n<table><tr><th>figure</th><th>value</th><th>limit</th><th>verdict</"
+         "th><th>rule</th></tr>";
     for (const auto& v : s.verdicts)
-      h += fmt::format("<tr class=\"{}\"><td>{}</td><td>{:.3g} {}</td><td>{:.3g} {}</td><td>{}</td><td>{}</td></tr>",
-                       v.level, escapeHtml(v.figure), v.value, v.unit, v.limit, v.unit, v.level, escapeHtml(v.rule));
+      h += fmt::format(
+          "<tr class=\"{}\"><td>{}</td><td>{:.3g} {}</td><td>{:.3g} "
+          "{}</td><td>{}</td><td>{}</td></tr>",
+          v.level, escapeHtml(v.figure), v.value, v.unit, v.limit, v.unit, v.level,
+          escapeHtml(v.rule));
     h += "</table>\n";
   }
   if (!r.warnings.empty()) {
@@ -343,8 +399,10 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   }
   h += "<h2>Plots</h2>\n";
   for (const auto& [name, svg] : runPlots(nl, out)) h += "<div>" + svg + "</div>\n";
-  h += fmt::format("<p><small>libdisc {}; {} steps, {} rejected, {} Newton iterations, {:.3f} s.</small></p>\n",
-                   kVersion, r.stats.acceptedSteps, r.stats.rejectedSteps, r.stats.newtonIterations, r.stats.wallSeconds);
+  h += fmt::format(
+      "<p><small>libdisc {}; {} steps, {} rejected, {} Newton iterations, {:.3f} s.</small></p>\n",
+      kVersion, r.stats.acceptedSteps, r.stats.rejectedSteps, r.stats.newtonIterations,
+      r.stats.wallSeconds);
   h += "</body></html>\n";
   return h;
 }
@@ -367,7 +425,8 @@ void writeFileAtomically(const std::string& path, const std::string& content) {
   }
 }
 
-std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out, const std::string& dir) {
+std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
+                                       const std::string& dir) {
   std::error_code ec;
   std::filesystem::create_directories(dir, ec);
   if (ec) throw Error(fmt::format("cannot create the output folder '{}': {}", dir, ec.message()));
@@ -379,7 +438,8 @@ std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
   };
   for (std::size_t k = 0; k < out.analyses.size(); ++k) {
     const auto& a = out.analyses[k];
-    const char* kind = a.request.kind == AnalysisRequest::Kind::Transient ? "transient" : "operating-point";
+    const char* kind =
+        a.request.kind == AnalysisRequest::Kind::Transient ? "transient" : "operating-point";
     put(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
   }
   if (out.hasReport) {

@@ -7,7 +7,8 @@ namespace disc {
 
 RunOutcome runNetlist(Netlist& nl, std::function<bool(double, double)> progress) {
   RunOutcome out;
-  const std::vector<std::string> reportSig = nl.output.given ? reportSignals(nl) : std::vector<std::string>{};
+  const std::vector<std::string> reportSig =
+      nl.output.given ? reportSignals(nl) : std::vector<std::string>{};
   std::size_t lastTransient = nl.analyses.size();
   for (std::size_t k = 0; k < nl.analyses.size(); ++k)
     if (nl.analyses[k].kind == AnalysisRequest::Kind::Transient) lastTransient = k;

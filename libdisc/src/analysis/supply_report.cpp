@@ -1,9 +1,9 @@
 // Supply report figures and verdicts.
 #include "disc/supply_report.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 #include <numbers>
 
 #include "disc/devices/capacitor.hpp"
@@ -17,7 +17,9 @@ namespace {
 
 constexpr int kMaxPlateTraces = 12;  // plates per stack whose I-V trajectories are recorded
 
-std::string vname(const Circuit& c, NodeId id) { return c.nodeName(id); }
+std::string vname(const Circuit& c, NodeId id) {
+  return c.nodeName(id);
+}
 
 /// Mains frequency: the lowest sine frequency among the sources (0 for a DC supply).
 double mainsFrequency(const Circuit& c) {
@@ -38,7 +40,9 @@ Verdict judge(std::string figure, double value, double limit, std::string unit, 
   return v;
 }
 
-int rank(const std::string& level) { return level == "exceeds" ? 2 : level == "marginal" ? 1 : 0; }
+int rank(const std::string& level) {
+  return level == "exceeds" ? 2 : level == "marginal" ? 1 : 0;
+}
 
 }  // namespace
 
@@ -62,7 +66,8 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
     } else if (auto* st = dynamic_cast<const Stack*>(d.get())) {
       for (const char* q : {"i", "vrev", "temp", "form", "pfwd", "prev"})
         s.push_back(fmt::format("{}:{}", q, d->name()));
-      for (int m = 1; m <= st->options().arms; ++m) s.push_back(fmt::format("iarm:{}#{}", d->name(), m));
+      for (int m = 1; m <= st->options().arms; ++m)
+        s.push_back(fmt::format("iarm:{}#{}", d->name(), m));
       const int traced = std::min(st->plateCount(), kMaxPlateTraces);
       for (int n = 1; n <= traced; ++n) {
         s.push_back(fmt::format("vrev:{}#{}", d->name(), n));
@@ -113,10 +118,10 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   }
   const double w0 = rep.window0, w1 = rep.window1;
   if (!rep.settled)
-    rep.warnings.push_back(rep.frequency > 0.0
-                               ? "the output had not settled by the end of the run: figures use the "
-                                 "last cycle; run longer for settled figures"
-                               : "no mains frequency: figures use the last tenth of the run");
+    rep.warnings.push_back(
+        rep.frequency > 0.0 ? "the output had not settled by the end of the run: figures use the "
+                              "last cycle; run longer for settled figures"
+                            : "no mains frequency: figures use the last tenth of the run");
 
   // Output.
   auto& o = rep.output;
@@ -136,14 +141,16 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     if (dynamic_cast<const VoltageSource*>(d.get())) {
       o.inputPower += -measure::mean(t, r["p:" + d->name()], w0, w1);
       if (vrms == 0.0) {
-        vrms = measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))], w0, w1);
+        vrms = measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))], w0,
+                            w1);
         irms = measure::rms(t, r["i:" + d->name()], w0, w1);
       }
     } else if (dynamic_cast<const Transformer*>(d.get()) && !o.hasTransformer) {
       o.hasTransformer = true;
       o.secondaryRmsCurrent = measure::rms(t, r["i2:" + d->name()], w0, w1);
-      o.secondaryVA = o.secondaryRmsCurrent *
-                      measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[2]), vname(c, term[3]))], w0, w1);
+      o.secondaryVA =
+          o.secondaryRmsCurrent *
+          measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[2]), vname(c, term[3]))], w0, w1);
     }
   }
   o.efficiency = o.inputPower > 0 ? o.outputPower / o.inputPower : 0.0;
@@ -168,7 +175,8 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     for (const auto& e : c.devices())
       if (dynamic_cast<const Capacitor*>(e.get()))
         for (NodeId n : e->terminals())
-          if (n != kGround && (n == st->terminals()[0] || n == st->terminals()[1])) capacitive = true;
+          if (n != kGround && (n == st->terminals()[0] || n == st->terminals()[1]))
+            capacitive = true;
     if (nl.output.kind != OutputSpec::LoadKind::Auto)
       capacitive = nl.output.kind == OutputSpec::LoadKind::Capacitive;
     s.loadKind = capacitive ? "capacitive" : "resistive";
@@ -187,7 +195,8 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     for (double x : i) surge = std::max(surge, std::abs(x));
     s.surgePeak = surge;
     s.densityAverage = s.currentAverage / s.arms / pt.physics.areaCm2;
-    const double ta = c.ambient(), tmax = pt.ratings.maxPlateTemperature, tref = pt.ratings.ambientReference;
+    const double ta = c.ambient(), tmax = pt.ratings.maxPlateTemperature,
+                 tref = pt.ratings.ambientReference;
     const double derate = ta <= tref ? 1.0 : std::clamp((tmax - ta) / (tmax - tref), 0.0, 1.0);
     s.densityRating = pt.ratings.currentDensity * derate;
     s.powerForward = measure::mean(t, r["pfwd:" + n], w0, w1);
@@ -215,34 +224,36 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     s.formingStart = r["form:" + n].front();
     s.formingEnd = r["form:" + n].back();
 
-    s.verdicts.push_back(judge("peak reverse voltage per plate", s.peakReverse, s.peakRating, "V",
-                               "largest reverse voltage on any plate against the type's peak rating"));
+    s.verdicts.push_back(
+        judge("peak reverse voltage per plate", s.peakReverse, s.peakRating, "V",
+              "largest reverse voltage on any plate against the type's peak rating"));
     s.verdicts.push_back(judge("rms reverse voltage per plate", s.rmsReverse, s.rmsRating, "V",
                                fmt::format("sine-equivalent rms (peak / {}) against the rms rating "
                                            "for a {} load",
                                            capacitive ? "2 sqrt 2" : "sqrt 2", s.loadKind)));
-    s.verdicts.push_back(judge("average forward current density", s.densityAverage * 1e3,
-                               s.densityRating * 1e3, "mA/cm2",
-                               "average forward current per arm over the plate area against the "
-                               "rated density, derated linearly to zero at the plate limit above the "
-                               "reference ambient"));
-    const Verdict tv = judge("plate temperature rise (steady-state estimate)", s.temperatureSteady - ta,
-                             tmax - ta, "K",
+    s.verdicts.push_back(judge(
+        "average forward current density", s.densityAverage * 1e3, s.densityRating * 1e3, "mA/cm2",
+        "average forward current per arm over the plate area against the "
+        "rated density, derated linearly to zero at the plate limit above the "
+        "reference ambient"));
+    const Verdict tv = judge("plate temperature rise (steady-state estimate)",
+                             s.temperatureSteady - ta, tmax - ta, "K",
                              "hottest plate's rise above ambient (average dissipation x thermal "
                              "resistance) against the room left below the type's limit");
     s.verdicts.push_back(tv);
     for (const auto& v : s.verdicts) {
       if (v.level == "ok") continue;
-      rep.warnings.push_back(fmt::format("{}: {} is {:.3g} {}, {} the {:.3g} {} limit ({})", s.name,
-                                         v.figure, v.value, v.unit,
-                                         v.level == "exceeds" ? "above" : "close to", v.limit, v.unit, v.rule));
+      rep.warnings.push_back(fmt::format(
+          "{}: {} is {:.3g} {}, {} the {:.3g} {} limit ({})", s.name, v.figure, v.value, v.unit,
+          v.level == "exceeds" ? "above" : "close to", v.limit, v.unit, v.rule));
     }
     if (s.arms > 1) {
       const double hi = *std::max_element(s.armShare.begin(), s.armShare.end());
       if (hi > 1.25 / s.arms)
-        rep.warnings.push_back(fmt::format("{}: one parallel arm carries {:.0f} % of the current "
-                                           "(equal sharing would be {:.0f} %)",
-                                           s.name, 100 * hi, 100.0 / s.arms));
+        rep.warnings.push_back(
+            fmt::format("{}: one parallel arm carries {:.0f} % of the current "
+                        "(equal sharing would be {:.0f} %)",
+                        s.name, 100 * hi, 100.0 / s.arms));
     }
     if (s.formingStart < 0.9)
       rep.warnings.push_back(fmt::format(
@@ -266,7 +277,8 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
         rep.cautions.begin(),
         "An overheated or failing selenium rectifier releases toxic fumes with a strong foul smell "
         "(the smell is no safe warning): switch off, ventilate, leave the room, do not inhale, let "
-        "it cool, and dispose of the plates as hazardous waste (they contain selenium and cadmium).");
+        "it cool, and dispose of the plates as hazardous waste (they contain selenium and "
+        "cadmium).");
   rep.disclaimer =
       "These figures are a simulation to plan work. They are no substitute for local electrical "
       "codes, the equipment maker's data or a qualified technician; model values are typical, and "

@@ -1,7 +1,7 @@
 // Waveform figures.
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 
 #include "disc/error.hpp"
 #include "disc/measures.hpp"
@@ -45,7 +45,8 @@ void segments(const std::vector<double>& t, const std::vector<double>& y, double
 double integral(const std::vector<double>& t, const std::vector<double>& y, double t0, double t1) {
   checkWindow(t, y, t0, t1);
   double s = 0.0;
-  segments(t, y, t0, t1, [&](double a, double ya, double b, double yb) { s += 0.5 * (ya + yb) * (b - a); });
+  segments(t, y, t0, t1,
+           [&](double a, double ya, double b, double yb) { s += 0.5 * (ya + yb) * (b - a); });
   return s;
 }
 
@@ -103,8 +104,9 @@ OutputFigures outputFigures(const std::vector<double>& t, const std::vector<doub
   f.window1 = t.back();
   f.window0 = f.window1 - cycles / frequency;
   if (f.window0 < t.front())
-    throw InputError(fmt::format("output figures: the run ({} s) is shorter than {} cycle(s) at {} Hz",
-                                 t.back() - t.front(), cycles, frequency));
+    throw InputError(
+        fmt::format("output figures: the run ({} s) is shorter than {} cycle(s) at {} Hz",
+                    t.back() - t.front(), cycles, frequency));
   f.mean = mean(t, v, f.window0, f.window1);
   f.ripplePeakToPeak = maximum(t, v, f.window0, f.window1) - minimum(t, v, f.window0, f.window1);
   const double r = rms(t, v, f.window0, f.window1);

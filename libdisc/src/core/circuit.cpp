@@ -1,8 +1,8 @@
 // Circuit bookkeeping: node names, device registry, deep copies.
 #include "disc/circuit.hpp"
 
-#include <cmath>
 #include <fmt/format.h>
+#include <cmath>
 
 #include "disc/error.hpp"
 
@@ -57,8 +57,8 @@ Device& Circuit::add(std::unique_ptr<Device> device) {
     throw InputError(fmt::format("a device named '{}' already exists", name));
   for (NodeId t : device->terminals())
     if (t != kGround && (t < 0 || t >= nodeCount()))
-      throw InputError(fmt::format("device '{}' refers to node id {} which this circuit lacks",
-                                   name, t));
+      throw InputError(
+          fmt::format("device '{}' refers to node id {} which this circuit lacks", name, t));
   deviceIndex_.emplace(name, devices_.size());
   devices_.push_back(std::move(device));
   return *devices_.back();

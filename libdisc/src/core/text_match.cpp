@@ -1,8 +1,8 @@
 // Did-you-mean suggestions.
 #include "text_match.hpp"
 
-#include <algorithm>
 #include <fmt/format.h>
+#include <algorithm>
 
 namespace disc::detail {
 

@@ -1,8 +1,8 @@
 // Source waveforms.
 #include "disc/waveform.hpp"
 
-#include <cmath>
 #include <fmt/format.h>
+#include <cmath>
 #include <numbers>
 
 #include "disc/error.hpp"
@@ -66,7 +66,8 @@ double Waveform::value(double t) const {
     case Shape::Sine: {
       // A gated sine starts at its own zero phase when switched on.
       const double t0 = std::isfinite(on_) ? on_ : 0.0;
-      return offset_ + amplitude_ * std::sin(2.0 * std::numbers::pi * frequency_ * (t - t0) + phase_);
+      return offset_ +
+             amplitude_ * std::sin(2.0 * std::numbers::pi * frequency_ * (t - t0) + phase_);
     }
     case Shape::Points: {
       if (t <= points_.front().first) return points_.front().second;

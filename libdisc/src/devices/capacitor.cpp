@@ -15,12 +15,20 @@ void Capacitor::setCapacitance(double farad) {
   c_ = farad;
 }
 
+const std::vector<DeviceParameter>& Capacitor::parameterTable() const {
+  static const std::vector<DeviceParameter> t = {
+      parameterOf<Capacitor>("capacitance", &Capacitor::capacitance, &Capacitor::setCapacitance)};
+  return t;
+}
+
 void Capacitor::bind(const Binding& b) {
   a_ = b.terminals[0];
   b_ = b.terminals[1];
 }
 
-void Capacitor::declare(PatternBuilder& pb) { s_.declare(pb, a_, b_); }
+void Capacitor::declare(PatternBuilder& pb) {
+  s_.declare(pb, a_, b_);
+}
 
 void Capacitor::evaluate(const EvalContext& ctx, Stamp& s) const {
   const double q = c_ * (ctx.x[a_] - ctx.x[b_]);
@@ -29,7 +37,9 @@ void Capacitor::evaluate(const EvalContext& ctx, Stamp& s) const {
   if (s.jacobian) s_.add(s.C, c_);
 }
 
-std::string Capacitor::probeUnit(int k) const { return k == 0 ? "A" : k == 1 ? "W" : "J"; }
+std::string Capacitor::probeUnit(int k) const {
+  return k == 0 ? "A" : k == 1 ? "W" : "J";
+}
 
 double Capacitor::probe(int k, const EvalContext& ctx) const {
   const double v = ctx.x[a_] - ctx.x[b_];

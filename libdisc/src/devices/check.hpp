@@ -1,8 +1,8 @@
 // Parameter checks shared by device constructors and setters (private).
 #pragma once
 
-#include <cmath>
 #include <fmt/format.h>
+#include <cmath>
 #include <string_view>
 
 #include "disc/error.hpp"
@@ -19,8 +19,8 @@ inline void requirePositive(std::string_view device, std::string_view what, doub
 inline void requireNonNegative(std::string_view device, std::string_view what, double v,
                                std::string_view unit) {
   if (!(v >= 0.0) || !std::isfinite(v))
-    throw InputError(
-        fmt::format("{}: {} must be zero or positive and finite, got {} {}", device, what, v, unit));
+    throw InputError(fmt::format("{}: {} must be zero or positive and finite, got {} {}", device,
+                                 what, v, unit));
 }
 
 }  // namespace disc::detail

@@ -1,7 +1,12 @@
 // Defaults shared by every device.
 #include "disc/device.hpp"
 
+#include <fmt/format.h>
+#include <cmath>
 #include <limits>
+
+#include "core/text_match.hpp"
+#include "disc/error.hpp"
 
 namespace disc {
 
@@ -14,7 +19,39 @@ std::vector<std::pair<int, int>> Device::dcPaths() const {
   return paths;
 }
 
-double Device::stepHint() const { return std::numeric_limits<double>::infinity(); }
+const std::vector<DeviceParameter>& Device::parameterTable() const {
+  static const std::vector<DeviceParameter> none;
+  return none;
+}
+
+std::vector<std::string> Device::parameterNames() const {
+  std::vector<std::string> names;
+  for (const auto& p : parameterTable()) names.push_back(p.name);
+  return names;
+}
+
+namespace {
+const DeviceParameter& lookup(const Device& d, const std::string& name) {
+  for (const auto& p : d.parameterTable())
+    if (p.name == name) return p;
+  throw InputError(fmt::format("{} '{}' has no parameter '{}'{}", d.kind(), d.name(), name,
+                               detail::didYouMean(name, d.parameterNames())));
+}
+}  // namespace
+
+double Device::parameter(const std::string& name) const {
+  return lookup(*this, name).get(*this);
+}
+
+void Device::setParameter(const std::string& name, double value) {
+  if (!std::isfinite(value))
+    throw InputError(fmt::format("{}: parameter '{}' must be finite", name_, name));
+  lookup(*this, name).set(*this, value);
+}
+
+double Device::stepHint() const {
+  return std::numeric_limits<double>::infinity();
+}
 
 std::string Device::probeUnit(int k) const {
   const auto names = probes();

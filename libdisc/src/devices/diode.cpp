@@ -7,9 +7,9 @@
 #include <numbers>
 
 #include "check.hpp"
-#include "junction_math.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
+#include "junction_math.hpp"
 
 namespace disc {
 namespace {
@@ -44,6 +44,27 @@ Diode::Diode(std::string name, NodeId anode, NodeId cathode, const DiodeParams& 
   setParams(params);
 }
 
+const std::vector<DeviceParameter>& Diode::parameterTable() const {
+  auto field = [](const char* name, double DiodeParams::*member) {
+    return DeviceParameter{
+        name, [member](const Device& d) { return static_cast<const Diode&>(d).p_.*member; },
+        [member](Device& d, double v) {
+          auto& diode = static_cast<Diode&>(d);
+          DiodeParams p = diode.p_;
+          p.*member = v;
+          diode.setParams(p);
+        }};
+  };
+  static const std::vector<DeviceParameter> t = {
+      field("is", &DiodeParams::is),   field("n", &DiodeParams::n),
+      field("rs", &DiodeParams::rs),   field("cj0", &DiodeParams::cj0),
+      field("vj", &DiodeParams::vj),   field("m", &DiodeParams::m),
+      field("tt", &DiodeParams::tt),   field("bv", &DiodeParams::bv),
+      field("ibv", &DiodeParams::ibv), field("rth", &DiodeParams::rth),
+      field("cth", &DiodeParams::cth), field("temperature", &DiodeParams::temperature)};
+  return t;
+}
+
 void Diode::setParams(const DiodeParams& params) {
   try {
     params.validate();
@@ -59,7 +80,9 @@ void Diode::prepare(const Circuit& c) {
   derive();
 }
 
-void Diode::derive() { fixed_ = scaleAt(p_.temperature > 0.0 ? p_.temperature : ambient_); }
+void Diode::derive() {
+  fixed_ = scaleAt(p_.temperature > 0.0 ? p_.temperature : ambient_);
+}
 
 Diode::Scale Diode::scaleAt(double t) const {
   Scale sc;
@@ -143,8 +166,8 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
         const double u = -p_.bv - v, ul = detail::limitJunction(-p_.bv - last, u, nvt_, vcrit_);
         if (ul != u) v = -p_.bv - ul;
       }
-      if (v != vraw ||
-          std::abs(vraw - last) > ctx.reltol * std::max(std::abs(vraw), std::abs(last)) + ctx.vabstol)
+      if (v != vraw || std::abs(vraw - last) >
+                           ctx.reltol * std::max(std::abs(vraw), std::abs(last)) + ctx.vabstol)
         *ctx.unsettled = true;
     }
     last = v;

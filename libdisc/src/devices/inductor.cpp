@@ -24,6 +24,13 @@ void Inductor::setResistance(double ohm) {
   r_ = ohm;
 }
 
+const std::vector<DeviceParameter>& Inductor::parameterTable() const {
+  static const std::vector<DeviceParameter> t = {
+      parameterOf<Inductor>("inductance", &Inductor::inductance, &Inductor::setInductance),
+      parameterOf<Inductor>("resistance", &Inductor::resistance, &Inductor::setResistance)};
+  return t;
+}
+
 std::vector<UnknownSpec> Inductor::internalUnknowns() const {
   return {{"i", UnknownKind::Current}};
 }
@@ -58,7 +65,9 @@ void Inductor::evaluate(const EvalContext& ctx, Stamp& s) const {
   s.C[sbrbr_] -= l_;
 }
 
-std::string Inductor::probeUnit(int k) const { return k == 0 ? "A" : k == 1 ? "W" : "J"; }
+std::string Inductor::probeUnit(int k) const {
+  return k == 0 ? "A" : k == 1 ? "W" : "J";
+}
 
 double Inductor::probe(int k, const EvalContext& ctx) const {
   const double i = ctx.x[br_];

@@ -15,12 +15,20 @@ void Resistor::setResistance(double ohm) {
   g_ = 1.0 / ohm;
 }
 
+const std::vector<DeviceParameter>& Resistor::parameterTable() const {
+  static const std::vector<DeviceParameter> t = {
+      parameterOf<Resistor>("resistance", &Resistor::resistance, &Resistor::setResistance)};
+  return t;
+}
+
 void Resistor::bind(const Binding& b) {
   a_ = b.terminals[0];
   b_ = b.terminals[1];
 }
 
-void Resistor::declare(PatternBuilder& pb) { s_.declare(pb, a_, b_); }
+void Resistor::declare(PatternBuilder& pb) {
+  s_.declare(pb, a_, b_);
+}
 
 void Resistor::evaluate(const EvalContext& ctx, Stamp& s) const {
   const double i = g_ * (ctx.x[a_] - ctx.x[b_]);

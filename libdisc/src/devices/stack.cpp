@@ -1,10 +1,11 @@
 // Stack of metal-disc plates: per-plate or lumped arms, spread, thermal coupling, forming state.
 #include "disc/devices/stack.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 #include <random>
+#include <type_traits>
 
 #include "check.hpp"
 #include "disc/circuit.hpp"
@@ -31,15 +32,30 @@ struct Stack::Plate {
 
 namespace {
 
-enum Probe { kI, kP, kV, kTemp, kForm, kIarm, kVrev, kPplate, kVj, kAge, kPfwd, kPrev, kProbeCount };
+enum Probe {
+  kI,
+  kP,
+  kV,
+  kTemp,
+  kForm,
+  kIarm,
+  kVrev,
+  kPplate,
+  kVj,
+  kAge,
+  kPfwd,
+  kPrev,
+  kProbeCount
+};
 const char* const kProbeNames[] = {"i",    "p",      "vstack", "temp", "form", "iarm",
-                                   "vrev", "pplate", "vj", "age",  "pfwd", "prev"};
+                                   "vrev", "pplate", "vj",     "age",  "pfwd", "prev"};
 const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", "", "W", "W"};
 
 }  // namespace
 
 void StackOptions::validate() const {
-  if (plates < 1) throw InputError(fmt::format("a stack needs at least one plate per arm, got {}", plates));
+  if (plates < 1)
+    throw InputError(fmt::format("a stack needs at least one plate per arm, got {}", plates));
   if (arms < 1) throw InputError(fmt::format("a stack needs at least one arm, got {}", arms));
   for (double s : {spread.js, spread.rs, spread.gsh})
     if (!(s >= 0.0 && s <= 3.0))
@@ -86,9 +102,51 @@ void Stack::setType(PlateType type) {
   build();
 }
 
+const std::vector<DeviceParameter>& Stack::parameterTable() const {
+  // Each setter changes a copy of the options and validates it through setOptions().
+  auto option = [](const char* name, auto member) {
+    return DeviceParameter{name,
+                           [member](const Device& d) {
+                             return static_cast<double>(static_cast<const Stack&>(d).opt_.*member);
+                           },
+                           [member, name](Device& d, double v) {
+                             auto& s = static_cast<Stack&>(d);
+                             StackOptions o = s.opt_;
+                             using T = std::remove_reference_t<decltype(o.*member)>;
+                             if constexpr (std::is_integral_v<T>) {
+                               if (v != std::floor(v) || v < 0)
+                                 throw InputError(fmt::format(
+                                     "{}: {} must be a whole number, got {}", s.name_, name, v));
+                             }
+                             o.*member = static_cast<T>(v);
+                             s.setOptions(o);
+                           }};
+  };
+  auto spread = [](const char* name, double StackSpread::*member) {
+    return DeviceParameter{
+        name,
+        [member](const Device& d) { return static_cast<const Stack&>(d).opt_.spread.*member; },
+        [member](Device& d, double v) {
+          auto& s = static_cast<Stack&>(d);
+          StackOptions o = s.opt_;
+          o.spread.*member = v;
+          s.setOptions(o);
+        }};
+  };
+  static const std::vector<DeviceParameter> t = {
+      option("plates", &StackOptions::plates),   option("parallel", &StackOptions::arms),
+      spread("spread-js", &StackSpread::js),     spread("spread-rs", &StackSpread::rs),
+      spread("spread-gsh", &StackSpread::gsh),   option("seed", &StackOptions::seed),
+      option("forming", &StackOptions::forming), option("stored-years", &StackOptions::storedYears),
+      option("hours", &StackOptions::ageHours),  option("age-temp", &StackOptions::ageTemperature),
+      option("cooling", &StackOptions::cooling)};
+  return t;
+}
+
 double Stack::initialForming() const {
-  return opt_.storedYears > 0.0 ? detail::formingAfterStorage(type_, opt_.storedYears) * opt_.forming
-                                : opt_.forming;
+  return opt_.storedYears > 0.0
+             ? detail::formingAfterStorage(type_, opt_.storedYears) * opt_.forming
+             : opt_.forming;
 }
 
 double Stack::ageing() const {
@@ -96,7 +154,9 @@ double Stack::ageing() const {
   return detail::ageingFactor(type_, opt_.ageHours, t);
 }
 
-double Stack::scale() const { return opt_.mode == StackMode::Lumped ? opt_.plates : 1.0; }
+double Stack::scale() const {
+  return opt_.mode == StackMode::Lumped ? opt_.plates : 1.0;
+}
 
 void Stack::build() {
   plates_.clear();
@@ -120,7 +180,9 @@ void Stack::build() {
     }
 }
 
-void Stack::prepare(const Circuit& c) { ambient_ = c.ambient(); }
+void Stack::prepare(const Circuit& c) {
+  ambient_ = c.ambient();
+}
 
 std::vector<UnknownSpec> Stack::internalUnknowns() const {
   std::vector<UnknownSpec> u;
@@ -294,7 +356,9 @@ void Stack::initialState(double* x) const {
   }
 }
 
-int Stack::limitCells() const { return static_cast<int>(plates_.size()); }
+int Stack::limitCells() const {
+  return static_cast<int>(plates_.size());
+}
 
 std::vector<std::string> Stack::probes() const {
   return std::vector<std::string>(std::begin(kProbeNames), std::end(kProbeNames));
@@ -350,8 +414,8 @@ double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
       return x[p.j];
     case kPplate: {
       detail::PlateState st;
-      detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th],
-                            x[p.f], st);
+      detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th], x[p.f],
+                            st);
       return st.p;
     }
     default:

@@ -7,8 +7,8 @@
 
 namespace disc {
 
-Switch::Switch(std::string name, NodeId a, NodeId b, bool closedAtStart, std::vector<double> toggles,
-               double ron, double roff)
+Switch::Switch(std::string name, NodeId a, NodeId b, bool closedAtStart,
+               std::vector<double> toggles, double ron, double roff)
     : DeviceBase(std::move(name), {a, b}),
       closed0_(closedAtStart),
       toggles_(std::move(toggles)),
@@ -31,7 +31,9 @@ void Switch::bind(const Binding& b) {
   b_ = b.terminals[1];
 }
 
-void Switch::declare(PatternBuilder& pb) { s_.declare(pb, a_, b_); }
+void Switch::declare(PatternBuilder& pb) {
+  s_.declare(pb, a_, b_);
+}
 
 void Switch::evaluate(const EvalContext& ctx, Stamp& s) const {
   const double g = 1.0 / (closedAt(ctx.time) ? ron_ : roff_);

@@ -31,6 +31,27 @@ void Transformer::setParams(const TransformerParams& params) {
   derive();
 }
 
+const std::vector<DeviceParameter>& Transformer::parameterTable() const {
+  auto field = [](const char* name, double TransformerParams::*member) {
+    return DeviceParameter{
+        name, [member](const Device& d) { return static_cast<const Transformer&>(d).p_.*member; },
+        [member](Device& d, double v) {
+          auto& t = static_cast<Transformer&>(d);
+          TransformerParams p = t.p_;
+          p.*member = v;
+          t.setParams(p);
+        }};
+  };
+  static const std::vector<DeviceParameter> t = {
+      field("ratio", &TransformerParams::ratio),
+      field("r1", &TransformerParams::r1),
+      field("r2", &TransformerParams::r2),
+      field("leakage1", &TransformerParams::leakage1),
+      field("leakage2", &TransformerParams::leakage2),
+      field("magnetizing", &TransformerParams::magnetizing)};
+  return t;
+}
+
 void Transformer::derive() {
   const double n = p_.ratio;
   l1_ = p_.leakage1 + p_.magnetizing;

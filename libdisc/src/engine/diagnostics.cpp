@@ -1,8 +1,8 @@
 // Finite-difference Jacobian check.
 #include "disc/diagnostics.hpp"
 
-#include <cmath>
 #include <fmt/format.h>
+#include <cmath>
 
 #include "disc/error.hpp"
 #include "system.hpp"
@@ -20,8 +20,8 @@ JacobianCheck checkJacobian(Circuit& circuit, const std::vector<double>& x0, dou
   detail::System sys(circuit);
   const int n = sys.size();
   if (static_cast<int>(x0.size()) != n)
-    throw InputError(fmt::format("checkJacobian: x has {} values, the circuit {} unknowns",
-                                 x0.size(), n));
+    throw InputError(
+        fmt::format("checkJacobian: x has {} values, the circuit {} unknowns", x0.size(), n));
   std::vector<double> x(x0), zero(static_cast<std::size_t>(n) + 1, 0.0);
   x.push_back(0.0);
   EvalContext ctx;

@@ -7,10 +7,10 @@
 #include <sunlinsol/sunlinsol_klu.h>
 #include <sunmatrix/sunmatrix_sparse.h>
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
 #include <exception>
-#include <fmt/format.h>
 #include <string>
 
 #include "disc/error.hpp"

@@ -8,10 +8,10 @@
 // The truncation error is estimated from divided differences of q over the last points:
 // trapezoidal dt^3 q'''/12, BDF2 (2/9) dt^3 q''' (constant-step error constants), and dt^2 q''/2
 // when fewer points exist (right after a restart).
+#include <fmt/format.h>
 #include <algorithm>
 #include <array>
 #include <cmath>
-#include <fmt/format.h>
 
 #include "disc/error.hpp"
 #include "newton.hpp"
@@ -117,8 +117,8 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     }
     const Formula f = restart ? Formula::Euler
                               : (o.method == Method::Bdf2 && history.count >= 2 ? Formula::Bdf2
-                                 : o.method == Method::Bdf2                      ? Formula::Euler
-                                                                                 : Formula::Trap);
+                                 : o.method == Method::Bdf2                     ? Formula::Euler
+                                                                                : Formula::Trap);
     const Coefficients c = coefficients(f, h, hPrev);
     for (std::size_t k = 0; k < N; ++k) {
       hist[k] = c.a1 * qn[k] + c.b * qdot[k];
@@ -154,7 +154,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       const double t0 = t + h, t1 = history.t[0], t2 = history.t[1];
       const bool third = history.count >= 3;
       const double t3 = third ? history.t[2] : 0.0;
-      const double lteScale = !third ? h * h
+      const double lteScale = !third               ? h * h
                               : f == Formula::Trap ? 0.5 * h * h * h
                               : f == Formula::Bdf2 ? (4.0 / 3.0) * h * h * h
                                                    : h * h;

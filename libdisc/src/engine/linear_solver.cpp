@@ -10,8 +10,9 @@ namespace disc::detail {
 
 bool Klu::refactorize(const Eigen::SparseMatrix<double>& m) {
   if (!m_numeric || !m_symbolic) return false;
-  const int ok = klu_refactor(const_cast<int*>(m.outerIndexPtr()), const_cast<int*>(m.innerIndexPtr()),
-                              const_cast<double*>(m.valuePtr()), m_symbolic, m_numeric, &m_common);
+  const int ok =
+      klu_refactor(const_cast<int*>(m.outerIndexPtr()), const_cast<int*>(m.innerIndexPtr()),
+                   const_cast<double*>(m.valuePtr()), m_symbolic, m_numeric, &m_common);
   return ok != 0 && m_common.status == KLU_OK;
 }
 
@@ -45,9 +46,10 @@ void LinearSolver::factor(const System& sys) {
   if (!analyzed_) {
     klu_.analyzePattern(J);
     if (klu_.info() != Eigen::Success)
-      throw SingularCircuitError("the circuit matrix could not be analysed (structurally singular): "
-                                 "look for a floating node or an unconnected device",
-                                 "");
+      throw SingularCircuitError(
+          "the circuit matrix could not be analysed (structurally singular): "
+          "look for a floating node or an unconnected device",
+          "");
     analyzed_ = true;
     fullFactor(sys);
     return;

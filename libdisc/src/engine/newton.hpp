@@ -20,7 +20,7 @@ struct NewtonSettings {
 struct NewtonOutcome {
   bool converged = false;
   int iterations = 0;
-  int worstRow = -1;          ///< row with the largest residual at the last iterate
+  int worstRow = -1;  ///< row with the largest residual at the last iterate
   double worstResidual = 0.0;
 };
 

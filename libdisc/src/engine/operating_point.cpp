@@ -1,9 +1,9 @@
 // Operating point: plain Newton, then gmin stepping, then source stepping.
 #include "operating_point.hpp"
 
+#include <fmt/format.h>
 #include <chrono>
 #include <cmath>
-#include <fmt/format.h>
 
 #include "disc/error.hpp"
 #include "newton.hpp"

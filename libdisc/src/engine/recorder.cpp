@@ -1,8 +1,8 @@
 // Signal recording.
 #include "recorder.hpp"
 
-#include <algorithm>
 #include <fmt/format.h>
+#include <algorithm>
 
 #include "disc/error.hpp"
 
@@ -47,7 +47,8 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
     } else if (kind == "x") {
       for (int k = 0; k < sys.size() && s.a < 0; ++k)
         if (sys.unknownName(k) == target) s.a = k;
-      if (s.a < 0) throw InputError(fmt::format("signal '{}': no unknown named '{}'", spec, target));
+      if (s.a < 0)
+        throw InputError(fmt::format("signal '{}': no unknown named '{}'", spec, target));
       s.b = sys.ground();
       static const char* units[] = {"V", "A", "K", ""};
       unit = units[static_cast<int>(sys.kind(s.a))];
@@ -62,7 +63,8 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
           instance = std::stoi(target.substr(hash + 1), &used);
           if (used != target.size() - hash - 1 || instance < 1) throw std::invalid_argument("");
         } catch (const std::exception&) {
-          throw InputError(fmt::format("signal '{}': '#' must be followed by a number from 1", spec));
+          throw InputError(
+              fmt::format("signal '{}': '#' must be followed by a number from 1", spec));
         }
       }
       const Device* d = circuit.find(deviceName);
@@ -81,7 +83,8 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
       if (instance > 0) {
         const int count = d->probeInstances(s.probe);
         if (count == 0)
-          throw InputError(fmt::format("signal '{}': '{}' of a {} is not numbered", spec, kind, d->kind()));
+          throw InputError(
+              fmt::format("signal '{}': '{}' of a {} is not numbered", spec, kind, d->kind()));
         if (instance > count)
           throw InputError(fmt::format("signal '{}': {} has {} of them", spec, deviceName, count));
       }
@@ -96,7 +99,7 @@ void Recorder::record(const EvalContext& ctx) {
   result_.timeColumn().push_back(ctx.time);
   for (std::size_t k = 0; k < signals_.size(); ++k) {
     const Signal& s = signals_[k];
-    const double v = !s.device          ? ctx.x[s.a] - ctx.x[s.b]
+    const double v = !s.device        ? ctx.x[s.a] - ctx.x[s.b]
                      : s.instance > 0 ? s.device->probeAt(s.probe, s.instance, ctx)
                                       : s.device->probe(s.probe, ctx);
     result_.column(k).push_back(v);

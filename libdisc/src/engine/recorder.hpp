@@ -21,7 +21,7 @@ class Recorder {
     int a = -1, b = -1;              // node difference x[a] - x[b], or raw unknown (a)
     const Device* device = nullptr;  // probe source
     int probe = -1;
-    int instance = 0;                // 1-based instance of a numbered probe, 0: aggregate
+    int instance = 0;  // 1-based instance of a numbered probe, 0: aggregate
   };
   Result& result_;
   std::vector<Signal> signals_;

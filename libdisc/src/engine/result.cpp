@@ -7,7 +7,9 @@
 
 namespace disc {
 
-bool Result::has(std::string_view signal) const { return index_.count(std::string(signal)) > 0; }
+bool Result::has(std::string_view signal) const {
+  return index_.count(std::string(signal)) > 0;
+}
 
 std::size_t Result::indexOf(std::string_view signal) const {
   auto it = index_.find(std::string(signal));
@@ -23,7 +25,9 @@ const std::vector<double>& Result::operator[](std::string_view signal) const {
   return columns_[indexOf(signal)];
 }
 
-const std::string& Result::unit(std::string_view signal) const { return units_[indexOf(signal)]; }
+const std::string& Result::unit(std::string_view signal) const {
+  return units_[indexOf(signal)];
+}
 
 void Result::addSignal(std::string name, std::string unit) {
   if (index_.count(name)) return;

@@ -1,9 +1,9 @@
 // Assembly of the MNA system: unknown allocation, sparse pattern, evaluation sweeps.
 #include "system.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 #include <limits>
 #include <numeric>
 
@@ -165,7 +165,8 @@ void System::assemble(double a0, double gmin) {
   if (a0 == 0.0) {
     std::copy(G.begin(), G.begin() + nz, v);
   } else {
-    for (int k = 0; k < nz; ++k) v[k] = G[static_cast<std::size_t>(k)] + a0 * C[static_cast<std::size_t>(k)];
+    for (int k = 0; k < nz; ++k)
+      v[k] = G[static_cast<std::size_t>(k)] + a0 * C[static_cast<std::size_t>(k)];
   }
   if (gmin > 0.0)
     for (int k : nodeRows_) v[diag_[static_cast<std::size_t>(k)]] += gmin;

@@ -1,8 +1,8 @@
 // Transient analysis entry point: start state, back-end dispatch, options.
+#include <fmt/format.h>
 #include <algorithm>
 #include <chrono>
 #include <cmath>
-#include <fmt/format.h>
 
 #include "disc/error.hpp"
 #include "operating_point.hpp"

@@ -1,15 +1,16 @@
 // Netlist lexing.
 #include "lexer.hpp"
 
-#include <algorithm>
 #include <fmt/format.h>
+#include <algorithm>
 #include <fstream>
 #include <sstream>
 
 namespace disc {
 
 std::string Diagnostic::format() const {
-  std::string out = fmt::format("{}:{}:{}: error: {}", where.file, where.line, where.column, message);
+  std::string out =
+      fmt::format("{}:{}:{}: error: {}", where.file, where.line, where.column, message);
   if (!lineText.empty()) {
     out += "\n  " + lineText + "\n  ";
     // Columns count bytes; keep tabs so the caret lines up under them.

@@ -10,17 +10,17 @@
 namespace disc::detail {
 
 struct Token {
-  std::string text;         ///< the whole token, quotes removed from quoted parts
+  std::string text;  ///< the whole token, quotes removed from quoted parts
   SourceLocation where;
-  bool keyValue = false;    ///< "key=value"
+  bool keyValue = false;  ///< "key=value"
   std::string key, value;
   SourceLocation valueWhere;
-  bool quoted = false;      ///< the token (or its value) was quoted
+  bool quoted = false;  ///< the token (or its value) was quoted
 };
 
 struct Statement {
   std::vector<Token> tokens;
-  SourceLocation where;     ///< of the first token
+  SourceLocation where;  ///< of the first token
 };
 
 /// Collects diagnostics; knows every file's lines for the caret display.

@@ -1,7 +1,7 @@
 // Netlist statements into a circuit, analyses and an output description.
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 #include <functional>
 #include <map>
 #include <numeric>
@@ -39,11 +39,17 @@ struct KindSpec {
   std::vector<const char*> shapes;  // optional shape words after the nodes (sources)
 };
 
-const std::vector<ParamSpec> kWaveParams = {
-    {"dc", Dim::Voltage},    {"amplitude", Dim::Voltage}, {"rms", Dim::Voltage},
-    {"frequency", Dim::Frequency}, {"phase", Dim::Angle}, {"offset", Dim::Voltage},
-    {"points", kWord},       {"on", Dim::Time},           {"off", Dim::Time},
-    {"resistance", Dim::Resistance}, {"inductance", Dim::Inductance}};
+const std::vector<ParamSpec> kWaveParams = {{"dc", Dim::Voltage},
+                                            {"amplitude", Dim::Voltage},
+                                            {"rms", Dim::Voltage},
+                                            {"frequency", Dim::Frequency},
+                                            {"phase", Dim::Angle},
+                                            {"offset", Dim::Voltage},
+                                            {"points", kWord},
+                                            {"on", Dim::Time},
+                                            {"off", Dim::Time},
+                                            {"resistance", Dim::Resistance},
+                                            {"inductance", Dim::Inductance}};
 
 std::vector<ParamSpec> currentWaveParams() {
   std::vector<ParamSpec> p;
@@ -59,30 +65,66 @@ const std::vector<KindSpec>& kinds() {
   static const std::vector<KindSpec> k = {
       {"resistor", 2, "resistance", {{"resistance", Dim::Resistance}}, {}},
       {"capacitor", 2, "capacitance", {{"capacitance", Dim::Capacitance}}, {}},
-      {"inductor", 2, "inductance", {{"inductance", Dim::Inductance}, {"resistance", Dim::Resistance}}, {}},
+      {"inductor",
+       2,
+       "inductance",
+       {{"inductance", Dim::Inductance}, {"resistance", Dim::Resistance}},
+       {}},
       {"coupling", 2, "k", {{"k", Dim::None}}, {}},
-      {"transformer", 4, nullptr,
-       {{"ratio", Dim::None}, {"r1", Dim::Resistance}, {"r2", Dim::Resistance},
-        {"leakage1", Dim::Inductance}, {"leakage2", Dim::Inductance},
+      {"transformer",
+       4,
+       nullptr,
+       {{"ratio", Dim::None},
+        {"r1", Dim::Resistance},
+        {"r2", Dim::Resistance},
+        {"leakage1", Dim::Inductance},
+        {"leakage2", Dim::Inductance},
         {"magnetizing", Dim::Inductance}},
        {}},
       {"voltage", 2, nullptr, kWaveParams, {"dc", "sine", "points", "mains"}},
       {"current", 2, nullptr, currentWaveParams(), {"dc", "sine", "points"}},
       {"battery", 2, "emf", {{"emf", Dim::Voltage}, {"resistance", Dim::Resistance}}, {}},
-      {"diode", 2, nullptr,
-       {{"is", Dim::Current}, {"n", Dim::None}, {"rs", Dim::Resistance}, {"cj0", Dim::Capacitance},
-        {"vj", Dim::Voltage}, {"m", Dim::None}, {"tt", Dim::Time}, {"bv", Dim::Voltage},
-        {"ibv", Dim::Current}, {"rth", Dim::None}, {"cth", Dim::None}, {"temperature", Dim::Temperature}},
+      {"diode",
+       2,
+       nullptr,
+       {{"is", Dim::Current},
+        {"n", Dim::None},
+        {"rs", Dim::Resistance},
+        {"cj0", Dim::Capacitance},
+        {"vj", Dim::Voltage},
+        {"m", Dim::None},
+        {"tt", Dim::Time},
+        {"bv", Dim::Voltage},
+        {"ibv", Dim::Current},
+        {"rth", Dim::None},
+        {"cth", Dim::None},
+        {"temperature", Dim::Temperature}},
        {}},
-      {"stack", 2, nullptr,
-       {{"type", kWord}, {"plates", Dim::None}, {"parallel", Dim::None}, {"mode", kWord},
-        {"spread", Dim::None}, {"spread-js", Dim::None}, {"spread-rs", Dim::None},
-        {"spread-gsh", Dim::None}, {"seed", Dim::None}, {"forming", Dim::None},
-        {"stored-years", Dim::None}, {"hours", Dim::None}, {"age-temp", Dim::Temperature},
+      {"stack",
+       2,
+       nullptr,
+       {{"type", kWord},
+        {"plates", Dim::None},
+        {"parallel", Dim::None},
+        {"mode", kWord},
+        {"spread", Dim::None},
+        {"spread-js", Dim::None},
+        {"spread-rs", Dim::None},
+        {"spread-gsh", Dim::None},
+        {"seed", Dim::None},
+        {"forming", Dim::None},
+        {"stored-years", Dim::None},
+        {"hours", Dim::None},
+        {"age-temp", Dim::Temperature},
         {"cooling", Dim::None}},
        {}},
-      {"switch", 2, nullptr,
-       {{"close", Dim::Time}, {"open", Dim::Time}, {"ron", Dim::Resistance}, {"roff", Dim::Resistance}},
+      {"switch",
+       2,
+       nullptr,
+       {{"close", Dim::Time},
+        {"open", Dim::Time},
+        {"ron", Dim::Resistance},
+        {"roff", Dim::Resistance}},
        {}},
   };
   return k;
@@ -95,8 +137,8 @@ const KindSpec* kindOf(const std::string& word) {
 }
 
 std::vector<std::string> statementWords() {
-  std::vector<std::string> w = {"title", "ambient", "plate-type", "use", "include", "output",
-                                "record", "run"};
+  std::vector<std::string> w = {"title",   "ambient", "plate-type", "use",
+                                "include", "output",  "record",     "run"};
   for (const auto& k : kinds()) w.emplace_back(k.kind);
   return w;
 }
@@ -122,7 +164,8 @@ int wholeNumber(const Params& p, const std::string& key, int fallback, int lo) {
   if (!p.num.count(key)) return fallback;
   const double v = p.num.at(key);
   if (v != std::floor(v) || v < lo || v > 1e9)
-    throw ParamError{key, fmt::format("{} must be a whole number of at least {}, got {}", key, lo, v)};
+    throw ParamError{key,
+                     fmt::format("{} must be a whole number of at least {}, got {}", key, lo, v)};
   return static_cast<int>(v);
 }
 
@@ -138,7 +181,8 @@ Waveform waveformOf(const Params& p, const std::string& shape, bool current) {
     std::size_t start = 0;
     while (start <= list.size()) {
       const std::size_t comma = list.find(',', start);
-      std::string pair = list.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+      std::string pair =
+          list.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
       std::vector<std::string> parts;
       std::size_t a = 0;
       while (a < pair.size()) {
@@ -170,11 +214,16 @@ Waveform waveformOf(const Params& p, const std::string& shape, bool current) {
     if (!p.has("frequency")) throw ParamError{"frequency", "a sine needs frequency= (in Hz)"};
     const double phase = p.get("phase", 0.0) * 3.141592653589793 / 180.0;
     const double f = p.get("frequency", 0.0);
-    if (!(f > 0.0)) throw ParamError{"frequency", fmt::format("frequency must be positive, got {} Hz", f)};
+    if (!(f > 0.0))
+      throw ParamError{"frequency", fmt::format("frequency must be positive, got {} Hz", f)};
     w = p.has("rms") ? Waveform::sineRms(p.get("rms", 0), f, phase, p.get("offset", 0))
                      : Waveform::sine(p.get("amplitude", 0), f, phase, p.get("offset", 0));
   } else {
-    if (!p.has("dc")) throw ParamError{"dc", fmt::format("give the waveform: dc=, sine (amplitude= or rms=, frequency=), points= or mains")};
+    if (!p.has("dc"))
+      throw ParamError{
+          "dc",
+          fmt::format(
+              "give the waveform: dc=, sine (amplitude= or rms=, frequency=), points= or mains")};
     w = Waveform::dc(p.get("dc", 0.0));
   }
   if (p.has("on") || p.has("off")) {
@@ -192,18 +241,23 @@ class Builder {
  public:
   Builder(Netlist& nl, Diagnostics& d) : nl_(nl), diags_(d) {}
 
-  void run(const std::vector<Statement>& statements) {
-    nl_.plateTypes = PlateLibrary::builtIn();
+  /// Setup statements first, then elements, then output, record and run, so that order in the
+  /// file does not matter.
+  void append(const std::vector<Statement>& statements) {
     for (const auto& s : statements)
       if (isSetup(word(s))) setup(s);
     for (const auto& s : statements)
       if (kindOf(word(s))) element(s);
     for (const auto& s : statements) {
       const std::string w = word(s);
-      if (w == "output" || w == "record" || w == "run") late(s);
-      else if (!isSetup(w) && !kindOf(w)) unknownStatement(s);
+      if (w == "output" || w == "record" || w == "run")
+        late(s);
+      else if (!isSetup(w) && !kindOf(w))
+        unknownStatement(s);
     }
-    topology();
+  }
+
+  void defaultAnalysis() {
     if (nl_.analyses.empty()) {
       AnalysisRequest a;
       a.kind = AnalysisRequest::Kind::Transient;
@@ -216,8 +270,8 @@ class Builder {
  private:
   Netlist& nl_;
   Diagnostics& diags_;
-  std::map<std::string, SourceLocation> deviceWhere_;
-  std::map<std::string, std::vector<SourceLocation>> nodeRefs_;
+  std::map<std::string, SourceLocation>& deviceWhere_ = nl_.elementWhere;
+  std::map<std::string, std::vector<SourceLocation>>& nodeRefs_ = nl_.nodeRefs;
 
   static std::string word(const Statement& s) {
     return s.tokens.front().keyValue ? std::string() : s.tokens.front().text;
@@ -253,17 +307,20 @@ class Builder {
     const std::string w = word(s);
     const auto& t = s.tokens;
     if (w == "title") {
-      if (t.size() != 2 || t[1].keyValue) return error(s.where, "title takes one quoted text: title \"...\"");
+      if (t.size() != 2 || t[1].keyValue)
+        return error(s.where, "title takes one quoted text: title \"...\"");
       nl_.title = t[1].text;
     } else if (w == "ambient") {
-      if (t.size() != 2 || t[1].keyValue) return error(s.where, "ambient takes one temperature, e.g. ambient 30degC");
+      if (t.size() != 2 || t[1].keyValue)
+        return error(s.where, "ambient takes one temperature, e.g. ambient 30degC");
       if (auto v = number(t[1].text, Dim::Temperature, t[1].where)) {
         if (*v < 200.0 || *v > 450.0)
           return error(t[1].where, fmt::format("ambient {} K is outside 200-450 K", *v));
         nl_.circuit.setAmbient(*v);
       }
     } else if (w == "use") {
-      if (t.size() != 2 || t[1].keyValue) return error(s.where, "use takes one file name: use \"plate.json\"");
+      if (t.size() != 2 || t[1].keyValue)
+        return error(s.where, "use takes one file name: use \"plate.json\"");
       const std::string path = resolvePath(s.where.file, t[1].text);
       try {
         const PlateLibrary lib = PlateLibrary::load(path);
@@ -278,7 +335,8 @@ class Builder {
       std::map<std::string, double> changes;
       std::map<std::string, SourceLocation> where;
       for (std::size_t k = 2; k < t.size(); ++k) {
-        if (!t[k].keyValue) return error(t[k].where, fmt::format("expected key=value, got '{}'", t[k].text));
+        if (!t[k].keyValue)
+          return error(t[k].where, fmt::format("expected key=value, got '{}'", t[k].text));
         if (t[k].key == "base") {
           base = t[k].value;
           continue;
@@ -288,9 +346,12 @@ class Builder {
           where[t[k].key] = t[k].where;
         }
       }
-      if (base.empty()) return error(s.where, "plate-type needs base=TYPE (a built-in or earlier type)");
+      if (base.empty())
+        return error(s.where, "plate-type needs base=TYPE (a built-in or earlier type)");
       const PlateType* b = nl_.plateTypes.find(base);
-      if (!b) return error(s.where, fmt::format("unknown plate type '{}'{}", base, didYouMean(base, nl_.plateTypes.names())));
+      if (!b)
+        return error(s.where, fmt::format("unknown plate type '{}'{}", base,
+                                          didYouMean(base, nl_.plateTypes.names())));
       PlateType derived = *b;
       derived.name = t[1].text;
       derived.description = fmt::format("derived from {}", base);
@@ -313,7 +374,8 @@ class Builder {
   void element(const Statement& s) {
     const KindSpec& spec = *kindOf(word(s));
     const auto& t = s.tokens;
-    if (t.size() < 2 || t[1].keyValue) return error(s.where, fmt::format("a {} needs a name after the kind", spec.kind));
+    if (t.size() < 2 || t[1].keyValue)
+      return error(s.where, fmt::format("a {} needs a name after the kind", spec.kind));
     const std::string name = t[1].text;
     std::vector<const Token*> positional;
     Params p;
@@ -330,7 +392,8 @@ class Builder {
       if (it == spec.params.end()) {
         std::vector<std::string> names;
         for (const auto& ps : spec.params) names.emplace_back(ps.name);
-        error(tok.where, fmt::format("a {} has no parameter '{}'{}", spec.kind, tok.key, didYouMean(tok.key, names)));
+        error(tok.where, fmt::format("a {} has no parameter '{}'{}", spec.kind, tok.key,
+                                     didYouMean(tok.key, names)));
         ok = false;
         continue;
       }
@@ -366,18 +429,22 @@ class Builder {
       return;
     }
     if (static_cast<int>(positional.size()) > nodeCount + (spec.positional ? 1 : 0)) {
-      const Token* extra = positional[static_cast<std::size_t>(nodeCount + (spec.positional ? 1 : 0))];
-      error(extra->where, fmt::format("too many nodes or values for a {}: '{}' is extra", spec.kind, extra->text));
+      const Token* extra =
+          positional[static_cast<std::size_t>(nodeCount + (spec.positional ? 1 : 0))];
+      error(extra->where, fmt::format("too many nodes or values for a {}: '{}' is extra", spec.kind,
+                                      extra->text));
       return;
     }
     if (static_cast<int>(positional.size()) == nodeCount + 1) {
       const Token* v = positional.back();
       if (p.has(spec.positional)) {
-        error(v->where, fmt::format("{} given both as a value and as {}=", spec.positional, spec.positional));
+        error(v->where,
+              fmt::format("{} given both as a value and as {}=", spec.positional, spec.positional));
         return;
       }
-      const auto ps = std::find_if(spec.params.begin(), spec.params.end(),
-                                   [&](const ParamSpec& x) { return std::string(x.name) == spec.positional; });
+      const auto ps = std::find_if(spec.params.begin(), spec.params.end(), [&](const ParamSpec& x) {
+        return std::string(x.name) == spec.positional;
+      });
       if (auto val = number(v->text, ps->dim, v->where)) {
         p.num[spec.positional] = *val;
         p.where[spec.positional] = v->where;
@@ -389,7 +456,8 @@ class Builder {
     if (!ok) return;
     if (deviceWhere_.count(name)) {
       const auto& first = deviceWhere_[name];
-      error(t[1].where, fmt::format("duplicate name '{}' (first used at {}:{})", name, first.file, first.line));
+      error(t[1].where,
+            fmt::format("duplicate name '{}' (first used at {}:{})", name, first.file, first.line));
       return;
     }
     std::vector<std::string> nodes;
@@ -419,11 +487,11 @@ class Builder {
     };
     auto positive = [&](const char* key) {
       const double v = p.get(key, 0.0);
-      if (!(v > 0.0))
-        throw ParamError{key, fmt::format("{} must be positive, got {}", key, v)};
+      if (!(v > 0.0)) throw ParamError{key, fmt::format("{} must be positive, got {}", key, v)};
       return v;
     };
-    if (kind == "coupling") return std::make_unique<Coupling>(name, nodes[0], nodes[1], p.get("k", 0.0));
+    if (kind == "coupling")
+      return std::make_unique<Coupling>(name, nodes[0], nodes[1], p.get("k", 0.0));
     std::vector<NodeId> n;
     for (const auto& node : nodes) n.push_back(c.node(node));
     if (kind == "resistor") {
@@ -436,7 +504,8 @@ class Builder {
     }
     if (kind == "inductor") {
       require("inductance", "H");
-      return std::make_unique<Inductor>(name, n[0], n[1], positive("inductance"), p.get("resistance", 0.0));
+      return std::make_unique<Inductor>(name, n[0], n[1], positive("inductance"),
+                                        p.get("resistance", 0.0));
     }
     if (kind == "transformer") {
       require("ratio", "primary turns / secondary turns");
@@ -451,13 +520,15 @@ class Builder {
     }
     if (kind == "voltage") {
       Waveform w = waveformOf(p, shape, false);
-      return std::make_unique<VoltageSource>(name, n[0], n[1], std::move(w), p.get("resistance", 0.0),
-                                             p.get("inductance", 0.0));
+      return std::make_unique<VoltageSource>(name, n[0], n[1], std::move(w),
+                                             p.get("resistance", 0.0), p.get("inductance", 0.0));
     }
-    if (kind == "current") return std::make_unique<CurrentSource>(name, n[0], n[1], waveformOf(p, shape, true));
+    if (kind == "current")
+      return std::make_unique<CurrentSource>(name, n[0], n[1], waveformOf(p, shape, true));
     if (kind == "battery") {
       require("emf", "V");
-      return std::make_unique<VoltageSource>(makeBattery(name, n[0], n[1], p.get("emf", 0.0), p.get("resistance", 0.0)));
+      return std::make_unique<VoltageSource>(
+          makeBattery(name, n[0], n[1], p.get("emf", 0.0), p.get("resistance", 0.0)));
     }
     if (kind == "diode") {
       DiodeParams d;
@@ -476,7 +547,8 @@ class Builder {
       return std::make_unique<Diode>(name, n[0], n[1], d);
     }
     if (kind == "stack") {
-      if (!p.word.count("type")) throw ParamError{"type", "a stack needs type= (see 'disc plates')"};
+      if (!p.word.count("type"))
+        throw ParamError{"type", "a stack needs type= (see 'disc plates')"};
       const std::string typeName = p.word.at("type");
       const PlateType* type = nl_.plateTypes.find(typeName);
       if (!type)
@@ -487,12 +559,16 @@ class Builder {
       o.arms = wholeNumber(p, "parallel", 1, 1);
       if (p.word.count("mode")) {
         const std::string m = p.word.at("mode");
-        if (m == "per-plate") o.mode = StackMode::PerPlate;
-        else if (m == "lumped") o.mode = StackMode::Lumped;
-        else throw ParamError{"mode", fmt::format("mode is per-plate or lumped, got '{}'", m)};
+        if (m == "per-plate")
+          o.mode = StackMode::PerPlate;
+        else if (m == "lumped")
+          o.mode = StackMode::Lumped;
+        else
+          throw ParamError{"mode", fmt::format("mode is per-plate or lumped, got '{}'", m)};
       }
       const double spread = p.get("spread", 0.0);
-      o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread), p.get("spread-gsh", spread)};
+      o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread),
+                  p.get("spread-gsh", spread)};
       o.seed = static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0));
       o.forming = p.get("forming", 1.0);
       o.storedYears = p.get("stored-years", 0.0);
@@ -515,7 +591,8 @@ class Builder {
       std::vector<double> times;
       for (const auto& e : events) times.push_back(e.first);
       const bool closedAtStart = !events.front().second;
-      return std::make_unique<Switch>(name, n[0], n[1], closedAtStart, times, p.get("ron", 1e-3), p.get("roff", 1e9));
+      return std::make_unique<Switch>(name, n[0], n[1], closedAtStart, times, p.get("ron", 1e-3),
+                                      p.get("roff", 1e9));
     }
     (void)s;
     return nullptr;
@@ -539,31 +616,42 @@ class Builder {
         return error(s.where, "output NODE_P NODE_N load=NAME");
       for (int k : {1, 2})
         if (!nodeExists(t[static_cast<std::size_t>(k)].text))
-          return error(t[static_cast<std::size_t>(k)].where, fmt::format("no node named '{}'", t[static_cast<std::size_t>(k)].text));
+          return error(t[static_cast<std::size_t>(k)].where,
+                       fmt::format("no node named '{}'", t[static_cast<std::size_t>(k)].text));
       nl_.output.positive = t[1].text;
       nl_.output.negative = t[2].text;
       for (std::size_t k = 3; k < t.size(); ++k) {
         if (t[k].keyValue && t[k].key == "load") {
-          if (!c.find(t[k].value)) return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
+          if (!c.find(t[k].value))
+            return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
           nl_.output.load = t[k].value;
         } else if (t[k].keyValue && t[k].key == "kind") {
-          if (t[k].value == "capacitive") nl_.output.kind = OutputSpec::LoadKind::Capacitive;
-          else if (t[k].value == "resistive") nl_.output.kind = OutputSpec::LoadKind::Resistive;
-          else return error(t[k].valueWhere, "kind is capacitive or resistive");
+          if (t[k].value == "capacitive")
+            nl_.output.kind = OutputSpec::LoadKind::Capacitive;
+          else if (t[k].value == "resistive")
+            nl_.output.kind = OutputSpec::LoadKind::Resistive;
+          else
+            return error(t[k].valueWhere, "kind is capacitive or resistive");
         } else {
-          return error(t[k].where, fmt::format("unexpected '{}': output takes load= and kind=", t[k].text));
+          return error(t[k].where,
+                       fmt::format("unexpected '{}': output takes load= and kind=", t[k].text));
         }
       }
-      if (nl_.output.load.empty()) return error(s.where, "output needs load=NAME (the element that is the load)");
+      if (nl_.output.load.empty())
+        return error(s.where, "output needs load=NAME (the element that is the load)");
       nl_.output.given = true;
     } else if (w == "record") {
-      if (t.size() < 2) return error(s.where, "record takes one or more signals: record v:out i:SR1");
+      if (t.size() < 2)
+        return error(s.where, "record takes one or more signals: record v:out i:SR1");
       for (std::size_t k = 1; k < t.size(); ++k) {
-        if (auto msg = checkSignal(t[k].text); !msg.empty()) error(t[k].where, msg);
-        else nl_.record.push_back(t[k].text);
+        if (auto msg = checkSignal(t[k].text); !msg.empty())
+          error(t[k].where, msg);
+        else
+          nl_.record.push_back(t[k].text);
       }
     } else if (w == "run") {
-      if (t.size() < 2 || t[1].keyValue) return error(s.where, "run operating-point, or run transient stop=TIME ...");
+      if (t.size() < 2 || t[1].keyValue)
+        return error(s.where, "run operating-point, or run transient stop=TIME ...");
       AnalysisRequest a;
       a.where = s.where;
       if (t[1].text == "operating-point") {
@@ -575,7 +663,8 @@ class Builder {
         bool haveStop = false;
         for (std::size_t k = 2; k < t.size(); ++k) {
           const Token& tok = t[k];
-          if (!tok.keyValue) return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
+          if (!tok.keyValue)
+            return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
           if (tok.key == "stop" || tok.key == "max-step") {
             auto v = number(tok.value, Dim::Time, tok.valueWhere);
             if (!v) continue;
@@ -586,25 +675,35 @@ class Builder {
             (tok.key == "stop" ? a.transient.stop : a.transient.maxStep) = *v;
             haveStop = haveStop || tok.key == "stop";
           } else if (tok.key == "method") {
-            if (tok.value == "trap" || tok.value == "bdf2" || tok.value == "ida") a.transient.method = parseMethod(tok.value);
-            else error(tok.valueWhere, fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
+            if (tok.value == "trap" || tok.value == "bdf2" || tok.value == "ida")
+              a.transient.method = parseMethod(tok.value);
+            else
+              error(tok.valueWhere,
+                    fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
           } else if (tok.key == "start") {
-            if (tok.value == "cold") a.transient.start = Start::Cold;
-            else if (tok.value == "operating-point") a.transient.start = Start::OperatingPoint;
-            else error(tok.valueWhere, "start is cold or operating-point");
+            if (tok.value == "cold")
+              a.transient.start = Start::Cold;
+            else if (tok.value == "operating-point")
+              a.transient.start = Start::OperatingPoint;
+            else
+              error(tok.valueWhere, "start is cold or operating-point");
           } else if (tok.key == "reltol") {
             auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && (*v <= 0.0 || *v >= 0.1)) error(tok.valueWhere, "reltol must lie between 0 and 0.1");
-            else if (v) a.transient.tol.reltol = *v;
+            if (v && (*v <= 0.0 || *v >= 0.1))
+              error(tok.valueWhere, "reltol must lie between 0 and 0.1");
+            else if (v)
+              a.transient.tol.reltol = *v;
           } else {
             error(tok.where, fmt::format("run transient has no parameter '{}'{}", tok.key,
-                                         didYouMean(tok.key, {"stop", "max-step", "method", "start", "reltol"})));
+                                         didYouMean(tok.key, {"stop", "max-step", "method", "start",
+                                                              "reltol"})));
           }
         }
         if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
       } else {
-        return error(t[1].where, fmt::format("unknown analysis '{}'{}", t[1].text,
-                                             didYouMean(t[1].text, {"operating-point", "transient"})));
+        return error(t[1].where,
+                     fmt::format("unknown analysis '{}'{}", t[1].text,
+                                 didYouMean(t[1].text, {"operating-point", "transient"})));
       }
       nl_.analyses.push_back(a);
     }
@@ -614,14 +713,16 @@ class Builder {
   std::string checkSignal(const std::string& sig) {
     const auto colon = sig.find(':');
     if (colon == std::string::npos || colon == 0 || colon + 1 == sig.size())
-      return fmt::format("signal '{}' must be kind:target (v:node, i:element, temp:stack#3, ...)", sig);
+      return fmt::format("signal '{}' must be kind:target (v:node, i:element, temp:stack#3, ...)",
+                         sig);
     const std::string kind = sig.substr(0, colon), target = sig.substr(colon + 1);
     Circuit& c = nl_.circuit;
     if (kind == "v") {
       std::size_t start = 0;
       while (true) {
         const auto comma = target.find(',', start);
-        const std::string node = target.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+        const std::string node =
+            target.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
         if (node != "gnd") {
           try {
             c.findNode(node);
@@ -641,24 +742,32 @@ class Builder {
     if (std::find(probes.begin(), probes.end(), kind) == probes.end()) {
       std::string list;
       for (const auto& p : probes) list += (list.empty() ? "" : ", ") + p;
-      return fmt::format("signal '{}': a {} has no quantity '{}' (it has {})", sig, d->kind(), kind, list);
+      return fmt::format("signal '{}': a {} has no quantity '{}' (it has {})", sig, d->kind(), kind,
+                         list);
     }
     return "";
   }
 
+ public:
+  /// Whole-circuit checks: dangling nodes, parts without a path to gnd, voltage loops.
   void topology() {
     Circuit& c = nl_.circuit;
     // A node connected only once is a dangling end, usually a misspelt name.
     for (const auto& [node, refs] : nodeRefs_)
       if (refs.size() == 1)
-        error(refs.front(), fmt::format("node '{}' is connected only once (a dangling end): check its spelling", node));
+        error(refs.front(),
+              fmt::format("node '{}' is connected only once (a dangling end): check its spelling",
+                          node));
     // Floating parts and loops of voltage-defined elements, by union-find over node ids.
     const int n = c.nodeCount();
-    std::vector<int> parent(static_cast<std::size_t>(n) + 1), forced(static_cast<std::size_t>(n) + 1);
+    std::vector<int> parent(static_cast<std::size_t>(n) + 1),
+        forced(static_cast<std::size_t>(n) + 1);
     std::iota(parent.begin(), parent.end(), 0);
     std::iota(forced.begin(), forced.end(), 0);
     auto find = [](std::vector<int>& p, int a) {
-      while (p[static_cast<std::size_t>(a)] != a) a = p[static_cast<std::size_t>(a)] = p[static_cast<std::size_t>(p[static_cast<std::size_t>(a)])];
+      while (p[static_cast<std::size_t>(a)] != a)
+        a = p[static_cast<std::size_t>(a)] =
+            p[static_cast<std::size_t>(p[static_cast<std::size_t>(a)])];
       return a;
     };
     auto id = [n](NodeId node) { return node == kGround ? n : node; };
@@ -676,8 +785,9 @@ class Builder {
       if (d->definesVoltage()) {
         const int a = find(forced, id(t[0])), b = find(forced, id(t[1]));
         if (a == b)
-          error(deviceWhere_[d->name()],
-                fmt::format("'{}' closes a loop of voltage sources and inductors: add a small series resistance", d->name()));
+          error(deviceWhere_[d->name()], fmt::format("'{}' closes a loop of voltage sources and "
+                                                     "inductors: add a small series resistance",
+                                                     d->name()));
         else
           forced[static_cast<std::size_t>(a)] = b;
       }
@@ -697,13 +807,50 @@ class Builder {
 
 }  // namespace detail
 
+Netlist emptyNetlist(const std::string& name) {
+  Netlist nl;
+  nl.path = name;
+  nl.plateTypes = PlateLibrary::builtIn();
+  return nl;
+}
+
+void appendNetlist(Netlist& nl, const std::string& text, const std::string& name) {
+  detail::Diagnostics diags;
+  std::vector<std::string> includeStack{name};
+  const auto statements = detail::lex(text, name, diags, includeStack);
+  detail::Builder(nl, diags).append(statements);
+  if (!diags.empty()) throw NetlistError(diags.list());
+}
+
+void checkNetlist(const Netlist& nl) {
+  detail::Diagnostics diags;
+  Netlist& mutableNl = const_cast<Netlist&>(nl);  // the builder only reads during the checks
+  detail::Builder(mutableNl, diags).topology();
+  if (!diags.empty()) throw NetlistError(diags.list());
+}
+
+void addElement(Netlist& nl, const std::string& kind, const std::string& name,
+                const std::vector<std::string>& nodes,
+                const std::vector<std::pair<std::string, std::string>>& params) {
+  // The parts become one statement of the language, so every check and message is the same.
+  auto quote = [](const std::string& v) {
+    return v.find_first_of(" \t#") == std::string::npos ? v : "\"" + v + "\"";
+  };
+  std::string text = kind + " " + quote(name);
+  for (const auto& n : nodes) text += " " + quote(n);
+  for (const auto& [k, v] : params) text += " " + k + "=" + quote(v);
+  appendNetlist(nl, text, "<" + kind + " " + name + ">");
+}
+
 Netlist parseNetlist(const std::string& text, const std::string& name) {
   detail::Diagnostics diags;
   std::vector<std::string> includeStack{name};
   const auto statements = detail::lex(text, name, diags, includeStack);
-  Netlist nl;
-  nl.path = name;
-  detail::Builder(nl, diags).run(statements);
+  Netlist nl = emptyNetlist(name);
+  detail::Builder b(nl, diags);
+  b.append(statements);
+  b.topology();
+  b.defaultAnalysis();
   if (!diags.empty()) throw NetlistError(diags.list());
   return nl;
 }

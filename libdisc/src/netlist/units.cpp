@@ -1,10 +1,10 @@
 // SI prefixes (SI Brochure, 9th ed., table 7) and unit symbols.
 #include "units.hpp"
 
+#include <fmt/format.h>
 #include <cctype>
 #include <cmath>
 #include <cstdlib>
-#include <fmt/format.h>
 #include <utility>
 #include <vector>
 
@@ -19,13 +19,21 @@ struct Unit {
 
 const std::vector<Unit>& units() {
   static const std::vector<Unit> u = {
-      {"V", Dim::Voltage, true},     {"A", Dim::Current, true},
-      {"ohm", Dim::Resistance, true}, {"\xCE\xA9", Dim::Resistance, true},  // Ω
-      {"F", Dim::Capacitance, true}, {"H", Dim::Inductance, true},
-      {"Hz", Dim::Frequency, true},  {"s", Dim::Time, true},
-      {"W", Dim::Power, true},       {"J", Dim::Energy, true},
-      {"K", Dim::Temperature, false}, {"degC", Dim::Temperature, false},
-      {"\xC2\xB0" "C", Dim::Temperature, false},  // °C
+      {"V", Dim::Voltage, true},
+      {"A", Dim::Current, true},
+      {"ohm", Dim::Resistance, true},
+      {"\xCE\xA9", Dim::Resistance, true},  // Ω
+      {"F", Dim::Capacitance, true},
+      {"H", Dim::Inductance, true},
+      {"Hz", Dim::Frequency, true},
+      {"s", Dim::Time, true},
+      {"W", Dim::Power, true},
+      {"J", Dim::Energy, true},
+      {"K", Dim::Temperature, false},
+      {"degC", Dim::Temperature, false},
+      {"\xC2\xB0"
+       "C",
+       Dim::Temperature, false},  // °C
       {"deg", Dim::Angle, false},
   };
   return u;
@@ -33,8 +41,8 @@ const std::vector<Unit>& units() {
 
 const std::vector<std::pair<std::string, double>>& prefixes() {
   static const std::vector<std::pair<std::string, double>> p = {
-      {"p", 1e-12}, {"n", 1e-9}, {"u", 1e-6}, {"\xC2\xB5", 1e-6} /* µ */, {"m", 1e-3},
-      {"k", 1e3},   {"M", 1e6},  {"G", 1e9}};
+      {"p", 1e-12}, {"n", 1e-9}, {"u", 1e-6}, {"\xC2\xB5", 1e-6} /* µ */,
+      {"m", 1e-3},  {"k", 1e3},  {"M", 1e6},  {"G", 1e9}};
   return p;
 }
 
@@ -48,36 +56,60 @@ const Unit* unitOf(const std::string& s) {
 
 const char* dimName(Dim d) {
   switch (d) {
-    case Dim::None: return "a plain number";
-    case Dim::Voltage: return "a voltage";
-    case Dim::Current: return "a current";
-    case Dim::Resistance: return "a resistance";
-    case Dim::Capacitance: return "a capacitance";
-    case Dim::Inductance: return "an inductance";
-    case Dim::Frequency: return "a frequency";
-    case Dim::Time: return "a time";
-    case Dim::Power: return "a power";
-    case Dim::Energy: return "an energy";
-    case Dim::Temperature: return "a temperature";
-    case Dim::Angle: return "an angle";
+    case Dim::None:
+      return "a plain number";
+    case Dim::Voltage:
+      return "a voltage";
+    case Dim::Current:
+      return "a current";
+    case Dim::Resistance:
+      return "a resistance";
+    case Dim::Capacitance:
+      return "a capacitance";
+    case Dim::Inductance:
+      return "an inductance";
+    case Dim::Frequency:
+      return "a frequency";
+    case Dim::Time:
+      return "a time";
+    case Dim::Power:
+      return "a power";
+    case Dim::Energy:
+      return "an energy";
+    case Dim::Temperature:
+      return "a temperature";
+    case Dim::Angle:
+      return "an angle";
   }
   return "?";
 }
 
 const char* dimUnit(Dim d) {
   switch (d) {
-    case Dim::Voltage: return "V";
-    case Dim::Current: return "A";
-    case Dim::Resistance: return "ohm";
-    case Dim::Capacitance: return "F";
-    case Dim::Inductance: return "H";
-    case Dim::Frequency: return "Hz";
-    case Dim::Time: return "s";
-    case Dim::Power: return "W";
-    case Dim::Energy: return "J";
-    case Dim::Temperature: return "K or degC";
-    case Dim::Angle: return "deg";
-    default: return "";
+    case Dim::Voltage:
+      return "V";
+    case Dim::Current:
+      return "A";
+    case Dim::Resistance:
+      return "ohm";
+    case Dim::Capacitance:
+      return "F";
+    case Dim::Inductance:
+      return "H";
+    case Dim::Frequency:
+      return "Hz";
+    case Dim::Time:
+      return "s";
+    case Dim::Power:
+      return "W";
+    case Dim::Energy:
+      return "J";
+    case Dim::Temperature:
+      return "K or degC";
+    case Dim::Angle:
+      return "deg";
+    default:
+      return "";
   }
 }
 
@@ -120,9 +152,10 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
         }
       }
       if (scale == 1.0 && !unit) {
-        error = fmt::format("'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
-                            "units V A ohm F H Hz s W J K degC)",
-                            text, suffix);
+        error = fmt::format(
+            "'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
+            "units V A ohm F H Hz s W J K degC)",
+            text, suffix);
         return std::nullopt;
       }
     }
@@ -133,7 +166,8 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
     return std::nullopt;
   }
   value *= scale;
-  if (unit && (std::string(unit->symbol) == "degC" || std::string(unit->symbol) == "\xC2\xB0" "C"))
+  if (unit && (std::string(unit->symbol) == "degC" || std::string(unit->symbol) == "\xC2\xB0"
+                                                                                   "C"))
     value += 273.15;
   else if (!unit && dim == Dim::Temperature && scale == 1.0) {
     // A bare temperature is taken as kelvin; a value below 150 is almost surely meant as degC.

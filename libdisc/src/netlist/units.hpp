@@ -7,8 +7,18 @@
 namespace disc::detail {
 
 enum class Dim {
-  None, Voltage, Current, Resistance, Capacitance, Inductance, Frequency, Time, Power, Energy,
-  Temperature, Angle
+  None,
+  Voltage,
+  Current,
+  Resistance,
+  Capacitance,
+  Inductance,
+  Frequency,
+  Time,
+  Power,
+  Energy,
+  Temperature,
+  Angle
 };
 
 const char* dimName(Dim d);

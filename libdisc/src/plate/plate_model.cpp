@@ -24,7 +24,7 @@ namespace disc::detail {
 namespace {
 
 constexpr double kSecondsPerYear = 365.25 * 24 * 3600;
-constexpr double kRampWidth = 0.05;  // V, rounding of the reverse-voltage ramp at zero bias
+constexpr double kRampWidth = 0.05;       // V, rounding of the reverse-voltage ramp at zero bias
 constexpr double kExpLimitCurrent = 1e4;  // A, where the forward exponential turns linear
 // The laws are evaluated within this temperature range. Beyond it the plate has long failed
 // (selenium melts near 490 K); the clamp keeps Newton iterates and runaways finite.
@@ -79,7 +79,8 @@ double formingAfterStorage(const PlateType& type, double years) {
 void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit) {
   t = std::clamp(t, kLawTmin, kLawTmax);
   nvt = k.n * constants::thermalVoltage(t);
-  const double is = k.is0 * (t / k.t0) * (t / k.t0) * std::exp(-k.phiOverK * (1.0 / t - 1.0 / k.t0));
+  const double is =
+      k.is0 * (t / k.t0) * (t / k.t0) * std::exp(-k.phiOverK * (1.0 / t - 1.0 / k.t0));
   vcrit = nvt * std::log(nvt / (std::numbers::sqrt2 * is));
 }
 

@@ -13,8 +13,9 @@ namespace disc::detail {
 
 /// Per-plate constants after area scaling, spread and ageing.
 struct PlateConstants {
-  double is0 = 0;         // A, saturation current at t0
-  double expLimitLog = 0; // ln(limit current / is0 + 1): where the forward exponential turns linear
+  double is0 = 0;  // A, saturation current at t0
+  double expLimitLog =
+      0;                  // ln(limit current / is0 + 1): where the forward exponential turns linear
   double n = 3;           // ideality
   double phiOverK = 0;    // barrier / k, K
   double t0 = 300;        // K
@@ -27,13 +28,13 @@ struct PlateConstants {
   double gshEaOverK = 0;  // K
   double leakFactor = 1;  // deformed leakage multiplier at F = 0
   double bdV = 50, bdSlope = 3, bdI0 = 0;  // V, V, A
-  double cj0 = 0;         // F
+  double cj0 = 0;                          // F
   double fc = 0.5;
-  double ct = 0, gt = 0;  // trap capacitance F, conductance S
-  double rth = 1, cth = 1;  // K/W, J/K
-  double reformRate0 = 0;   // 1/(s V) at t0: (1/tau) / V_ref
-  double reformEaOverK = 0; // K
-  double storageRate = 0;   // 1/s
+  double ct = 0, gt = 0;     // trap capacitance F, conductance S
+  double rth = 1, cth = 1;   // K/W, J/K
+  double reformRate0 = 0;    // 1/(s V) at t0: (1/tau) / V_ref
+  double reformEaOverK = 0;  // K
+  double storageRate = 0;    // 1/s
 };
 
 /// Builds the constants of one plate from its type, spread multipliers and ageing factor.

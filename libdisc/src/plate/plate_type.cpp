@@ -1,16 +1,16 @@
 // Plate types: parameter table, validation, JSON reading and writing.
 #include "disc/plate_type.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 #include <fstream>
 #include <functional>
 #include <nlohmann/json.hpp>
 #include <sstream>
 
-#include "disc/error.hpp"
 #include "core/text_match.hpp"
+#include "disc/error.hpp"
 
 namespace disc {
 
@@ -32,41 +32,81 @@ struct Field {
 
 const std::vector<Field>& fields() {
   static const std::vector<Field> table = {
-      {"physics", "area_cm2", [](PlateType& t) -> double& { return t.physics.areaCm2; }, 1e-4, 1e4, false, "cm2"},
-      {"physics", "js0_A_per_cm2", [](PlateType& t) -> double& { return t.physics.js0; }, 1e-15, 1.0, false, "A/cm2"},
-      {"physics", "ideality", [](PlateType& t) -> double& { return t.physics.ideality; }, 0.5, 20.0, false, ""},
-      {"physics", "barrier_eV", [](PlateType& t) -> double& { return t.physics.barrierEv; }, 0.0, 3.0, false, "eV"},
-      {"physics", "t0_K", [](PlateType& t) -> double& { return t.physics.t0; }, 150.0, 500.0, false, "K"},
-      {"physics", "image_force_per_V4", [](PlateType& t) -> double& { return t.physics.imageForce; }, 0.0, 20.0, false, "V^-1/4"},
-      {"physics", "built_in_V", [](PlateType& t) -> double& { return t.physics.builtIn; }, 0.05, 5.0, false, "V"},
-      {"physics", "rs_ohm_cm2", [](PlateType& t) -> double& { return t.physics.rsArea; }, 1e-4, 1e5, false, "ohm cm2"},
-      {"physics", "rs_activation_eV", [](PlateType& t) -> double& { return t.physics.rsActivationEv; }, 0.0, 1.5, false, "eV"},
-      {"physics", "gsh_S_per_cm2", [](PlateType& t) -> double& { return t.physics.gshArea; }, 0.0, 1.0, false, "S/cm2"},
-      {"physics", "gsh_activation_eV", [](PlateType& t) -> double& { return t.physics.gshActivationEv; }, 0.0, 2.0, false, "eV"},
-      {"physics", "breakdown_V", [](PlateType& t) -> double& { return t.physics.breakdownV; }, 0.5, 1e4, false, "V"},
-      {"physics", "breakdown_slope_V", [](PlateType& t) -> double& { return t.physics.breakdownSlopeV; }, 0.01, 1e3, false, "V"},
-      {"physics", "breakdown_J0_A_per_cm2", [](PlateType& t) -> double& { return t.physics.breakdownJ0; }, 0.0, 10.0, false, "A/cm2"},
-      {"physics", "c0_F_per_cm2", [](PlateType& t) -> double& { return t.physics.c0Area; }, 0.0, 1e-3, false, "F/cm2"},
-      {"physics", "fc", [](PlateType& t) -> double& { return t.physics.fc; }, 0.05, 0.95, false, ""},
-      {"physics", "trap_c_F_per_cm2", [](PlateType& t) -> double& { return t.physics.trapCArea; }, 0.0, 1e-3, false, "F/cm2"},
-      {"physics", "trap_tau_s", [](PlateType& t) -> double& { return t.physics.trapTau; }, 1e-6, 1e3, false, "s"},
-      {"thermal", "rth_K_per_W", [](PlateType& t) -> double& { return t.thermal.rth; }, 0.01, 1e5, false, "K/W"},
-      {"thermal", "cth_J_per_K", [](PlateType& t) -> double& { return t.thermal.cth; }, 1e-4, 1e5, false, "J/K"},
-      {"thermal", "rth_coupling_K_per_W", [](PlateType& t) -> double& { return t.thermal.rthCoupling; }, 0.01, 1e6, false, "K/W"},
-      {"history", "deformed_leak_factor", [](PlateType& t) -> double& { return t.history.deformedLeakFactor; }, 1.0, 1e4, false, ""},
-      {"history", "reform_tau_s", [](PlateType& t) -> double& { return t.history.reformTau; }, 1e-3, 1e8, false, "s"},
-      {"history", "reform_voltage_V", [](PlateType& t) -> double& { return t.history.reformVoltage; }, 0.1, 1e4, false, "V"},
-      {"history", "reform_activation_eV", [](PlateType& t) -> double& { return t.history.reformActivationEv; }, 0.0, 2.0, false, "eV"},
-      {"history", "storage_tau_years", [](PlateType& t) -> double& { return t.history.storageTauYears; }, 0.01, 1e4, false, "years"},
-      {"history", "age_coefficient", [](PlateType& t) -> double& { return t.history.ageCoefficient; }, 0.0, 100.0, false, ""},
-      {"history", "age_hours_scale_h", [](PlateType& t) -> double& { return t.history.ageHoursScale; }, 1.0, 1e7, false, "h"},
-      {"history", "age_activation_eV", [](PlateType& t) -> double& { return t.history.ageActivationEv; }, 0.0, 2.0, false, "eV"},
-      {"ratings", "rms_reverse_resistive_V", [](PlateType& t) -> double& { return t.ratings.rmsReverseResistive; }, 0.1, 1e4, false, "V"},
-      {"ratings", "rms_reverse_capacitive_V", [](PlateType& t) -> double& { return t.ratings.rmsReverseCapacitive; }, 0.1, 1e4, false, "V"},
-      {"ratings", "peak_reverse_V", [](PlateType& t) -> double& { return t.ratings.peakReverse; }, 0.1, 1e4, false, "V"},
-      {"ratings", "current_density_A_per_cm2", [](PlateType& t) -> double& { return t.ratings.currentDensity; }, 1e-6, 100.0, false, "A/cm2"},
-      {"ratings", "max_plate_temp_C", [](PlateType& t) -> double& { return t.ratings.maxPlateTemperature; }, -50.0, 400.0, true, "degC"},
-      {"ratings", "ambient_reference_C", [](PlateType& t) -> double& { return t.ratings.ambientReference; }, -50.0, 200.0, true, "degC"},
+      {"physics", "area_cm2", [](PlateType& t) -> double& { return t.physics.areaCm2; }, 1e-4, 1e4,
+       false, "cm2"},
+      {"physics", "js0_A_per_cm2", [](PlateType& t) -> double& { return t.physics.js0; }, 1e-15,
+       1.0, false, "A/cm2"},
+      {"physics", "ideality", [](PlateType& t) -> double& { return t.physics.ideality; }, 0.5, 20.0,
+       false, ""},
+      {"physics", "barrier_eV", [](PlateType& t) -> double& { return t.physics.barrierEv; }, 0.0,
+       3.0, false, "eV"},
+      {"physics", "t0_K", [](PlateType& t) -> double& { return t.physics.t0; }, 150.0, 500.0, false,
+       "K"},
+      {"physics", "image_force_per_V4",
+       [](PlateType& t) -> double& { return t.physics.imageForce; }, 0.0, 20.0, false, "V^-1/4"},
+      {"physics", "built_in_V", [](PlateType& t) -> double& { return t.physics.builtIn; }, 0.05,
+       5.0, false, "V"},
+      {"physics", "rs_ohm_cm2", [](PlateType& t) -> double& { return t.physics.rsArea; }, 1e-4, 1e5,
+       false, "ohm cm2"},
+      {"physics", "rs_activation_eV",
+       [](PlateType& t) -> double& { return t.physics.rsActivationEv; }, 0.0, 1.5, false, "eV"},
+      {"physics", "gsh_S_per_cm2", [](PlateType& t) -> double& { return t.physics.gshArea; }, 0.0,
+       1.0, false, "S/cm2"},
+      {"physics", "gsh_activation_eV",
+       [](PlateType& t) -> double& { return t.physics.gshActivationEv; }, 0.0, 2.0, false, "eV"},
+      {"physics", "breakdown_V", [](PlateType& t) -> double& { return t.physics.breakdownV; }, 0.5,
+       1e4, false, "V"},
+      {"physics", "breakdown_slope_V",
+       [](PlateType& t) -> double& { return t.physics.breakdownSlopeV; }, 0.01, 1e3, false, "V"},
+      {"physics", "breakdown_J0_A_per_cm2",
+       [](PlateType& t) -> double& { return t.physics.breakdownJ0; }, 0.0, 10.0, false, "A/cm2"},
+      {"physics", "c0_F_per_cm2", [](PlateType& t) -> double& { return t.physics.c0Area; }, 0.0,
+       1e-3, false, "F/cm2"},
+      {"physics", "fc", [](PlateType& t) -> double& { return t.physics.fc; }, 0.05, 0.95, false,
+       ""},
+      {"physics", "trap_c_F_per_cm2", [](PlateType& t) -> double& { return t.physics.trapCArea; },
+       0.0, 1e-3, false, "F/cm2"},
+      {"physics", "trap_tau_s", [](PlateType& t) -> double& { return t.physics.trapTau; }, 1e-6,
+       1e3, false, "s"},
+      {"thermal", "rth_K_per_W", [](PlateType& t) -> double& { return t.thermal.rth; }, 0.01, 1e5,
+       false, "K/W"},
+      {"thermal", "cth_J_per_K", [](PlateType& t) -> double& { return t.thermal.cth; }, 1e-4, 1e5,
+       false, "J/K"},
+      {"thermal", "rth_coupling_K_per_W",
+       [](PlateType& t) -> double& { return t.thermal.rthCoupling; }, 0.01, 1e6, false, "K/W"},
+      {"history", "deformed_leak_factor",
+       [](PlateType& t) -> double& { return t.history.deformedLeakFactor; }, 1.0, 1e4, false, ""},
+      {"history", "reform_tau_s", [](PlateType& t) -> double& { return t.history.reformTau; }, 1e-3,
+       1e8, false, "s"},
+      {"history", "reform_voltage_V",
+       [](PlateType& t) -> double& { return t.history.reformVoltage; }, 0.1, 1e4, false, "V"},
+      {"history", "reform_activation_eV",
+       [](PlateType& t) -> double& { return t.history.reformActivationEv; }, 0.0, 2.0, false, "eV"},
+      {"history", "storage_tau_years",
+       [](PlateType& t) -> double& { return t.history.storageTauYears; }, 0.01, 1e4, false,
+       "years"},
+      {"history", "age_coefficient",
+       [](PlateType& t) -> double& { return t.history.ageCoefficient; }, 0.0, 100.0, false, ""},
+      {"history", "age_hours_scale_h",
+       [](PlateType& t) -> double& { return t.history.ageHoursScale; }, 1.0, 1e7, false, "h"},
+      {"history", "age_activation_eV",
+       [](PlateType& t) -> double& { return t.history.ageActivationEv; }, 0.0, 2.0, false, "eV"},
+      {"ratings", "rms_reverse_resistive_V",
+       [](PlateType& t) -> double& { return t.ratings.rmsReverseResistive; }, 0.1, 1e4, false, "V"},
+      {"ratings", "rms_reverse_capacitive_V",
+       [](PlateType& t) -> double& { return t.ratings.rmsReverseCapacitive; }, 0.1, 1e4, false,
+       "V"},
+      {"ratings", "peak_reverse_V", [](PlateType& t) -> double& { return t.ratings.peakReverse; },
+       0.1, 1e4, false, "V"},
+      {"ratings", "current_density_A_per_cm2",
+       [](PlateType& t) -> double& { return t.ratings.currentDensity; }, 1e-6, 100.0, false,
+       "A/cm2"},
+      {"ratings", "max_plate_temp_C",
+       [](PlateType& t) -> double& { return t.ratings.maxPlateTemperature; }, -50.0, 400.0, true,
+       "degC"},
+      {"ratings", "ambient_reference_C",
+       [](PlateType& t) -> double& { return t.ratings.ambientReference; }, -50.0, 200.0, true,
+       "degC"},
   };
   return table;
 }
@@ -83,8 +123,12 @@ std::vector<std::string> keys() {
   return k;
 }
 
-double toJsonUnit(const Field& f, double v) { return f.celsius ? v - 273.15 : v; }
-double fromJsonUnit(const Field& f, double v) { return f.celsius ? v + 273.15 : v; }
+double toJsonUnit(const Field& f, double v) {
+  return f.celsius ? v - 273.15 : v;
+}
+double fromJsonUnit(const Field& f, double v) {
+  return f.celsius ? v + 273.15 : v;
+}
 
 PlateType typeFromJson(const json& j, const std::string& origin) {
   PlateType t;
@@ -99,14 +143,14 @@ PlateType typeFromJson(const json& j, const std::string& origin) {
   t.description = j.value("description", std::string());
   for (const char* group : {"physics", "thermal", "history", "ratings"}) {
     if (!j.contains(group)) continue;
-    if (!j[group].is_object()) throw InputError(where(fmt::format("\"{}\" must be an object", group)));
+    if (!j[group].is_object())
+      throw InputError(where(fmt::format("\"{}\" must be an object", group)));
     for (const auto& [key, value] : j[group].items()) {
       const Field* f = fieldOf(key);
       if (!f || std::string(f->group) != group)
         throw InputError(where(fmt::format("unknown parameter \"{}\" in \"{}\"{}", key, group,
                                            detail::didYouMean(key, keys()))));
-      if (!value.is_number())
-        throw InputError(where(fmt::format("\"{}\" must be a number", key)));
+      if (!value.is_number()) throw InputError(where(fmt::format("\"{}\" must be a number", key)));
       t.set(key, value.get<double>());
     }
   }
@@ -143,17 +187,19 @@ void PlateType::validate() const {
   for (const auto& f : fields()) {
     const double v = toJsonUnit(f, f.ref(copy));
     if (!std::isfinite(v) || v < f.lo || v > f.hi)
-      throw InputError(fmt::format("{} = {} {} is outside its range [{}, {}]", f.key, v, f.unit,
-                                   f.lo, f.hi));
+      throw InputError(
+          fmt::format("{} = {} {} is outside its range [{}, {}]", f.key, v, f.unit, f.lo, f.hi));
   }
   if (ratings.peakReverse < ratings.rmsReverseResistive)
-    throw InputError(fmt::format("plate type '{}': peak reverse rating below its rms rating", name));
+    throw InputError(
+        fmt::format("plate type '{}': peak reverse rating below its rms rating", name));
 }
 
 void PlateType::set(const std::string& key, double value) {
   const Field* f = fieldOf(key);
   if (!f)
-    throw InputError(fmt::format("unknown plate parameter '{}'{}", key, detail::didYouMean(key, keys())));
+    throw InputError(
+        fmt::format("unknown plate parameter '{}'{}", key, detail::didYouMean(key, keys())));
   if (!std::isfinite(value) || value < f->lo || value > f->hi)
     throw InputError(fmt::format("plate parameter {} = {} {} is outside its range [{}, {}]", key,
                                  value, f->unit, f->lo, f->hi));
@@ -163,12 +209,15 @@ void PlateType::set(const std::string& key, double value) {
 double PlateType::get(const std::string& key) const {
   const Field* f = fieldOf(key);
   if (!f)
-    throw InputError(fmt::format("unknown plate parameter '{}'{}", key, detail::didYouMean(key, keys())));
+    throw InputError(
+        fmt::format("unknown plate parameter '{}'{}", key, detail::didYouMean(key, keys())));
   PlateType copy = *this;
   return toJsonUnit(*f, f->ref(copy));
 }
 
-std::vector<std::string> PlateType::parameterNames() { return keys(); }
+std::vector<std::string> PlateType::parameterNames() {
+  return keys();
+}
 
 const PlateLibrary& PlateLibrary::builtIn() {
   static const PlateLibrary lib = fromJson(kBuiltInPlateTypesJson, "built-in plate types");
@@ -186,7 +235,8 @@ PlateLibrary PlateLibrary::fromJson(const std::string& text, const std::string& 
   if (j.is_object() && j.contains("types")) {
     const int schema = j.value("schema", 1);
     if (schema != 1)
-      throw InputError(fmt::format("{}: plate-type schema {} is not supported (this is 1)", origin, schema));
+      throw InputError(
+          fmt::format("{}: plate-type schema {} is not supported (this is 1)", origin, schema));
     if (!j["types"].is_array()) throw InputError(origin + ": \"types\" must be an array");
     for (const auto& t : j["types"]) lib.add(typeFromJson(t, origin));
   } else {
@@ -211,7 +261,8 @@ const PlateType* PlateLibrary::find(const std::string& name) const {
 
 const PlateType& PlateLibrary::at(const std::string& name) const {
   if (const PlateType* t = find(name)) return *t;
-  throw InputError(fmt::format("unknown plate type '{}'{}", name, detail::didYouMean(name, names())));
+  throw InputError(
+      fmt::format("unknown plate type '{}'{}", name, detail::didYouMean(name, names())));
 }
 
 void PlateLibrary::add(PlateType type) {
@@ -243,7 +294,9 @@ PlateType PlateLibrary::derive(const PlateType& base, const std::string& name,
   return t;
 }
 
-std::string PlateLibrary::toJson(const PlateType& type) { return typeToJson(type).dump(2); }
+std::string PlateLibrary::toJson(const PlateType& type) {
+  return typeToJson(type).dump(2);
+}
 
 std::string PlateLibrary::toJson() const {
   json j;

@@ -12,6 +12,7 @@ class Capacitor : public DeviceBase<Capacitor> {
   std::string_view kind() const override { return "capacitor"; }
   double capacitance() const { return c_; }
   void setCapacitance(double farad);
+  const std::vector<DeviceParameter>& parameterTable() const override;
 
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;

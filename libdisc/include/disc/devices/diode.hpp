@@ -8,22 +8,22 @@ namespace disc {
 /// Junction diode parameters (SI units). Defaults describe a general-purpose 1 A silicon
 /// rectifier (typical datasheet-class values, from memory).
 struct DiodeParams {
-  double is = 2.5e-9;         ///< saturation current at tnom, A
-  double n = 1.75;            ///< emission coefficient
-  double rs = 0.04;           ///< series resistance, ohm (0: no internal node)
-  double cj0 = 20e-12;        ///< zero-bias junction capacitance, F
-  double vj = 0.7;            ///< junction potential, V
-  double m = 0.4;             ///< grading coefficient
-  double fc = 0.5;            ///< forward-bias depletion-capacitance linearisation point
-  double tt = 0.0;            ///< transit time, s (reverse recovery; negligible at mains rates)
-  double bv = 1000.0;         ///< reverse breakdown voltage (positive), V; 0 disables
-  double ibv = 1e-6;          ///< current at breakdown voltage, A
-  double eg = 1.11;           ///< band gap for Is(T), eV
-  double xti = 3.0;           ///< saturation-current temperature exponent
-  double tnom = 300.15;       ///< parameter reference temperature, K
-  double temperature = 0.0;   ///< device temperature, K (0: circuit ambient)
-  double rth = 0.0;           ///< junction-to-ambient thermal resistance, K/W (0: isothermal)
-  double cth = 0.05;          ///< heat capacity when rth > 0, J/K
+  double is = 2.5e-9;        ///< saturation current at tnom, A
+  double n = 1.75;           ///< emission coefficient
+  double rs = 0.04;          ///< series resistance, ohm (0: no internal node)
+  double cj0 = 20e-12;       ///< zero-bias junction capacitance, F
+  double vj = 0.7;           ///< junction potential, V
+  double m = 0.4;            ///< grading coefficient
+  double fc = 0.5;           ///< forward-bias depletion-capacitance linearisation point
+  double tt = 0.0;           ///< transit time, s (reverse recovery; negligible at mains rates)
+  double bv = 1000.0;        ///< reverse breakdown voltage (positive), V; 0 disables
+  double ibv = 1e-6;         ///< current at breakdown voltage, A
+  double eg = 1.11;          ///< band gap for Is(T), eV
+  double xti = 3.0;          ///< saturation-current temperature exponent
+  double tnom = 300.15;      ///< parameter reference temperature, K
+  double temperature = 0.0;  ///< device temperature, K (0: circuit ambient)
+  double rth = 0.0;          ///< junction-to-ambient thermal resistance, K/W (0: isothermal)
+  double cth = 0.05;         ///< heat capacity when rth > 0, J/K
   void validate() const;
 };
 
@@ -35,6 +35,7 @@ class Diode : public DeviceBase<Diode> {
   std::string_view kind() const override { return "diode"; }
   const DiodeParams& params() const { return p_; }
   void setParams(const DiodeParams& params);
+  const std::vector<DeviceParameter>& parameterTable() const override;
   /// Takes the circuit's ambient as the device temperature when params().temperature is 0.
   void prepare(const Circuit& c) override;
 
@@ -62,7 +63,8 @@ class Diode : public DeviceBase<Diode> {
   double ambient_ = 298.15;
   Scale fixed_;  // at the device temperature, when isothermal
   int a_ = 0, k_ = 0, j_ = 0, th_ = 0, cell_ = 0;
-  int sTh_ = 0, sThJ_ = 0, sThK_ = 0, sThA_ = 0, sJTh_ = 0, sKTh_ = 0;  // anode, cathode, junction (internal anode) unknowns
+  int sTh_ = 0, sThJ_ = 0, sThK_ = 0, sThA_ = 0, sJTh_ = 0,
+      sKTh_ = 0;  // anode, cathode, junction (internal anode) unknowns
   PairSlots sj_;  // junction j-k
   PairSlots ss_;  // series resistance a-j
   void derive();

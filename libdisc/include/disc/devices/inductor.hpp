@@ -15,6 +15,7 @@ class Inductor : public DeviceBase<Inductor> {
   double resistance() const { return r_; }
   void setInductance(double henry);
   void setResistance(double ohm);
+  const std::vector<DeviceParameter>& parameterTable() const override;
   /// Index of the branch-current unknown (valid after bind()).
   int branch() const { return br_; }
 

@@ -12,6 +12,7 @@ class Resistor : public DeviceBase<Resistor> {
   std::string_view kind() const override { return "resistor"; }
   double resistance() const { return 1.0 / g_; }
   void setResistance(double ohm);
+  const std::vector<DeviceParameter>& parameterTable() const override;
 
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;

@@ -8,12 +8,12 @@ namespace disc {
 /// Transformer parameters. Inductances are referred to the winding they name; magnetizing
 /// inductance is referred to the primary. ratio = primary turns / secondary turns.
 struct TransformerParams {
-  double ratio = 1.0;            ///< N1/N2
-  double r1 = 0.0;               ///< primary winding resistance, ohm
-  double r2 = 0.0;               ///< secondary winding resistance, ohm
-  double leakage1 = 0.0;         ///< primary leakage inductance, H
-  double leakage2 = 0.0;         ///< secondary leakage inductance, H
-  double magnetizing = 10.0;     ///< magnetizing inductance seen from the primary, H
+  double ratio = 1.0;         ///< N1/N2
+  double r1 = 0.0;            ///< primary winding resistance, ohm
+  double r2 = 0.0;            ///< secondary winding resistance, ohm
+  double leakage1 = 0.0;      ///< primary leakage inductance, H
+  double leakage2 = 0.0;      ///< secondary leakage inductance, H
+  double magnetizing = 10.0;  ///< magnetizing inductance seen from the primary, H
   void validate() const;
 };
 
@@ -26,15 +26,14 @@ class Transformer : public DeviceBase<Transformer> {
   std::string_view kind() const override { return "transformer"; }
   const TransformerParams& params() const { return p_; }
   void setParams(const TransformerParams& params);
+  const std::vector<DeviceParameter>& parameterTable() const override;
 
   std::vector<UnknownSpec> internalUnknowns() const override;
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
   std::vector<std::pair<int, int>> dcPaths() const override { return {{0, 1}, {2, 3}}; }
-  std::vector<std::string> probes() const override {
-    return {"i1", "i2", "p", "energy", "loss"};
-  }
+  std::vector<std::string> probes() const override { return {"i1", "i2", "p", "energy", "loss"}; }
   std::string probeUnit(int k) const override;
   double probe(int k, const EvalContext& ctx) const override;
 
