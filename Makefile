@@ -23,7 +23,7 @@ test: build
 # The C++ tests again under AddressSanitizer and UndefinedBehaviorSanitizer (CI runs this too).
 test-sanitize: deps
 	@cmake -S . -B build-asan -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo -DDISC_SANITIZE=ON \
-	    -DDISC_BUILD_BENCHMARKS=OFF >/dev/null
+	    -DDISC_BUILD_BENCHMARKS=OFF -DDISC_BUILD_PYTHON=OFF >/dev/null
 	@cmake --build build-asan -j $(JOBS)
 	@cd build-asan && ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 \
 	    ctest --output-on-failure -j $(JOBS) -E "python|bench"
@@ -33,7 +33,7 @@ FUZZ_SECONDS ?= 120
 fuzz: deps
 	@bash .ci/install-deps clang libclang-rt-14-dev
 	@CXX=clang++ cmake -S . -B build-fuzz -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo -DDISC_FUZZ=ON \
-	    -DDISC_BUILD_TESTS=OFF -DDISC_BUILD_BENCHMARKS=OFF >/dev/null
+	    -DDISC_BUILD_TESTS=OFF -DDISC_BUILD_BENCHMARKS=OFF -DDISC_BUILD_PYTHON=OFF >/dev/null
 	@cmake --build build-fuzz -j $(JOBS) --target netlist_fuzz
 	@mkdir -p build-fuzz/corpus && cp netlists/*.disc build-fuzz/corpus/
 	@build-fuzz/netlist_fuzz -max_total_time=$(FUZZ_SECONDS) -timeout=10 -rss_limit_mb=2048 build-fuzz/corpus

@@ -26,6 +26,10 @@ struct RunOutcome {
 /// netlist names its output. `progress(time, stop)` may return false to cancel.
 RunOutcome runNetlist(Netlist& netlist, std::function<bool(double, double)> progress = {});
 
+/// The signals a run of this netlist records: `extra`, the file's own, and those the supply
+/// report needs when the netlist names its output.
+std::vector<std::string> runSignals(const Netlist& netlist, const std::vector<std::string>& extra);
+
 /// The report as plain text for a terminal.
 std::string reportText(const SupplyReport& report);
 /// The report as JSON (schema SupplyReport::kSchema; fields in docs/report.md).

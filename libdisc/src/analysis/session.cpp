@@ -5,18 +5,25 @@
 
 namespace disc {
 
+std::vector<std::string> runSignals(const Netlist& nl, const std::vector<std::string>& extra) {
+  std::vector<std::string> record = extra;
+  auto add = [&record](const std::string& s) {
+    if (std::find(record.begin(), record.end(), s) == record.end()) record.push_back(s);
+  };
+  for (const auto& s : nl.record) add(s);
+  if (nl.output.given)
+    for (const auto& s : reportSignals(nl)) add(s);
+  return record;
+}
+
 RunOutcome runNetlist(Netlist& nl, std::function<bool(double, double)> progress) {
   RunOutcome out;
-  const std::vector<std::string> reportSig =
-      nl.output.given ? reportSignals(nl) : std::vector<std::string>{};
   std::size_t lastTransient = nl.analyses.size();
   for (std::size_t k = 0; k < nl.analyses.size(); ++k)
     if (nl.analyses[k].kind == AnalysisRequest::Kind::Transient) lastTransient = k;
   for (std::size_t k = 0; k < nl.analyses.size(); ++k) {
     const AnalysisRequest& a = nl.analyses[k];
-    std::vector<std::string> record = nl.record;
-    for (const auto& s : reportSig)
-      if (std::find(record.begin(), record.end(), s) == record.end()) record.push_back(s);
+    const std::vector<std::string> record = runSignals(nl, {});
     if (a.kind == AnalysisRequest::Kind::OperatingPoint) {
       OperatingPointOptions o;
       o.record = record;

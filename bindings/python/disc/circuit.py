@@ -1,0 +1,247 @@
+"""Pythonic front of the netlist: keyword arguments, element views, results as numpy arrays."""
+import json
+import math
+
+from . import _disc
+
+
+def _text(value):
+    """A parameter value as the netlist language writes it (SI units, full precision)."""
+    if isinstance(value, bool):
+        return "1" if value else "0"
+    if isinstance(value, (int, float)):
+        if not math.isfinite(value):
+            raise ValueError(f"parameter values must be finite, got {value}")
+        return repr(float(value)) if isinstance(value, float) else str(value)
+    return str(value)
+
+
+def _params(**kwargs):
+    """Keyword arguments to netlist parameters: None is left out, '_' becomes '-'."""
+    return [(k.replace("_", "-"), _text(v)) for k, v in kwargs.items() if v is not None]
+
+
+class Element:
+    """One element of a circuit; its parameters read and set as attributes (netlist names with
+    '_' for '-'), e.g. ``c["SR1"].plates = 6`` or ``c["RL"].resistance = 1200``."""
+
+    def __init__(self, circuit, name):
+        object.__setattr__(self, "_circuit", circuit)
+        object.__setattr__(self, "name", name)
+
+    @property
+    def kind(self):
+        return self._circuit._net.element_kind(self.name)
+
+    @property
+    def parameters(self):
+        """Names of the settable parameters."""
+        return [p.replace("-", "_") for p in self._circuit._net.parameter_names(self.name)]
+
+    def __getattr__(self, key):
+        if key.startswith("_"):
+            raise AttributeError(key)
+        return self._circuit._net.parameter(self.name, key.replace("_", "-"))
+
+    def __setattr__(self, key, value):
+        self._circuit._net.set_parameter(self.name, key.replace("_", "-"), float(value))
+
+    def __repr__(self):
+        values = ", ".join(f"{p}={getattr(self, p)!r}" for p in self.parameters)
+        return f"<{self.kind} {self.name}: {values}>"
+
+
+class Result:
+    """Time points and recorded signals of one analysis.
+
+    ``result.time`` and ``result["v:out"]`` are read-only numpy arrays that view the C++
+    buffers without copying.
+    """
+
+    def __init__(self, circuit, result):
+        self._circuit = circuit
+        self._result = result
+
+    @property
+    def time(self):
+        """Time points, s."""
+        return self._result.time
+
+    def __getitem__(self, signal):
+        return self._result[signal]
+
+    def __contains__(self, signal):
+        return signal in self._result
+
+    @property
+    def signals(self):
+        """Names of the recorded signals."""
+        return list(self._result.signals)
+
+    def unit(self, signal):
+        """Unit symbol of a signal ("V", "A", "W", "K", ...)."""
+        return self._result.unit(signal)
+
+    @property
+    def stats(self):
+        """Work counters: steps, Newton iterations, wall time."""
+        return self._result.stats
+
+    def report(self):
+        """The supply report as a dict with the fields of report.json (docs/report.md)."""
+        return json.loads(self._circuit._net.report_json(self._result))
+
+    def report_text(self):
+        """The supply report as printed by ``disc run``."""
+        return self._circuit._net.report_text(self._result)
+
+    def to_csv(self, path):
+        """Writes every signal to a CSV file (header 'name [unit]')."""
+        self._result.to_csv(str(path))
+
+    def __repr__(self):
+        return f"<Result: {len(self.time)} points, signals {self.signals}>"
+
+
+class Circuit:
+    """A supply: elements, output, plate types and analyses.
+
+    Build it in code with the netlist language's names and checks, or get one from
+    :func:`disc.load` / :func:`disc.parse`. Values are in SI units (V, A, ohm, F, H, s, K);
+    strings with units are accepted too ("4.7k", "100uF", "30degC").
+    """
+
+    def __init__(self, name="<python>", _net=None):
+        self._net = _net if _net is not None else _disc.Netlist(name)
+
+    # -- elements -------------------------------------------------------------------------
+    def _add(self, kind, name, nodes, **params):
+        self._net.add(kind, name, list(nodes), _params(**params))
+        return Element(self, name)
+
+    def resistor(self, name, a, b, resistance):
+        """Resistor between nodes a and b; resistance in ohm."""
+        return self._add("resistor", name, (a, b), resistance=resistance)
+
+    def capacitor(self, name, a, b, capacitance):
+        """Capacitor; capacitance in F."""
+        return self._add("capacitor", name, (a, b), capacitance=capacitance)
+
+    def inductor(self, name, a, b, inductance, resistance=None):
+        """Inductor; inductance in H, winding resistance in ohm."""
+        return self._add("inductor", name, (a, b), inductance=inductance, resistance=resistance)
+
+    def coupling(self, name, first, second, k):
+        """Magnetic coupling 0 < k <= 1 between two inductors (by name)."""
+        return self._add("coupling", name, (first, second), k=k)
+
+    def transformer(self, name, p1, n1, p2, n2, ratio, r1=None, r2=None, leakage1=None,
+                    leakage2=None, magnetizing=None):
+        """Two-winding transformer; ratio = N1/N2; resistances in ohm, inductances in H."""
+        return self._add("transformer", name, (p1, n1, p2, n2), ratio=ratio, r1=r1, r2=r2,
+                         leakage1=leakage1, leakage2=leakage2, magnetizing=magnetizing)
+
+    def voltage(self, name, p, n, dc=None, amplitude=None, rms=None, frequency=None, phase=None,
+                offset=None, points=None, on=None, off=None, resistance=None, inductance=None):
+        """Voltage source: dc=V, or a sine (amplitude= or rms=, frequency= Hz, phase= deg,
+        offset=), or points=[(t, v), ...]; optional on=/off= times and source impedance."""
+        if points is not None and not isinstance(points, str):
+            points = ", ".join(f"{_text(t)} {_text(v)}" for t, v in points)
+        return self._add("voltage", name, (p, n), dc=dc, amplitude=amplitude, rms=rms,
+                         frequency=frequency, phase=phase, offset=offset, points=points, on=on,
+                         off=off, resistance=resistance, inductance=inductance)
+
+    def mains(self, name, p, n, rms, frequency, resistance=None, inductance=None, on=None):
+        """Mains supply: rms volts at frequency Hz behind its source impedance."""
+        return self.voltage(name, p, n, rms=rms, frequency=frequency, resistance=resistance,
+                            inductance=inductance, on=on)
+
+    def current(self, name, p, n, dc=None, amplitude=None, rms=None, frequency=None, phase=None,
+                offset=None, points=None, on=None, off=None):
+        """Current source from p through the source to n; same waveforms as voltage()."""
+        if points is not None and not isinstance(points, str):
+            points = ", ".join(f"{_text(t)} {_text(v)}" for t, v in points)
+        return self._add("current", name, (p, n), dc=dc, amplitude=amplitude, rms=rms,
+                         frequency=frequency, phase=phase, offset=offset, points=points, on=on,
+                         off=off)
+
+    def battery(self, name, p, n, emf, resistance=None):
+        """Battery: EMF in V behind its internal resistance in ohm."""
+        return self._add("battery", name, (p, n), emf=emf, resistance=resistance)
+
+    def diode(self, name, anode, cathode, **params):
+        """Silicon diode; parameters is, n, rs, cj0, vj, m, tt, bv, ibv, rth, cth, temperature."""
+        return self._add("diode", name, (anode, cathode), **params)
+
+    def stack(self, name, anode, cathode, type, plates=None, parallel=None, mode=None,
+              spread=None, seed=None, forming=None, stored_years=None, hours=None,
+              age_temp=None, cooling=None, **spreads):
+        """Plate stack: plates in series per arm, parallel arms; mode 'per-plate' or 'lumped';
+        lognormal spread (or spread_js, spread_rs, spread_gsh) drawn with seed; initial forming
+        or stored_years; ageing hours at age_temp; cooling factor."""
+        return self._add("stack", name, (anode, cathode), type=type, plates=plates,
+                         parallel=parallel, mode=mode, spread=spread, seed=seed, forming=forming,
+                         stored_years=stored_years, hours=hours, age_temp=age_temp,
+                         cooling=cooling, **spreads)
+
+    def switch(self, name, a, b, close=None, open=None, ron=None, roff=None):
+        """Switch closing and/or opening at the given times (s)."""
+        return self._add("switch", name, (a, b), close=close, open=open, ron=ron, roff=roff)
+
+    # -- circuit-level statements --------------------------------------------------------
+    def output(self, positive, negative, load, kind=None):
+        """Names the supply's DC output and its load element (enables the supply report)."""
+        text = f"output {positive} {negative} load={load}"
+        if kind:
+            text += f" kind={kind}"
+        self._net.statement(text)
+
+    def statement(self, text):
+        """Adds any statement of the netlist language (plate-type, ambient, record, ...)."""
+        self._net.statement(text)
+
+    def __getitem__(self, name):
+        if name not in self._net.element_names():
+            raise KeyError(f"no element named '{name}'")
+        return Element(self, name)
+
+    @property
+    def elements(self):
+        return list(self._net.element_names())
+
+    @property
+    def nodes(self):
+        return list(self._net.nodes())
+
+    def clone(self):
+        """A deep copy with the same parameters, to change and run independently."""
+        return Circuit(_net=self._net.clone())
+
+    def check(self):
+        """Whole-circuit checks (dangling nodes, floating parts, voltage loops)."""
+        self._net.check()
+
+    # -- analyses -------------------------------------------------------------------------
+    def run_transient(self, stop, record=None, method="trap", start="cold", max_step=0.0,
+                      reltol=0.0):
+        """Transient from 0 to stop (s). method: 'trap', 'bdf2' or 'ida'; start: 'cold' or
+        'operating-point'. The GIL is released while the engine runs; Ctrl-C stops it."""
+        res = self._net.run_transient(float(stop), list(record or []), method, start,
+                                      float(max_step), float(reltol))
+        return Result(self, res)
+
+    def run_op(self, record=None):
+        """DC operating point (one time point)."""
+        return Result(self, self._net.run_op(list(record or [])))
+
+    def run(self):
+        """Runs the analyses the netlist names; returns (results, report dict or None)."""
+        results, report = self._net.run()
+        return [Result(self, r) for r in results], (json.loads(report) if report else None)
+
+    def write_files(self, folder):
+        """Runs the netlist and writes report.json, report.html, CSV and SVG files."""
+        return list(self._net.write_files(str(folder)))
+
+    def __repr__(self):
+        return f"<Circuit {self._net.path!r}: {len(self.elements)} elements>"

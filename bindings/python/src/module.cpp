@@ -1,0 +1,12 @@
+// The _disc extension: only wires the register functions of each concept.
+#include <pybind11/pybind11.h>
+
+#include "register.hpp"
+
+PYBIND11_MODULE(_disc, m) {
+  m.doc() = "libdisc: plate-rectifier supply simulation (C++ core)";
+  disc::python::registerErrors(m);
+  disc::python::registerPlates(m);
+  disc::python::registerResult(m);
+  disc::python::registerCircuit(m);
+}

@@ -1,0 +1,55 @@
+// Results as numpy arrays that view the C++ columns (no copy, read-only).
+#include <pybind11/numpy.h>
+#include <pybind11/stl.h>
+
+#include <memory>
+
+#include "disc/error.hpp"
+#include "disc/result.hpp"
+#include "disc/session.hpp"
+#include "register.hpp"
+
+namespace py = pybind11;
+
+namespace disc::python {
+
+namespace {
+
+py::array view(const std::shared_ptr<Result>& owner, const std::vector<double>& column) {
+  // The array's base is the Result itself, which keeps the buffer alive.
+  py::array a(py::dtype::of<double>(), {column.size()}, {sizeof(double)}, column.data(),
+              py::cast(owner));
+  py::detail::array_proxy(a.ptr())->flags &= ~py::detail::npy_api::NPY_ARRAY_WRITEABLE_;
+  return a;
+}
+
+}  // namespace
+
+void registerResult(py::module_& m) {
+  py::class_<Result, std::shared_ptr<Result>>(m, "Result", "Time points and recorded signals.")
+      .def_property_readonly("time", [](const std::shared_ptr<Result>& r) { return view(r, r->time()); },
+                             "Time points, s (read-only view, no copy).")
+      .def("__getitem__",
+           [](const std::shared_ptr<Result>& r, const std::string& name) { return view(r, (*r)[name]); },
+           "A recorded signal by name (read-only view, no copy).")
+      .def("__contains__", &Result::has)
+      .def_property_readonly("signals", &Result::signals)
+      .def("unit", &Result::unit, "Unit symbol of a signal.")
+      .def_property_readonly("stats",
+                             [](const Result& r) {
+                               const RunStats& s = r.stats();
+                               py::dict d;
+                               d["method"] = s.method;
+                               d["accepted_steps"] = s.acceptedSteps;
+                               d["rejected_steps"] = s.rejectedSteps;
+                               d["newton_iterations"] = s.newtonIterations;
+                               d["factorizations"] = s.factorizations;
+                               d["unknowns"] = s.unknowns;
+                               d["wall_s"] = s.wallSeconds;
+                               return d;
+                             })
+      .def("to_csv", [](const Result& r, const std::string& path) { writeFileAtomically(path, resultCsv(r)); },
+           "Writes every signal as CSV (header 'name [unit]').");
+}
+
+}  // namespace disc::python
