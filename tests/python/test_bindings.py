@@ -1,0 +1,170 @@
+"""The Python module: every public function, zero-copy results, errors with locations, parity
+with the command-line program, parameter sweeps and threads."""
+import json
+import os
+import pathlib
+import subprocess
+import threading
+
+import numpy as np
+import pytest
+
+import disc
+
+NETLISTS = pathlib.Path(__file__).resolve().parents[2] / "netlists"
+EXAMPLES = sorted(p.name for p in NETLISTS.glob("*.disc") if p.name != "charger-common.disc")
+
+
+def small_supply():
+    c = disc.Circuit()
+    c.mains("MAINS", "line", "gnd", rms=120, frequency=60, resistance=0.5)
+    c.resistor("RSURGE", "line", "a", 22)
+    c.stack("SR1", "a", "b", type="se-25mm-36v", plates=8)
+    c.capacitor("C1", "b", "gnd", 50e-6)
+    c.resistor("RL", "b", "gnd", "3.3k")
+    c.output("b", "gnd", load="RL")
+    return c
+
+
+def test_results_are_read_only_views_of_the_engine_buffers():
+    r = small_supply().run_transient(stop=0.2, record=["v:b"])
+    v = r["v:b"]
+    assert isinstance(v, np.ndarray) and v.dtype == np.float64
+    assert v.base is not None  # a view, not a copy
+    assert not v.flags.writeable
+    with pytest.raises(ValueError):
+        v[0] = 1.0
+    assert len(r.time) == len(v)
+    assert r.unit("v:b") == "V"
+    assert "v:b" in r.signals
+    # The same buffer each time: O(1), no copy.
+    assert r["v:b"].__array_interface__["data"][0] == v.__array_interface__["data"][0]
+
+
+def test_report_fields_match_report_json():
+    r = small_supply().run_transient(stop=1.0)
+    rep = r.report()
+    assert rep["schema"] == 1
+    assert rep["output"]["mean_V"] > 100
+    assert rep["stacks"][0]["name"] == "SR1"
+    assert any("selenium" in c for c in rep["cautions"])
+    assert "OUTPUT" in r.report_text()
+
+
+@pytest.mark.parametrize("name", EXAMPLES)
+def test_parity_with_the_command_line(name, tmp_path):
+    # The same figures to the last digit of the JSON.
+    cli = os.environ.get("DISC_CLI", "disc")
+    subprocess.run([cli, "run", "-q", str(NETLISTS / name), "-o", str(tmp_path)], check=True)
+    from_cli = json.loads((tmp_path / "report.json").read_text())
+    _, from_python = disc.load(NETLISTS / name).run()
+    for d in (from_cli, from_python):
+        d["run"].pop("wall_s")
+    assert from_python == from_cli
+
+
+def test_errors_carry_file_line_and_column(tmp_path):
+    with pytest.raises(disc.NetlistError) as e:
+        disc.parse("voltage V1 a gnd dc=10V\nresistor R1 a gnd 1q\n", "mine.disc")
+    assert (e.value.file, e.value.line, e.value.column) == ("mine.disc", 2, 19)
+    assert isinstance(e.value, ValueError)
+    bad = tmp_path / "bad.disc"
+    bad.write_text("capacitor C1 a gnd -1u\n")
+    with pytest.raises(disc.NetlistError) as e:
+        disc.load(bad)
+    assert e.value.file == str(bad) and e.value.line == 1
+    c = disc.Circuit()
+    with pytest.raises(disc.NetlistError, match="must be positive"):
+        c.resistor("R1", "a", "gnd", -5)
+    with pytest.raises(disc.NetlistError, match="did you mean 'capacitance'"):
+        c._add("capacitor", "C9", ("a", "gnd"), capacitence=1e-6)
+
+
+def test_simulation_errors_are_typed():
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", dc=1)
+    c.capacitor("C1", "a", "b", 1e-6)
+    c.capacitor("C2", "b", "gnd", 1e-6)
+    with pytest.raises(disc.SimulationError, match="no DC path"):
+        c.run_op()
+
+
+def test_parameters_by_name_drive_a_sweep_without_reparsing():
+    c = small_supply()
+    assert c["SR1"].plates == 8
+    means = []
+    for r_load in (2200, 3300, 4700):
+        c["RL"].resistance = r_load
+        means.append(c.run_transient(stop=0.5, record=["v:b"])["v:b"][-200:].mean())
+    assert means[0] < means[1] < means[2]  # lighter load, higher voltage
+    with pytest.raises(ValueError, match="did you mean 'plates'"):
+        c["SR1"].platez = 3
+    assert "stored_years" in c["SR1"].parameters
+
+
+def test_clone_is_independent():
+    a = small_supply()
+    b = a.clone()
+    b["C1"].capacitance = 200e-6
+    assert a["C1"].capacitance == pytest.approx(50e-6)
+    ra = a.run_transient(stop=0.5).report()
+    rb = b.run_transient(stop=0.5).report()
+    assert rb["output"]["ripple_pp_V"] < ra["output"]["ripple_pp_V"]
+
+
+def test_operating_point_and_csv(tmp_path):
+    c = disc.parse("voltage V1 in gnd dc=12V\nresistor R1 in mid 1k\nresistor R2 mid gnd 2k\n")
+    r = c.run_op(record=["v:mid"])
+    assert r["v:mid"][0] == pytest.approx(8.0, rel=1e-6)
+    r.to_csv(tmp_path / "op.csv")
+    assert (tmp_path / "op.csv").read_text().startswith("time [s],v:mid [V]")
+
+
+def test_plate_types_read_derive_and_save(tmp_path):
+    names = [t.name for t in disc.plate_types()]
+    assert "se-25mm-square" in names and "cuox-12mm-meter" in names
+    se = disc.plate_type("se-25mm-square")
+    assert se.get("rms_reverse_resistive_V") == 26.0
+    assert se.rated_current() == pytest.approx(0.15)
+    worn = se.derive("worn", {"rs_ohm_cm2": 20.0})
+    path = tmp_path / "worn.json"
+    worn.save(str(path))
+    loaded = disc.load_plate_types(path)
+    assert loaded[0].get("rs_ohm_cm2") == 20.0
+    c = small_supply()
+    c.statement(f'use "{path}"')
+    c.stack("SR2", "a", "b2", type="worn", plates=8)
+    assert c["SR2"].plates == 8
+
+
+def test_threads_give_the_same_answers_as_one_after_the_other():
+    circuits = [small_supply(), small_supply()]
+    circuits[1]["RL"].resistance = 2200
+    serial = [c.run_transient(stop=0.3, record=["v:b"])["v:b"].copy() for c in circuits]
+    out = [None, None]
+
+    def work(k):
+        out[k] = circuits[k].run_transient(stop=0.3, record=["v:b"])["v:b"].copy()
+
+    threads = [threading.Thread(target=work, args=(k,)) for k in range(2)]
+    for t in threads:
+        t.start()
+    for t in threads:
+        t.join()
+    for k in range(2):
+        np.testing.assert_array_equal(out[k], serial[k])
+
+
+def test_plot_helpers_return_figures():
+    pytest.importorskip("matplotlib")
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from disc import plot
+
+    c = small_supply()
+    r = c.run_transient(stop=0.5, record=["v:b"])
+    for fig in (plot.waveforms(r, ["v:b"]), plot.settled_cycle(r, ["v:b"], frequency=60),
+                plot.plate_iv(r, "SR1"), plot.temperatures(r, ["SR1"]),
+                plot.arm_shares(r, "SR1")):
+        assert fig.axes
