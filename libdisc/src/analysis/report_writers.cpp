@@ -63,7 +63,7 @@ std::vector<double> ticks(double lo, double hi) {
 std::string reportText(const SupplyReport& r) {
   std::string s;
   auto line = [&](const std::string& l) { s += l + "\n"; };
-  line(fmt::format("libdisc supply report{}", r.title.empty() ? "" : ": " + r.title));
+  line(r.title.empty() ? std::string("libdisc supply report") : fmt::format("libdisc supply report: {}", r.title));
   line(fmt::format("file {}, ambient {:.1f} degC", r.file, toC(r.ambient)));
   if (r.frequency > 0)
     line(fmt::format("figures over {} settled cycle(s) of {:g} Hz, {:.4f} to {:.4f} s{}", r.cycles,

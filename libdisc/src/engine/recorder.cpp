@@ -73,7 +73,7 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
       const auto it = std::find(probes.begin(), probes.end(), kind);
       if (it == probes.end()) {
         std::string list;
-        for (const auto& p : probes) list += (list.empty() ? "" : ", ") + p;
+        list = fmt::format("{}", fmt::join(probes, ", "));
         throw InputError(fmt::format("signal '{}': a {} has no quantity '{}'; it has: {}", spec,
                                      d->kind(), kind, list));
       }

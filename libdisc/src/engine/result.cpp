@@ -15,7 +15,7 @@ std::size_t Result::indexOf(std::string_view signal) const {
   auto it = index_.find(std::string(signal));
   if (it == index_.end()) {
     std::string list;
-    for (const auto& n : names_) list += (list.empty() ? "" : ", ") + n;
+    list = fmt::format("{}", fmt::join(names_, ", "));
     throw InputError(fmt::format("signal '{}' was not recorded; recorded: {}", signal, list));
   }
   return it->second;

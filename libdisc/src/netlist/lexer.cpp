@@ -24,7 +24,10 @@ std::string Diagnostic::format() const {
 NetlistError::NetlistError(std::vector<Diagnostic> diagnostics)
     : InputError([&] {
         std::string all;
-        for (const auto& d : diagnostics) all += (all.empty() ? "" : "\n") + d.format();
+        for (const auto& d : diagnostics) {
+          if (!all.empty()) all += '\n';
+          all += d.format();
+        }
         return all;
       }()),
       diagnostics_(std::move(diagnostics)) {}

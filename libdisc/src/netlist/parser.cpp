@@ -741,7 +741,7 @@ class Builder {
     const auto probes = d->probes();
     if (std::find(probes.begin(), probes.end(), kind) == probes.end()) {
       std::string list;
-      for (const auto& p : probes) list += (list.empty() ? "" : ", ") + p;
+      list = fmt::format("{}", fmt::join(probes, ", "));
       return fmt::format("signal '{}': a {} has no quantity '{}' (it has {})", sig, d->kind(), kind,
                          list);
     }
@@ -797,7 +797,7 @@ class Builder {
       if (find(parent, k) != find(parent, n)) islands[find(parent, k)].push_back(c.nodeName(k));
     for (const auto& [root, names] : islands) {
       std::string list;
-      for (const auto& nm : names) list += (list.empty() ? "" : ", ") + nm;
+      list = fmt::format("{}", fmt::join(names, ", "));
       const auto& refs = nodeRefs_[names.front()];
       error(refs.empty() ? SourceLocation{nl_.path, 1, 1} : refs.front(),
             fmt::format("nodes {} form a part of the circuit with no path to gnd", list));
@@ -834,12 +834,12 @@ void addElement(Netlist& nl, const std::string& kind, const std::string& name,
                 const std::vector<std::pair<std::string, std::string>>& params) {
   // The parts become one statement of the language, so every check and message is the same.
   auto quote = [](const std::string& v) {
-    return v.find_first_of(" \t#") == std::string::npos ? v : "\"" + v + "\"";
+    return v.find_first_of(" \t#") == std::string::npos ? v : fmt::format("\"{}\"", v);
   };
-  std::string text = kind + " " + quote(name);
-  for (const auto& n : nodes) text += " " + quote(n);
-  for (const auto& [k, v] : params) text += " " + k + "=" + quote(v);
-  appendNetlist(nl, text, "<" + kind + " " + name + ">");
+  std::string text = fmt::format("{} {}", kind, quote(name));
+  for (const auto& n : nodes) text += fmt::format(" {}", quote(n));
+  for (const auto& [k, v] : params) text += fmt::format(" {}={}", k, quote(v));
+  appendNetlist(nl, text, fmt::format("<{} {}>", kind, name));
 }
 
 Netlist parseNetlist(const std::string& text, const std::string& name) {
