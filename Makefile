@@ -22,7 +22,8 @@ test: build
 
 # The C++ tests again under AddressSanitizer and UndefinedBehaviorSanitizer (CI runs this too).
 test-sanitize: deps
-	@cmake -S . -B build-asan -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo -DDISC_SANITIZE=ON \
+	@cmake -S . -B build-asan -G Ninja -DCMAKE_BUILD_TYPE=Debug -DCMAKE_CXX_FLAGS_DEBUG="-O1 -g1" \
+	    -DDISC_SANITIZE=ON \
 	    -DDISC_BUILD_BENCHMARKS=OFF -DDISC_BUILD_PYTHON=OFF >/dev/null
 	@cmake --build build-asan -j $(JOBS)
 	@cd build-asan && ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 \
