@@ -83,9 +83,36 @@ def main():
         per = (ladder[hi][2] - ladder[lo][2]) * 1024 / (hi - lo)
         print(f"\nMemory per diode (peak RSS difference {lo} -> {hi}): {per:.0f} bytes")
 
+    python_overhead(args.build)
     if args.quick:
         return
     scipy_comparison(cli)
+
+
+def python_overhead(build):
+    """The same 1 s bridge run from Python and from C++, and the cost of result[...]."""
+    sys.path.insert(0, os.path.join(build, "python"))
+    import disc
+    import numpy as np
+
+    print("\n## Calling from Python\n")
+    c = disc.reference_circuit("bridge")
+    walls, inner = [], []
+    for _ in range(5):
+        t0 = time.perf_counter()
+        r = c.run_transient(stop=1.0, record=["v:out"], method="trap")
+        walls.append(time.perf_counter() - t0)
+        inner.append(r.stats["wall_s"])
+    py, cpp = min(walls), min(inner)
+    print(f"1 s bridge, trap: {py * 1e3:.1f} ms from Python, {cpp * 1e3:.1f} ms inside the C++ "
+          f"run: overhead {100 * (py - cpp) / cpp:.2f} %")
+    n = 100000
+    t0 = time.perf_counter()
+    for _ in range(n):
+        r["v:out"]
+    per = (time.perf_counter() - t0) / n
+    print(f"result['v:out'] ({len(r['v:out'])} points): {per * 1e6:.2f} us per access, no copy "
+          f"(base is the result: {r['v:out'].base is not None})")
 
 
 def disc_figures(cli, name, method, reltol, stop=1.0):

@@ -42,10 +42,15 @@ def plate_type(name):
     raise ValueError(f"unknown plate type '{name}'")
 
 
+def reference_circuit(name):
+    """A reference circuit built in code: 'bridge', 'selenium-bridge', 'half-wave', ..."""
+    return Circuit(_net=_disc.reference_circuit(name))
+
+
 def load_plate_types(path):
     """Plate types from a JSON file in the library's schema."""
     return list(_disc.load_plate_types(str(path)))
 
 
 __all__ = ["Circuit", "Element", "Result", "PlateType", "NetlistError", "SimulationError",
-           "load", "parse", "plate_types", "plate_type", "load_plate_types"]
+           "load", "parse", "plate_types", "plate_type", "load_plate_types", "reference_circuit"]

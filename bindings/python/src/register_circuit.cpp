@@ -6,6 +6,7 @@
 #include "disc/analysis.hpp"
 #include "disc/error.hpp"
 #include "disc/netlist.hpp"
+#include "disc/reference_circuits.hpp"
 #include "disc/session.hpp"
 #include "disc/supply_report.hpp"
 #include "register.hpp"
@@ -148,6 +149,14 @@ void registerCircuit(py::module_& m) {
              }
              return writeRunFiles(n, out, dir);
            });
+  m.def(
+      "reference_circuit",
+      [](const std::string& name) {
+        Netlist n = emptyNetlist("<reference " + name + ">");
+        n.circuit = reference::build(name);
+        return n;
+      },
+      py::arg("name"), "A reference circuit built in code (see `disc example list`).");
   m.def("load", &loadNetlist, py::arg("path"), "Reads and checks a .disc netlist file.");
   m.def("parse", &parseNetlist, py::arg("text"), py::arg("name") = "<text>", "Parses netlist text.");
 }

@@ -178,6 +178,20 @@ DeviceParameter parameterOf(std::string name, G getter, S setter) {
           [setter](Device& d, double v) { (static_cast<D&>(d).*setter)(v); }};
 }
 
+/// A DeviceParameter for a field of a device's parameter struct P, read through params() and
+/// written through setParams() (so the device validates and re-derives).
+template <class D, class P>
+DeviceParameter paramsField(std::string name, double P::*member) {
+  return {std::move(name),
+          [member](const Device& d) { return static_cast<const D&>(d).params().*member; },
+          [member](Device& d, double v) {
+            auto& dev = static_cast<D&>(d);
+            P p = dev.params();
+            p.*member = v;
+            dev.setParams(p);
+          }};
+}
+
 /// CRTP helper giving a device its clone().
 template <class Derived>
 class DeviceBase : public Device {

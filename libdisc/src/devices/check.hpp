@@ -3,6 +3,7 @@
 
 #include <fmt/format.h>
 #include <cmath>
+#include <string>
 #include <string_view>
 
 #include "disc/error.hpp"
@@ -21,6 +22,16 @@ inline void requireNonNegative(std::string_view device, std::string_view what, d
   if (!(v >= 0.0) || !std::isfinite(v))
     throw InputError(fmt::format("{}: {} must be zero or positive and finite, got {} {}", device,
                                  what, v, unit));
+}
+
+/// Runs a check and prefixes any InputError with the device's name.
+template <class F>
+void namedChecks(const std::string& device, F&& check) {
+  try {
+    check();
+  } catch (const InputError& e) {
+    throw InputError(device + ": " + e.what());
+  }
 }
 
 }  // namespace disc::detail

@@ -45,16 +45,7 @@ Diode::Diode(std::string name, NodeId anode, NodeId cathode, const DiodeParams& 
 }
 
 const std::vector<DeviceParameter>& Diode::parameterTable() const {
-  auto field = [](const char* name, double DiodeParams::*member) {
-    return DeviceParameter{
-        name, [member](const Device& d) { return static_cast<const Diode&>(d).p_.*member; },
-        [member](Device& d, double v) {
-          auto& diode = static_cast<Diode&>(d);
-          DiodeParams p = diode.p_;
-          p.*member = v;
-          diode.setParams(p);
-        }};
-  };
+  constexpr auto field = paramsField<Diode, DiodeParams>;
   static const std::vector<DeviceParameter> t = {
       field("is", &DiodeParams::is),   field("n", &DiodeParams::n),
       field("rs", &DiodeParams::rs),   field("cj0", &DiodeParams::cj0),
@@ -66,11 +57,7 @@ const std::vector<DeviceParameter>& Diode::parameterTable() const {
 }
 
 void Diode::setParams(const DiodeParams& params) {
-  try {
-    params.validate();
-  } catch (const InputError& e) {
-    throw InputError(name_ + ": " + e.what());
-  }
+  detail::namedChecks(name_, [&] { params.validate(); });
   p_ = params;
   derive();
 }

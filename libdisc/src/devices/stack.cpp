@@ -74,12 +74,10 @@ void StackOptions::validate() const {
 
 Stack::Stack(std::string name, NodeId anode, NodeId cathode, PlateType type, StackOptions options)
     : DeviceBase(std::move(name), {anode, cathode}), type_(std::move(type)), opt_(options) {
-  try {
+  detail::namedChecks(name_, [&] {
     type_.validate();
     opt_.validate();
-  } catch (const InputError& e) {
-    throw InputError(name_ + ": " + e.what());
-  }
+  });
   build();
 }
 
@@ -87,11 +85,7 @@ Stack::~Stack() = default;
 Stack::Stack(const Stack& other) = default;
 
 void Stack::setOptions(const StackOptions& options) {
-  try {
-    options.validate();
-  } catch (const InputError& e) {
-    throw InputError(name_ + ": " + e.what());
-  }
+  detail::namedChecks(name_, [&] { options.validate(); });
   opt_ = options;
   build();
 }

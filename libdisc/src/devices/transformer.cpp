@@ -22,26 +22,13 @@ Transformer::Transformer(std::string name, NodeId p1, NodeId n1, NodeId p2, Node
 }
 
 void Transformer::setParams(const TransformerParams& params) {
-  try {
-    params.validate();
-  } catch (const InputError& e) {
-    throw InputError(name_ + ": " + e.what());
-  }
+  detail::namedChecks(name_, [&] { params.validate(); });
   p_ = params;
   derive();
 }
 
 const std::vector<DeviceParameter>& Transformer::parameterTable() const {
-  auto field = [](const char* name, double TransformerParams::*member) {
-    return DeviceParameter{
-        name, [member](const Device& d) { return static_cast<const Transformer&>(d).p_.*member; },
-        [member](Device& d, double v) {
-          auto& t = static_cast<Transformer&>(d);
-          TransformerParams p = t.p_;
-          p.*member = v;
-          t.setParams(p);
-        }};
-  };
+  constexpr auto field = paramsField<Transformer, TransformerParams>;
   static const std::vector<DeviceParameter> t = {
       field("ratio", &TransformerParams::ratio),
       field("r1", &TransformerParams::r1),
