@@ -33,8 +33,10 @@ NetlistError::NetlistError(std::vector<Diagnostic> diagnostics)
       diagnostics_(std::move(diagnostics)) {}
 
 namespace detail {
+namespace {
 
-void Diagnostics::addFile(const std::string& file, const std::string& text) {
+/// The physical lines of a text, without their line ends (LF or CRLF).
+std::vector<std::string> splitLines(const std::string& text) {
   std::vector<std::string> lines;
   std::istringstream in(text);
   std::string line;
@@ -42,7 +44,13 @@ void Diagnostics::addFile(const std::string& file, const std::string& text) {
     if (!line.empty() && line.back() == '\r') line.pop_back();
     lines.push_back(line);
   }
-  files_.emplace_back(file, std::move(lines));
+  return lines;
+}
+
+}  // namespace
+
+void Diagnostics::addFile(const std::string& file, const std::string& text) {
+  files_.emplace_back(file, splitLines(text));
 }
 
 void Diagnostics::error(const SourceLocation& where, std::string message) {
@@ -132,15 +140,7 @@ std::vector<Statement> lex(const std::string& text, const std::string& file, Dia
                            std::vector<std::string>& includeStack) {
   diags.addFile(file, text);
   std::vector<Statement> statements;
-  std::vector<std::string> lines;
-  {
-    std::istringstream in(text);
-    std::string line;
-    while (std::getline(in, line)) {
-      if (!line.empty() && line.back() == '\r') line.pop_back();
-      lines.push_back(line);
-    }
-  }
+  const std::vector<std::string> lines = splitLines(text);
   std::vector<Char> logical;
   for (std::size_t li = 0; li < lines.size(); ++li) {
     const std::string& line = lines[li];
