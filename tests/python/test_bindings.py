@@ -168,3 +168,24 @@ def test_plot_helpers_return_figures():
                 plot.plate_iv(r, "SR1"), plot.temperatures(r, ["SR1"]),
                 plot.arm_shares(r, "SR1")):
         assert fig.axes
+
+
+def test_an_interrupt_stops_a_long_run_cleanly():
+    import signal
+    import time
+
+    def interrupt(*_):
+        raise KeyboardInterrupt
+
+    previous = signal.signal(signal.SIGALRM, interrupt)
+    try:
+        signal.setitimer(signal.ITIMER_REAL, 0.3)
+        t0 = time.perf_counter()
+        with pytest.raises(KeyboardInterrupt):
+            small_supply().run_transient(stop=1000.0)
+        assert time.perf_counter() - t0 < 10.0
+    finally:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, previous)
+    # The module is still usable afterwards.
+    assert small_supply().run_transient(stop=0.05).stats["accepted_steps"] > 0
