@@ -44,6 +44,9 @@ void LinearSolver::fullFactor(const System& sys) {
 void LinearSolver::factor(const System& sys) {
   const auto& J = sys.jacobian();
   if (!analyzed_) {
+    // No row scaling: MNA rows mix amperes, watts and 1/s, but KLU's threshold partial pivoting
+    // (and the condition check below) copes, and scaling costs a tenth of every refactorisation.
+    klu_.kluCommon().scale = -1;  // -1: neither scale nor re-check the matrix
     klu_.analyzePattern(J);
     if (klu_.info() != Eigen::Success)
       throw SingularCircuitError(
