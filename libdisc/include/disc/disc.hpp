@@ -18,6 +18,7 @@
 #include "disc/measures.hpp"
 #include "disc/netlist.hpp"
 #include "disc/plate_type.hpp"
+#include "disc/preferred_values.hpp"
 #include "disc/reference_circuits.hpp"
 #include "disc/result.hpp"
 #include "disc/session.hpp"
