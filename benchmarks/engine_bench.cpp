@@ -2,20 +2,10 @@
 // series-diode ladder. Run through benchmarks/run_benchmarks.py for the full report.
 #include <benchmark/benchmark.h>
 
+#include "counters.hpp"
 #include "disc/disc.hpp"
 
 namespace {
-
-// Counters of one run; the run's own wall time (RunStats) gives the per-step figures.
-void setCounters(benchmark::State& st, const disc::RunStats& s) {
-  st.counters["accepted"] = static_cast<double>(s.acceptedSteps);
-  st.counters["rejected"] = static_cast<double>(s.rejectedSteps);
-  st.counters["newton"] = static_cast<double>(s.newtonIterations);
-  st.counters["unknowns"] = s.unknowns;
-  st.counters["steps_per_s"] = static_cast<double>(s.acceptedSteps) / s.wallSeconds;
-  st.counters["us_per_step"] = 1e6 * s.wallSeconds / static_cast<double>(s.acceptedSteps);
-  st.counters["us_per_newton"] = 1e6 * s.wallSeconds / static_cast<double>(s.newtonIterations);
-}
 
 void BridgeOneSecond(benchmark::State& st) {
   const auto method = static_cast<disc::Method>(st.range(0));
@@ -32,7 +22,7 @@ void BridgeOneSecond(benchmark::State& st) {
     benchmark::DoNotOptimize(r["v:out"].back());
     stats = r.stats();
   }
-  setCounters(st, stats);
+  disc::bench::setCounters(st, stats);
 }
 BENCHMARK(BridgeOneSecond)
     ->Arg(static_cast<int>(disc::Method::Trapezoidal))
@@ -54,7 +44,7 @@ void Ladder(benchmark::State& st) {
     benchmark::DoNotOptimize(r["v:n1"].back());
     stats = r.stats();
   }
-  setCounters(st, stats);
+  disc::bench::setCounters(st, stats);
 }
 BENCHMARK(Ladder)->Arg(10)->Arg(100)->Arg(1000)->Arg(10000)->Unit(benchmark::kMillisecond);
 

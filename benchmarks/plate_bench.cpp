@@ -4,6 +4,7 @@
 
 #include <vector>
 
+#include "counters.hpp"
 #include "disc/disc.hpp"
 #include "engine/system.hpp"
 #include "plate/plate_model.hpp"
@@ -65,9 +66,7 @@ void SeleniumBridgeOneSecond(benchmark::State& st) {
     benchmark::DoNotOptimize(r["v:out"].back());
     stats = r.stats();
   }
-  st.counters["accepted"] = static_cast<double>(stats.acceptedSteps);
-  st.counters["newton"] = static_cast<double>(stats.newtonIterations);
-  st.counters["unknowns"] = stats.unknowns;
+  disc::bench::setCounters(st, stats);
 }
 BENCHMARK(SeleniumBridgeOneSecond)->Arg(0)->Arg(1)->Unit(benchmark::kMillisecond);
 
