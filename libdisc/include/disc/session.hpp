@@ -53,6 +53,9 @@ std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& netlist
 /// if missing). Every file is written under a temporary name and renamed into place.
 std::vector<std::string> writeRunFiles(const Netlist& netlist, const RunOutcome& outcome,
                                        const std::string& dir);
+/// Writes each (name, content) into `dir` (created if missing), atomically; returns the paths.
+std::vector<std::string> writeFiles(const std::string& dir,
+                                    const std::vector<std::pair<std::string, std::string>>& files);
 /// Writes a file atomically (temporary name, then rename); throws Error on failure.
 void writeFileAtomically(const std::string& path, const std::string& content);
 

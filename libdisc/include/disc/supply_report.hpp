@@ -68,4 +68,10 @@ std::vector<std::string> reportSignals(const Netlist& netlist);
 /// Computes the report from a transient result that recorded reportSignals().
 SupplyReport makeSupplyReport(const Netlist& netlist, const Result& transient);
 
+/// The safety cautions every report carries (the selenium-fume caution first when a selenium
+/// plate is involved).
+std::vector<std::string> safetyCautions(bool selenium);
+/// The closing disclaimer of every report: a simulation defers to codes and technicians.
+std::string simulationDisclaimer();
+
 }  // namespace disc

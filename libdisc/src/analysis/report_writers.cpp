@@ -63,7 +63,8 @@ std::vector<double> ticks(double lo, double hi) {
 std::string reportText(const SupplyReport& r) {
   std::string s;
   auto line = [&](const std::string& l) { s += l + "\n"; };
-  line(r.title.empty() ? std::string("libdisc supply report") : fmt::format("libdisc supply report: {}", r.title));
+  line(r.title.empty() ? std::string("libdisc supply report")
+                       : fmt::format("libdisc supply report: {}", r.title));
   line(fmt::format("file {}, ambient {:.1f} degC", r.file, toC(r.ambient)));
   if (r.frequency > 0)
     line(fmt::format("figures over {} settled cycle(s) of {:g} Hz, {:.4f} to {:.4f} s{}", r.cycles,
@@ -425,29 +426,35 @@ void writeFileAtomically(const std::string& path, const std::string& content) {
   }
 }
 
-std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
-                                       const std::string& dir) {
+std::vector<std::string> writeFiles(const std::string& dir,
+                                    const std::vector<std::pair<std::string, std::string>>& files) {
   std::error_code ec;
   std::filesystem::create_directories(dir, ec);
   if (ec) throw Error(fmt::format("cannot create the output folder '{}': {}", dir, ec.message()));
   std::vector<std::string> written;
-  auto put = [&](const std::string& name, const std::string& content) {
+  for (const auto& [name, content] : files) {
     const std::string path = (std::filesystem::path(dir) / name).string();
     writeFileAtomically(path, content);
     written.push_back(path);
-  };
+  }
+  return written;
+}
+
+std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
+                                       const std::string& dir) {
+  std::vector<std::pair<std::string, std::string>> files;
   for (std::size_t k = 0; k < out.analyses.size(); ++k) {
     const auto& a = out.analyses[k];
     const char* kind =
         a.request.kind == AnalysisRequest::Kind::Transient ? "transient" : "operating-point";
-    put(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
+    files.emplace_back(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
   }
   if (out.hasReport) {
-    put("report.json", reportJson(out.report));
-    put("report.html", reportHtml(nl, out));
-    for (const auto& [name, svg] : runPlots(nl, out)) put(name + ".svg", svg);
+    files.emplace_back("report.json", reportJson(out.report));
+    files.emplace_back("report.html", reportHtml(nl, out));
+    for (const auto& [name, svg] : runPlots(nl, out)) files.emplace_back(name + ".svg", svg);
   }
-  return written;
+  return writeFiles(dir, files);
 }
 
 }  // namespace disc

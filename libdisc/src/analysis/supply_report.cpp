@@ -267,23 +267,30 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     for (const auto& v : s.verdicts)
       if (rank(v.level) > rank(rep.worst)) rep.worst = v.level;
 
-  rep.cautions = {
+  rep.cautions = safetyCautions(selenium);
+  rep.disclaimer = simulationDisclaimer();
+  return rep;
+}
+
+std::vector<std::string> safetyCautions(bool selenium) {
+  std::vector<std::string> c = {
       "Mains and the high voltages of valve equipment can kill; a transformerless (AC/DC) set can "
       "have a live chassis: work through an isolation transformer.",
       "Reservoir and filter capacitors stay charged after switch-off: discharge them through a "
       "resistor and check with a meter before touching."};
   if (selenium)
-    rep.cautions.insert(
-        rep.cautions.begin(),
-        "An overheated or failing selenium rectifier releases toxic fumes with a strong foul smell "
-        "(the smell is no safe warning): switch off, ventilate, leave the room, do not inhale, let "
-        "it cool, and dispose of the plates as hazardous waste (they contain selenium and "
-        "cadmium).");
-  rep.disclaimer =
-      "These figures are a simulation to plan work. They are no substitute for local electrical "
-      "codes, the equipment maker's data or a qualified technician; model values are typical, and "
-      "old parts differ widely.";
-  return rep;
+    c.insert(c.begin(),
+             "An overheated or failing selenium rectifier releases toxic fumes with a strong foul "
+             "smell (the smell is no safe warning): switch off, ventilate, leave the room, do not "
+             "inhale, let it cool, and dispose of the plates as hazardous waste (they contain "
+             "selenium and cadmium).");
+  return c;
+}
+
+std::string simulationDisclaimer() {
+  return "These figures are a simulation to plan work. They are no substitute for local "
+         "electrical codes, the equipment maker's data or a qualified technician; model values "
+         "are typical, and old parts differ widely.";
 }
 
 }  // namespace disc

@@ -1,0 +1,105 @@
+// Fitting a plate type to measured current-voltage traces (docs/fitting.md): weighted
+// Levenberg-Marquardt in stages, uncertainties from the Jacobian at the optimum, and a health
+// verdict against a healthy plate of the same material and size.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "disc/plate_health.hpp"
+#include "disc/plate_type.hpp"
+#include "disc/trace.hpp"
+
+namespace disc {
+
+struct FitOptions {
+  int plates = 1;  ///< plates in series the traces span (voltages are divided by it)
+  /// Healthy reference type: starting values, the parameters not fitted, ratings, and the
+  /// health verdict. Empty: by material (selenium: se-25mm-square; copper-oxide:
+  /// cuox-12mm-meter).
+  std::string like;
+  std::string material = "selenium";  ///< used when `like` is empty
+  double areaCm2 = 0.0;               ///< active area of one plate; 0: the reference's
+  std::string name = "fitted-plate";  ///< name of the fitted type
+  double temperature = 298.15;        ///< K, plate temperature of traces without that column
+  /// Measurement noise model behind the weights: sigma = relative |I| + floor. Only the shape
+  /// matters (the covariance is scaled by the residuals); floor 0 = 1e-3 of the largest |I|.
+  double noiseRelative = 0.01;
+  double noiseFloor = 0.0;  ///< A
+  bool dynamic = true;      ///< fit capacitance and trap branch from traces with a time column
+  void validate() const;
+};
+
+/// One parameter of the fitted type.
+struct FittedParameter {
+  std::string name;   ///< the plate-type JSON name, e.g. "rs_ohm_cm2"
+  std::string unit;   ///< e.g. "ohm cm2"
+  std::string stage;  ///< "forward", "reverse", "static", "thermal" or "dynamic"
+  double value = 0.0;
+  double start = 0.0;        ///< starting value (from the data or the reference)
+  double uncertainty = 0.0;  ///< standard uncertainty (1 sigma); +inf when not determined
+  double lower = 0.0, upper = 0.0;
+  bool atBound = false;
+  bool identifiable = true;  ///< false: the data do not determine it (see warnings)
+  /// Fitted on a logarithmic scale (positive quantities spanning decades): the uncertainty is
+  /// relative, and its interval is a factor either side.
+  bool logScale = false;
+  double logUncertainty = 0.0;  ///< standard uncertainty of ln(value), for logScale parameters
+  /// Expanded uncertainty, coverage factor k = 2 (about 95 %), as JCGM 100:2008 (GUM) 6.2; for
+  /// logScale parameters its linear equivalent value * 2 u(ln value).
+  double expanded() const { return 2.0 * uncertainty; }
+  /// The interval at coverage factor k = 2 (about 95 %): from the profile likelihood for the
+  /// static stages, which follows curved valleys of the cost, or linearised (value -+ 2 u, on
+  /// the log scale for logScale parameters) for the dynamic stage. Within the bounds.
+  double low = 0.0, high = 0.0;
+  std::string interval;  ///< "profile likelihood" or "linearised"
+  bool covers(double x) const { return x >= low && x <= high; }
+};
+
+/// Measured and fitted current of one trace, per plate, for plots.
+struct FitCurve {
+  std::string trace;
+  bool dynamic = false;
+  std::vector<double> time, voltage, measured, fitted;  ///< s, V per plate, A, A
+};
+
+struct PlateFit {
+  PlateType type;  ///< the fitted type (reference values where not fitted)
+  std::vector<FittedParameter> parameters;
+  int points = 0;                     ///< points fitted
+  double rmsWeighted = 0.0;           ///< rms of the weighted residuals (about 1: noise model fits)
+  double rmsCurrent = 0.0;            ///< A, rms of measured minus fitted current
+  std::vector<std::string> stages;    ///< stages run, in order, with their cost
+  std::vector<std::string> warnings;  ///< what the data do not determine, and why
+  PlateHealth health;
+  std::vector<FitCurve> curves;
+  int evaluations = 0;  ///< model evaluations (static points or transient runs)
+  const FittedParameter* find(const std::string& name) const;
+};
+
+/// Fits a plate type to one or more traces of one plate (or one stack of `plates` plates).
+/// Throws TraceError for traces a fit cannot use (too few points, no reverse or forward part),
+/// InputError for bad options.
+PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& options);
+
+/// The fit report: plain text, JSON (schema 1) and an SVG plot per view ("forward",
+/// "reverse", "loops" when a trace is dynamic).
+std::string fitReportText(const PlateFit& fit);
+std::string fitReportJson(const PlateFit& fit);
+std::vector<std::pair<std::string, std::string>> fitPlots(const PlateFit& fit);
+/// Writes <name>.json (the type, usable with `use` in a netlist), fit-report.txt,
+/// fit-report.json and the plots into `dir`; returns the paths written.
+std::vector<std::string> writeFitFiles(const PlateFit& fit, const std::string& dir);
+
+}  // namespace disc
+
+namespace disc {
+
+/// The current (A) the model of `type` draws at each point of a trace: the static curve point
+/// by point at the point's temperature (or `kelvin`), or, for a trace with a time column, a
+/// transient of `plates` plates in series driven by the trace's own voltage, starting from
+/// rest (no charge, plate at ambient) (ambient: the trace's mean temperature, or `kelvin`).
+std::vector<double> modelCurrent(const PlateType& type, const Trace& trace, int plates = 1,
+                                 double kelvin = 298.15, double reltol = 1e-6);
+
+}  // namespace disc
