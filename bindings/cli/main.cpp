@@ -163,6 +163,70 @@ int runExample(const ExampleArgs& a) {
   return 0;
 }
 
+struct FitArgs {
+  std::vector<std::string> traces;
+  std::string outDir;
+  double temperatureC = 25.0;
+  bool staticOnly = false;
+  bool quiet = false;
+  disc::FitOptions options;
+};
+
+int fitTraces(FitArgs& a) {
+  std::vector<disc::Trace> traces;
+  for (const auto& path : a.traces) traces.push_back(disc::loadTrace(path));
+  a.options.temperature = a.temperatureC + 273.15;
+  a.options.dynamic = !a.staticOnly;
+  const disc::PlateFit fit = disc::fitPlate(traces, a.options);
+  const std::string dir = a.outDir.empty() ? "out/fit-" + a.options.name : a.outDir;
+  const auto files = disc::writeFitFiles(fit, dir);
+  if (!a.quiet) {
+    fmt::print("{}", disc::fitReportText(fit));
+    fmt::print("\nwritten to {}/ ({} files); use the type in a netlist with: use \"{}/{}.json\"\n",
+               dir, files.size(), dir, fit.type.name);
+  }
+  return 0;
+}
+
+struct ReplaceArgs {
+  std::string file;
+  std::string out;
+  std::vector<double> loads = {0.5, 1.0, 1.2};
+  bool json = false;
+  bool quiet = false;
+  disc::ReplaceOptions options;
+};
+
+int replaceStacks(ReplaceArgs& a) {
+  a.options.loadFractions = a.loads;
+  const bool tty = isatty(fileno(stderr)) != 0;
+  if (tty && !a.quiet)
+    a.options.progress = [](const std::string& line) {
+      fmt::print(stderr, "\r{:70}\r{}", "", line);
+      return true;
+    };
+  const disc::ReplacementDesign d = disc::designReplacementFile(a.file, a.options);
+  if (tty && !a.quiet) fmt::print(stderr, "\r{:70}\r", "");
+  std::string out = a.out;
+  if (out.empty()) {
+    const auto slash = a.file.find_last_of('/');
+    out = (slash == std::string::npos ? std::string() : a.file.substr(0, slash + 1)) +
+          stemOf(a.file) + "-silicon.disc";
+  }
+  const std::string jsonPath =
+      out.substr(0, out.rfind(".disc") == out.size() - 5 ? out.size() - 5 : out.size()) + ".json";
+  disc::writeFileAtomically(out, d.netlist);
+  disc::writeFileAtomically(jsonPath, disc::replacementJson(d));
+  if (a.json) {
+    std::cout << disc::replacementJson(d);
+  } else if (!a.quiet) {
+    fmt::print("{}", disc::replacementText(d));
+    fmt::print("\nreplacement netlist written to {} (design: {}); {} simulation runs\n", out,
+               jsonPath, d.runs);
+  }
+  return 0;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -198,6 +262,58 @@ int main(int argc, char** argv) {
   example->add_flag("!--from-operating-point", ex.cold,
                     "Start from the DC operating point instead of switching on cold");
 
+  FitArgs fa;
+  auto* fit = app.add_subcommand(
+      "fit", "Fit a plate type to measured I-V traces (CSV) and judge the plate's health");
+  fit->add_option("traces", fa.traces, "Trace files (CSV with 'voltage [V], current [mA]' ...)")
+      ->required()
+      ->check(CLI::ExistingFile);
+  fit->add_option("--plates", fa.options.plates, "Plates in series across the trace")
+      ->check(CLI::Range(1, 100000));
+  fit->add_option("--like", fa.options.like,
+                  "Healthy reference type (default by material: se-25mm-square, "
+                  "cuox-12mm-meter)");
+  fit->add_option("--material", fa.options.material, "selenium or copper-oxide")
+      ->check(CLI::IsMember({"selenium", "copper-oxide"}));
+  fit->add_option("--area", fa.options.areaCm2,
+                  "Active area of one plate, cm2 (default: the "
+                  "reference's)")
+      ->check(CLI::PositiveNumber);
+  fit->add_option("--name", fa.options.name, "Name of the fitted type");
+  fit->add_option("--temperature", fa.temperatureC,
+                  "Plate temperature of traces without that column, degC")
+      ->check(CLI::Range(-100.0, 300.0));
+  fit->add_option("--noise-relative", fa.options.noiseRelative,
+                  "Relative measurement noise of the current (weights)")
+      ->check(CLI::Range(0.0, 0.5));
+  fit->add_option("--noise-floor", fa.options.noiseFloor,
+                  "Noise floor of the current, A (default 1e-3 of the largest)")
+      ->check(CLI::NonNegativeNumber);
+  fit->add_flag("--static-only", fa.staticOnly, "Do not fit capacitance and trap branch");
+  fit->add_option("--fix", fa.options.fixed,
+                  "Hold a parameter at the reference's value (repeat for several)");
+  fit->add_option("-o,--out", fa.outDir, "Output folder (default out/fit-<name>)");
+  fit->add_flag("-q,--quiet", fa.quiet, "Print nothing; only write the files");
+
+  ReplaceArgs rp;
+  auto* replace = app.add_subcommand(
+      "replace", "Design a silicon diode and dropping resistor to replace plate stacks");
+  replace->add_option("file", rp.file, "Netlist (.disc) with an output statement")
+      ->required()
+      ->check(CLI::ExistingFile);
+  replace->add_option("--stack", rp.options.stacks, "Stack to replace (repeat for several)")
+      ->required();
+  replace->add_option("--diode", rp.options.diode,
+                      "Silicon diode parameters in netlist words, e.g. \"is=5n n=1.8 rs=0.05\"");
+  replace->add_option("--loads", rp.loads, "Load fractions of the comparison table")
+      ->delimiter(',')
+      ->check(CLI::Range(0.01, 3.0));
+  replace->add_option("-o,--out", rp.out,
+                      "Replacement netlist to write (default <file stem>-silicon.disc beside "
+                      "the netlist, so its include and use paths still resolve)");
+  replace->add_flag("--json", rp.json, "Print the design as JSON");
+  replace->add_flag("-q,--quiet", rp.quiet, "Print nothing; only write the files");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -208,6 +324,8 @@ int main(int argc, char** argv) {
     if (run->parsed()) return runFile(ra);
     if (check->parsed()) return checkFile(checkPath);
     if (plates->parsed()) return listPlates();
+    if (fit->parsed()) return fitTraces(fa);
+    if (replace->parsed()) return replaceStacks(rp);
     if (example->parsed()) {
       if (ex.name == "list") {
         for (const auto& n : disc::reference::names())

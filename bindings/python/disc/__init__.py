@@ -11,12 +11,15 @@ qualified technician. Mains, valve high voltages and charged capacitors can kill
 selenium gives off toxic fumes.
 """
 from . import _disc
-from ._errors import NetlistError, SimulationError
+from ._errors import NetlistError, SimulationError, TraceError
 from .circuit import Circuit, Element, Result
 
 __version__ = "0.1.0"
 
 PlateType = _disc.PlateType
+PlateCurve = _disc.PlateCurve
+Trace = _disc.Trace
+judge_plate_health = _disc.judge_plate_health
 
 
 def load(path):
@@ -52,5 +55,65 @@ def load_plate_types(path):
     return list(_disc.load_plate_types(str(path)))
 
 
-__all__ = ["Circuit", "Element", "Result", "PlateType", "NetlistError", "SimulationError",
-           "load", "parse", "plate_types", "plate_type", "load_plate_types", "reference_circuit"]
+def load_trace(path):
+    """Reads a measured trace (CSV: a header such as 'time [ms], voltage [V], current [mA]');
+    raises TraceError naming the line and column of a fault."""
+    return _disc.load_trace(str(path))
+
+
+def trace(voltage, current, time=None, temperature_c=None, source="<arrays>"):
+    """A trace from arrays in SI units (V, A, s; temperature in degC)."""
+    import numpy as np
+
+    def col(a):
+        return [] if a is None else [float(x) for x in np.asarray(a, dtype=float).ravel()]
+
+    kelvin = None if temperature_c is None else np.asarray(temperature_c, dtype=float) + 273.15
+    v, i = col(voltage), col(current)
+    if len(v) != len(i):
+        raise ValueError(f"voltage has {len(v)} values but current has {len(i)}")
+    return _disc.Trace(v, i, col(time), col(kelvin), source)
+
+
+def fit_plate(traces, *, plates=1, like=None, material="selenium", area_cm2=None,
+              name="fitted-plate", temperature_c=25.0, noise_relative=0.01, noise_floor=None,
+              dynamic=True, fixed=()):
+    """Fits a plate type to one or more traces of one plate or stack (docs/fitting.md).
+
+    ``traces``: paths of CSV files or Trace objects (one, or a list). ``plates``: plates in
+    series across the trace. ``like``: the healthy reference type, a name or a PlateType
+    (default by ``material``). ``fixed``: parameter names held at the reference's values.
+    Returns a PlateFit: ``type`` (usable at once in a Circuit), ``parameters`` with
+    uncertainties, ``warnings``, ``health``, ``curves``; ``write(dir)`` saves the type JSON,
+    the reports and the plots.
+    """
+    import os
+
+    if isinstance(traces, (str, os.PathLike, _disc.Trace)):
+        traces = [traces]
+    loaded = [t if isinstance(t, _disc.Trace) else load_trace(t) for t in traces]
+    reference = like if isinstance(like, _disc.PlateType) else None
+    like_name = "" if reference is not None else (like or "")
+    return _disc.fit_plate(loaded, plates, like_name, reference, list(fixed), material,
+                           area_cm2 or 0.0, name, temperature_c + 273.15, noise_relative,
+                           noise_floor or 0.0, dynamic)
+
+
+def model_current(type, trace, plates=1, temperature_c=25.0):
+    """The current a plate type draws along a trace (a transient for timed traces), A."""
+    return _disc.model_current(type, trace, plates, temperature_c + 273.15)
+
+
+def replace_stacks(path, stacks, *, diode=None, loads=(0.5, 1.0, 1.2)):
+    """Designs a silicon diode and dropping resistor per stack so the supply of the netlist at
+    ``path`` gives its original DC output (docs/replacement.md). ``stacks``: a name or a list.
+    Returns a ReplacementDesign; ``netlist`` is the replacement netlist's text."""
+    if isinstance(stacks, str):
+        stacks = [stacks]
+    return _disc.design_replacement(str(path), list(stacks), diode or "", [float(x) for x in loads])
+
+
+__all__ = ["Circuit", "Element", "Result", "PlateType", "PlateCurve", "Trace", "NetlistError",
+           "SimulationError", "TraceError", "load", "parse", "plate_types", "plate_type",
+           "load_plate_types", "reference_circuit", "load_trace", "trace", "fit_plate",
+           "model_current", "judge_plate_health", "replace_stacks"]

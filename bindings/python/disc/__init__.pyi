@@ -15,6 +15,12 @@ class NetlistError(ValueError):
 
 class SimulationError(RuntimeError): ...
 
+class TraceError(ValueError):
+    file: str
+    line: int
+    column: int
+    column_name: str
+
 class PlateType:
     name: str
     material: str
@@ -55,6 +61,7 @@ class Result:
 Value = float | int | str
 
 class Circuit:
+    def add_plate_type(self, plate_type: PlateType) -> Circuit: ...
     def __init__(self, name: str = ...) -> None: ...
     def resistor(self, name: str, a: str, b: str, resistance: Value) -> Element: ...
     def capacitor(self, name: str, a: str, b: str, capacitance: Value) -> Element: ...
@@ -104,3 +111,125 @@ def plate_types() -> list[PlateType]: ...
 def plate_type(name: str) -> PlateType: ...
 def reference_circuit(name: str) -> Circuit: ...
 def load_plate_types(path: str | PathLike[str]) -> list[PlateType]: ...
+
+class Trace:
+    source: str
+    voltage: npt.NDArray[np.float64]
+    current: npt.NDArray[np.float64]
+    time: npt.NDArray[np.float64]
+    temperature: npt.NDArray[np.float64]
+    lines: list[int]
+    dynamic: bool
+    def __len__(self) -> int: ...
+
+class PlateCurve:
+    def __init__(self, type: PlateType, forming: float = ...) -> None: ...
+    def current(self, volts: npt.ArrayLike, kelvin: npt.ArrayLike) -> Any: ...
+    def voltage(self, amps: npt.ArrayLike, kelvin: npt.ArrayLike) -> Any: ...
+
+class PlateHealth:
+    reference: str
+    temperature: float
+    rated_current: float
+    forward_drop: float
+    forward_drop_healthy: float
+    reverse_voltage: float
+    reverse_current: float
+    reverse_current_healthy: float
+    forward_ratio: float
+    reverse_ratio: float
+    forming_estimate: float
+    level: str
+    findings: list[str]
+
+class FittedParameter:
+    name: str
+    unit: str
+    stage: str
+    value: float
+    start: float
+    uncertainty: float
+    low: float
+    high: float
+    interval: str
+    log_scale: bool
+    at_bound: bool
+    identifiable: bool
+    expanded: float
+    def covers(self, x: float) -> bool: ...
+
+class FitCurve:
+    trace: str
+    dynamic: bool
+    time: npt.NDArray[np.float64]
+    voltage: npt.NDArray[np.float64]
+    measured: npt.NDArray[np.float64]
+    fitted: npt.NDArray[np.float64]
+
+class PlateFit:
+    type: PlateType
+    parameters: list[FittedParameter]
+    points: int
+    rms_weighted: float
+    rms_current: float
+    stages: list[str]
+    warnings: list[str]
+    health: PlateHealth
+    curves: list[FitCurve]
+    evaluations: int
+    def report_text(self) -> str: ...
+    def report_json(self) -> str: ...
+    def plots(self) -> list[tuple[str, str]]: ...
+    def write(self, dir: str) -> list[str]: ...
+
+class ReplacementRow:
+    load_fraction: float
+    output_original: float
+    output_replacement: float
+    ripple_original: float
+    ripple_replacement: float
+    surge_original: float
+    surge_replacement: float
+    dissipation_original: float
+    dissipation_replacement: float
+
+class ReplacementDesign:
+    file: str
+    stacks: list[str]
+    load: str
+    target: float
+    silicon_alone: float
+    resistor_exact: float
+    output_exact: float
+    hand_estimate: float
+    e12: float
+    e24: float
+    output_e12: float
+    output_e24: float
+    resistor_power: float
+    resistor_rating: float
+    peak_reverse: float
+    piv_required: float
+    surge_simulated: float
+    surge_required: float
+    rows: list[ReplacementRow]
+    netlist: str
+    warnings: list[str]
+    cautions: list[str]
+    runs: int
+    def text(self) -> str: ...
+    def json(self) -> str: ...
+
+def load_trace(path: str | PathLike[str]) -> Trace: ...
+def trace(voltage: npt.ArrayLike, current: npt.ArrayLike, time: npt.ArrayLike | None = ...,
+          temperature_c: npt.ArrayLike | None = ..., source: str = ...) -> Trace: ...
+def fit_plate(traces: str | PathLike[str] | Trace | Sequence[str | PathLike[str] | Trace], *,
+              plates: int = ..., like: str | PlateType | None = ..., material: str = ...,
+              area_cm2: float | None = ..., name: str = ..., temperature_c: float = ...,
+              noise_relative: float = ..., noise_floor: float | None = ...,
+              dynamic: bool = ..., fixed: Sequence[str] = ...) -> PlateFit: ...
+def model_current(type: PlateType, trace: Trace, plates: int = ...,
+                  temperature_c: float = ...) -> npt.NDArray[np.float64]: ...
+def judge_plate_health(plate: PlateType, healthy: PlateType, kelvin: float = ...) -> PlateHealth: ...
+def replace_stacks(path: str | PathLike[str], stacks: str | Sequence[str], *,
+                   diode: str | None = ..., loads: Iterable[float] = ...) -> ReplacementDesign: ...

@@ -18,3 +18,13 @@ class NetlistError(ValueError):
 class SimulationError(RuntimeError):
     """The engine failed (singular circuit, no convergence, time step too small); the message
     names the cause."""
+
+
+class TraceError(ValueError):
+    """A measured trace (CSV) cannot be used; ``file``, ``line`` (1-based, every line of the
+    file counted), ``column`` (1-based, 0 when the fault is not in one cell) and ``column_name``
+    locate the fault."""
+
+    def __init__(self, message, file="", line=0, column=0, column_name=""):
+        super().__init__(message)
+        self.file, self.line, self.column, self.column_name = file, line, column, column_name

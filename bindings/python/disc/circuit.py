@@ -196,6 +196,12 @@ class Circuit:
             text += f" kind={kind}"
         self._net.statement(text)
 
+    def add_plate_type(self, plate_type):
+        """Makes a PlateType (for example ``fit.type`` from fit_plate) usable by name in
+        ``stack(..., type=name)``."""
+        self._net.add_plate_type(plate_type)
+        return self
+
     def statement(self, text):
         """Adds any statement of the netlist language (plate-type, ambient, record, ...)."""
         self._net.statement(text)

@@ -9,4 +9,6 @@ PYBIND11_MODULE(_disc, m) {
   disc::python::registerPlates(m);
   disc::python::registerResult(m);
   disc::python::registerCircuit(m);
+  disc::python::registerFit(m);
+  disc::python::registerReplace(m);
 }

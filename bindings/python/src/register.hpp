@@ -9,5 +9,7 @@ void registerErrors(pybind11::module_& m);
 void registerPlates(pybind11::module_& m);
 void registerResult(pybind11::module_& m);
 void registerCircuit(pybind11::module_& m);
+void registerFit(pybind11::module_& m);
+void registerReplace(pybind11::module_& m);
 
 }  // namespace disc::python

@@ -9,6 +9,7 @@
 #include "disc/reference_circuits.hpp"
 #include "disc/session.hpp"
 #include "disc/supply_report.hpp"
+#include "disc/trace.hpp"
 #include "register.hpp"
 
 namespace py = pybind11;
@@ -29,7 +30,9 @@ std::function<bool(double, double)> interruptible() {
   };
 }
 
-std::shared_ptr<Result> own(Result&& r) { return std::make_shared<Result>(std::move(r)); }
+std::shared_ptr<Result> own(Result&& r) {
+  return std::make_shared<Result>(std::move(r));
+}
 
 py::object diagnosticList(const NetlistError& e) {
   py::list out;
@@ -50,6 +53,10 @@ void registerErrors(py::module_& m) {
       py::object cls = py::module_::import("disc._errors").attr("NetlistError");
       py::object err = cls(e.what(), diagnosticList(e));
       PyErr_SetObject(cls.ptr(), err.ptr());
+    } catch (const TraceError& e) {
+      py::object cls = py::module_::import("disc._errors").attr("TraceError");
+      py::object err = cls(e.what(), e.file(), e.line(), e.column(), e.columnName());
+      PyErr_SetObject(cls.ptr(), err.ptr());
     } catch (const Cancelled& e) {
       PyErr_SetString(PyExc_KeyboardInterrupt, e.what());
     } catch (const InputError& e) {
@@ -64,25 +71,35 @@ void registerErrors(py::module_& m) {
 
 void registerCircuit(py::module_& m) {
   py::class_<Netlist>(m, "Netlist", "A circuit with its analyses, output and plate types.")
-      .def(py::init([](const std::string& name) { return emptyNetlist(name); }), py::arg("name") = "<python>")
-      .def("clone", [](const Netlist& n) { return Netlist(n); }, "A deep copy (cheap: no parsing).")
+      .def(py::init([](const std::string& name) { return emptyNetlist(name); }),
+           py::arg("name") = "<python>")
+      .def(
+          "clone", [](const Netlist& n) { return Netlist(n); }, "A deep copy (cheap: no parsing).")
       .def_readwrite("title", &Netlist::title)
       .def_readonly("path", &Netlist::path)
       .def_property_readonly("ambient", [](const Netlist& n) { return n.circuit.ambient(); })
-      .def("add", &addElement, py::arg("kind"), py::arg("name"), py::arg("nodes"), py::arg("params"))
-      .def("statement", [](Netlist& n, const std::string& text) { appendNetlist(n, text, "<python>"); })
+      .def("add", &addElement, py::arg("kind"), py::arg("name"), py::arg("nodes"),
+           py::arg("params"))
+      .def("statement",
+           [](Netlist& n, const std::string& text) { appendNetlist(n, text, "<python>"); })
       .def("check", &checkNetlist)
+      .def(
+          "add_plate_type", [](Netlist& n, const PlateType& t) { n.plateTypes.add(t); },
+          "Makes a plate type (a fitted one, say) known to the netlist's stack statements.")
       .def("element_names",
            [](const Netlist& n) {
              std::vector<std::string> names;
              for (const auto& d : n.circuit.devices()) names.push_back(d->name());
              return names;
            })
-      .def("element_kind", [](Netlist& n, const std::string& e) { return std::string(n.circuit.at(e).kind()); })
-      .def("parameter_names", [](Netlist& n, const std::string& e) { return n.circuit.at(e).parameterNames(); })
-      .def("parameter", [](Netlist& n, const std::string& e, const std::string& p) { return n.circuit.at(e).parameter(p); })
-      .def("set_parameter",
-           [](Netlist& n, const std::string& e, const std::string& p, double v) { n.circuit.at(e).setParameter(p, v); })
+      .def("element_kind",
+           [](Netlist& n, const std::string& e) { return std::string(n.circuit.at(e).kind()); })
+      .def("parameter_names",
+           [](Netlist& n, const std::string& e) { return n.circuit.at(e).parameterNames(); })
+      .def("parameter", [](Netlist& n, const std::string& e,
+                           const std::string& p) { return n.circuit.at(e).parameter(p); })
+      .def("set_parameter", [](Netlist& n, const std::string& e, const std::string& p,
+                               double v) { n.circuit.at(e).setParameter(p, v); })
       .def("probes", [](Netlist& n, const std::string& e) { return n.circuit.at(e).probes(); })
       .def("nodes",
            [](const Netlist& n) {
@@ -93,15 +110,18 @@ void registerCircuit(py::module_& m) {
       .def_property_readonly("has_output", [](const Netlist& n) { return n.output.given; })
       .def(
           "run_transient",
-          [](Netlist& n, double stop, const std::vector<std::string>& record, const std::string& method,
-             const std::string& start, double maxStep, double reltol) {
+          [](Netlist& n, double stop, const std::vector<std::string>& record,
+             const std::string& method, const std::string& start, double maxStep, double reltol) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
             o.method = parseMethod(method);
-            if (start == "cold") o.start = Start::Cold;
-            else if (start == "operating-point") o.start = Start::OperatingPoint;
-            else throw InputError("start is 'cold' or 'operating-point', got '" + start + "'");
+            if (start == "cold")
+              o.start = Start::Cold;
+            else if (start == "operating-point")
+              o.start = Start::OperatingPoint;
+            else
+              throw InputError("start is 'cold' or 'operating-point', got '" + start + "'");
             o.maxStep = maxStep;
             if (reltol > 0.0) o.tol.reltol = reltol;
             o.record = runSignals(n, record);
@@ -109,8 +129,8 @@ void registerCircuit(py::module_& m) {
             py::gil_scoped_release nogil;
             return own(transient(n.circuit, o));
           },
-          py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"), py::arg("max_step"),
-          py::arg("reltol"))
+          py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"),
+          py::arg("max_step"), py::arg("reltol"))
       .def(
           "run_op",
           [](Netlist& n, const std::vector<std::string>& record) {
@@ -131,24 +151,27 @@ void registerCircuit(py::module_& m) {
             }
             py::list results;
             for (auto& a : out.analyses) results.append(own(std::move(a.result)));
-            return py::make_tuple(results, out.hasReport ? py::object(py::str(reportJson(out.report))) : py::none());
+            return py::make_tuple(
+                results, out.hasReport ? py::object(py::str(reportJson(out.report))) : py::none());
           },
           "Runs the netlist's own analyses: (results, report JSON or None).")
       .def("report_json",
            [](const Netlist& n, const Result& r) {
-             if (!n.output.given) throw InputError("the circuit has no output statement: name the output and its load first");
+             if (!n.output.given)
+               throw InputError(
+                   "the circuit has no output statement: name the output and its load first");
              return reportJson(makeSupplyReport(n, r));
            })
-      .def("report_text", [](const Netlist& n, const Result& r) { return reportText(makeSupplyReport(n, r)); })
-      .def("write_files",
-           [](Netlist& n, const std::string& dir) {
-             RunOutcome out;
-             {
-               py::gil_scoped_release nogil;
-               out = runNetlist(n, interruptible());
-             }
-             return writeRunFiles(n, out, dir);
-           });
+      .def("report_text",
+           [](const Netlist& n, const Result& r) { return reportText(makeSupplyReport(n, r)); })
+      .def("write_files", [](Netlist& n, const std::string& dir) {
+        RunOutcome out;
+        {
+          py::gil_scoped_release nogil;
+          out = runNetlist(n, interruptible());
+        }
+        return writeRunFiles(n, out, dir);
+      });
   m.def(
       "reference_circuit",
       [](const std::string& name) {
@@ -158,7 +181,8 @@ void registerCircuit(py::module_& m) {
       },
       py::arg("name"), "A reference circuit built in code (see `disc example list`).");
   m.def("load", &loadNetlist, py::arg("path"), "Reads and checks a .disc netlist file.");
-  m.def("parse", &parseNetlist, py::arg("text"), py::arg("name") = "<text>", "Parses netlist text.");
+  m.def("parse", &parseNetlist, py::arg("text"), py::arg("name") = "<text>",
+        "Parses netlist text.");
 }
 
 }  // namespace disc::python

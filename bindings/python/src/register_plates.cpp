@@ -9,7 +9,8 @@ namespace py = pybind11;
 namespace disc::python {
 
 void registerPlates(py::module_& m) {
-  py::class_<PlateType>(m, "PlateType", "A plate type (parameters, ratings, thermal and history data).")
+  py::class_<PlateType>(m, "PlateType",
+                        "A plate type (parameters, ratings, thermal and history data).")
       .def_readonly("name", &PlateType::name)
       .def_readonly("material", &PlateType::material)
       .def_readonly("description", &PlateType::description)
@@ -20,11 +21,16 @@ void registerPlates(py::module_& m) {
       .def("rated_current", &PlateType::ratedCurrent, "Rated average current of one plate, A.")
       .def("to_json", [](const PlateType& t) { return PlateLibrary::toJson(t); })
       .def("save", [](const PlateType& t, const std::string& path) { PlateLibrary::save(t, path); })
-      .def("derive", [](const PlateType& t, const std::string& name,
-                        const std::map<std::string, double>& changes) { return PlateLibrary::derive(t, name, changes); },
-           py::arg("name"), py::arg("changes"));
+      .def(
+          "derive",
+          [](const PlateType& t, const std::string& name,
+             const std::map<std::string, double>& changes) {
+            return PlateLibrary::derive(t, name, changes);
+          },
+          py::arg("name"), py::arg("changes"));
   m.def("builtin_plate_types", []() { return PlateLibrary::builtIn().types(); });
-  m.def("load_plate_types", [](const std::string& path) { return PlateLibrary::load(path).types(); });
+  m.def("load_plate_types",
+        [](const std::string& path) { return PlateLibrary::load(path).types(); });
 }
 
 }  // namespace disc::python

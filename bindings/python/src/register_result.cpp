@@ -27,11 +27,15 @@ py::array view(const std::shared_ptr<Result>& owner, const std::vector<double>& 
 
 void registerResult(py::module_& m) {
   py::class_<Result, std::shared_ptr<Result>>(m, "Result", "Time points and recorded signals.")
-      .def_property_readonly("time", [](const std::shared_ptr<Result>& r) { return view(r, r->time()); },
-                             "Time points, s (read-only view, no copy).")
-      .def("__getitem__",
-           [](const std::shared_ptr<Result>& r, const std::string& name) { return view(r, (*r)[name]); },
-           "A recorded signal by name (read-only view, no copy).")
+      .def_property_readonly(
+          "time", [](const std::shared_ptr<Result>& r) { return view(r, r->time()); },
+          "Time points, s (read-only view, no copy).")
+      .def(
+          "__getitem__",
+          [](const std::shared_ptr<Result>& r, const std::string& name) {
+            return view(r, (*r)[name]);
+          },
+          "A recorded signal by name (read-only view, no copy).")
       .def("__contains__", &Result::has)
       .def_property_readonly("signals", &Result::signals)
       .def("unit", &Result::unit, "Unit symbol of a signal.")
@@ -48,8 +52,10 @@ void registerResult(py::module_& m) {
                                d["wall_s"] = s.wallSeconds;
                                return d;
                              })
-      .def("to_csv", [](const Result& r, const std::string& path) { writeFileAtomically(path, resultCsv(r)); },
-           "Writes every signal as CSV (header 'name [unit]').");
+      .def(
+          "to_csv",
+          [](const Result& r, const std::string& path) { writeFileAtomically(path, resultCsv(r)); },
+          "Writes every signal as CSV (header 'name [unit]').");
 }
 
 }  // namespace disc::python

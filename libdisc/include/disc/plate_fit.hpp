@@ -3,6 +3,7 @@
 // verdict against a healthy plate of the same material and size.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -19,11 +20,16 @@ struct FitOptions {
   /// cuox-12mm-meter).
   std::string like;
   std::string material = "selenium";  ///< used when `like` is empty
+  /// A reference type given directly (a fitted or derived one); overrides `like`.
+  std::optional<PlateType> reference;
+  /// Parameters held at the reference's value (JSON names, e.g. "image_force_per_V4").
+  std::vector<std::string> fixed;
   double areaCm2 = 0.0;               ///< active area of one plate; 0: the reference's
   std::string name = "fitted-plate";  ///< name of the fitted type
   double temperature = 298.15;        ///< K, plate temperature of traces without that column
   /// Measurement noise model behind the weights: sigma = relative |I| + floor. Only the shape
-  /// matters (the covariance is scaled by the residuals); floor 0 = 1e-3 of the largest |I|.
+  /// matters (the covariance is scaled by the residuals); floor 0 = 1e-3 of each trace's
+  /// largest |I|.
   double noiseRelative = 0.01;
   double noiseFloor = 0.0;  ///< A
   bool dynamic = true;      ///< fit capacitance and trap branch from traces with a time column

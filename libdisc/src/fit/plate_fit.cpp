@@ -78,18 +78,18 @@ struct Point {
   int trace = 0;
   std::size_t index = 0;  // within its trace
   double v = 0, i = 0, kelvin = 0;
+  double floor = 0;  // A, noise floor of its trace
 };
 
 struct Data {
   std::vector<Trace> traces;   // voltages already per plate
   std::vector<double> kelvin;  // per trace: mean plate temperature (for dynamic runs)
   std::vector<Point> points;
-  double maxCurrent = 0;
-  double relative = 0.01, floor = 0;  // noise model: sigma = relative |I| + floor
+  double relative = 0.01;  // noise model: sigma = relative |I| + the point's floor
   /// Weighted residual. The noise is taken in proportion to the model's current, not the
   /// measured one: weights from noisy readings would favour points that read low.
-  double residual(double measured, double model) const {
-    return (measured - model) / (relative * std::abs(model) + floor);
+  double residual(const Point& p, double model) const {
+    return (p.i - model) / (relative * std::abs(model) + p.floor);
   }
 };
 
@@ -130,7 +130,6 @@ Data prepareData(const std::vector<Trace>& traces, const FitOptions& o) {
       p.i = t.current[j];
       p.kelvin = t.temperature.empty() ? o.temperature : t.temperature[j];
       d.points.push_back(p);
-      d.maxCurrent = std::max(d.maxCurrent, std::abs(p.i));
     }
   }
   const Trace& first = d.traces.front();
@@ -159,7 +158,13 @@ Data prepareData(const std::vector<Trace>& traces, const FitOptions& o) {
                                  "direction too, or check the polarity",
                                  forward, kForwardMin, kMinForward));
   d.relative = o.noiseRelative;
-  d.floor = o.noiseFloor > 0 ? o.noiseFloor : 1e-3 * d.maxCurrent;
+  // Each trace has its own floor (its own instrument range): 1e-3 of its largest reading.
+  std::vector<double> traceMax(d.traces.size(), 0.0);
+  for (const auto& p : d.points)
+    traceMax[static_cast<std::size_t>(p.trace)] =
+        std::max(traceMax[static_cast<std::size_t>(p.trace)], std::abs(p.i));
+  for (auto& p : d.points)
+    p.floor = o.noiseFloor > 0 ? o.noiseFloor : 1e-3 * traceMax[static_cast<std::size_t>(p.trace)];
   return d;
 }
 
@@ -263,7 +268,7 @@ class Fitter {
       const PlateCurve curve(t);
       for (std::size_t k = 0; k < staticPoints.size(); ++k) {
         const Point& pt = d_.points[staticPoints[k]];
-        r[static_cast<Eigen::Index>(k)] = d_.residual(pt.i, curve.current(pt.v, pt.kelvin));
+        r[static_cast<Eigen::Index>(k)] = d_.residual(pt, curve.current(pt.v, pt.kelvin));
       }
       ++evaluations_;
       if (dynamicPoints.empty()) return;
@@ -274,7 +279,7 @@ class Fitter {
       for (std::size_t k = 0; k < dynamicPoints.size(); ++k) {
         const Point& pt = d_.points[dynamicPoints[k]];
         r[static_cast<Eigen::Index>(staticPoints.size() + k)] =
-            d_.residual(pt.i, simulated[pt.trace][pt.index]);
+            d_.residual(pt, simulated[pt.trace][pt.index]);
       }
     };
     return p;
@@ -418,6 +423,11 @@ class Fitter {
 };
 
 PlateType referenceType(const FitOptions& o) {
+  if (o.reference) {
+    PlateType t = *o.reference;
+    if (o.areaCm2 > 0) t.physics.areaCm2 = o.areaCm2;
+    return t;
+  }
   std::string like = o.like;
   if (like.empty()) {
     if (o.material == "selenium")
@@ -447,6 +457,14 @@ void FitOptions::validate() const {
   if (!(noiseFloor >= 0.0) || !std::isfinite(noiseFloor))
     throw InputError("fit: the noise floor must be a non-negative current in A");
   if (name.empty()) throw InputError("fit: the fitted type needs a name");
+  for (const auto& f : fixed) {
+    bool known = false;
+    for (const auto& s : kSpecs) known |= f == s.name;
+    if (!known)
+      throw InputError("fit: '" + f +
+                       "' is not a fitted parameter; the fitted ones are the "
+                       "physics names of docs/fitting.md, e.g. image_force_per_V4");
+  }
 }
 
 const FittedParameter* PlateFit::find(const std::string& name) const {
@@ -531,6 +549,15 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
                      "at the reference's values; a trace at mains frequency with a time column "
                      "shows them as loops");
   }
+  // Parameters the user holds: kept at the reference's value in every stage.
+  for (auto* list : {&forward, &reverse, &thermal, &dynamic})
+    list->erase(std::remove_if(list->begin(), list->end(),
+                               [&](const std::string& n) {
+                                 return std::find(o.fixed.begin(), o.fixed.end(), n) !=
+                                        o.fixed.end();
+                               }),
+                list->end());
+  for (const auto& n : o.fixed) start.set(n, reference.get(n));
   thermal.insert(thermal.begin(), reverse.begin(), reverse.end());
   thermal.insert(thermal.begin(), forward.begin(), forward.end());
   std::vector<std::string> joint = thermal;  // forward + reverse + thermal
@@ -627,7 +654,7 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
     const auto& c = fit.curves[static_cast<std::size_t>(p.trace)];
     if (c.dynamic && !fitter.fittedDynamically(p)) continue;
     const double r = p.i - c.fitted[p.index];
-    const double w = d.residual(p.i, c.fitted[p.index]);
+    const double w = d.residual(p, c.fitted[p.index]);
     sw += w * w;
     si += r * r;
     ++count;
