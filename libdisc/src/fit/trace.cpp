@@ -222,8 +222,11 @@ Trace parseTrace(const std::string& text, const std::string& name) {
     if (cells.size() != columns.size())
       throw TraceError(name, lineNo, 0, "",
                        fmt::format("{} cells in this row, but the header (line {}) names {} "
-                                   "columns",
-                                   cells.size(), headerLine, columns.size()));
+                                   "columns{}",
+                                   cells.size(), headerLine, columns.size(),
+                                   sep == ',' && cells.size() > columns.size()
+                                       ? " (a decimal comma? the decimal separator must be '.')"
+                                       : ""));
     const auto cellOf = [&](Quantity q) {
       const int k = index[static_cast<int>(q)];
       return parseCell(cells[k], name, lineNo, k + 1, columns[k]);
