@@ -10,6 +10,7 @@
 #include "disc/analysis.hpp"
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
+#include "disc/netlist.hpp"
 #include "disc/plate_curve.hpp"
 #include "disc/plate_fit.hpp"
 #include "disc/plate_health.hpp"
@@ -114,6 +115,25 @@ TEST_CASE("fit: 50 seeded noisy sweeps recover the plate within the stated uncer
     INFO(n << " within U in " << within[n] << " of " << trials);
     CHECK(within[n] >= 45);
   }
+}
+
+TEST_CASE("fit: the written type is usable at once with `use` in a netlist", "[fit]") {
+  disc::Trace t = staticSweep(truth(), 1, 298.15);
+  addNoise(t, 21);
+  disc::FitOptions o;
+  o.name = "bench-fitted";
+  const auto fit = disc::fitPlate({t}, o);
+  const std::string dir = std::string(DISC_TEST_OUT_DIR) + "/fit-use";
+  const auto files = disc::writeFitFiles(fit, dir);
+  CHECK(files.size() >= 4);
+  const auto nl = disc::parseNetlist("use \"" + dir +
+                                         "/bench-fitted.json\"\n"
+                                         "voltage V1 a gnd dc=1V\n"
+                                         "stack S1 a gnd type=bench-fitted\n",
+                                     "use-test.disc");
+  const auto& type = nl.plateTypes.at("bench-fitted");
+  CHECK(type.physics.rsArea == Approx(fit.type.physics.rsArea));
+  CHECK_THAT(type.notes.at("rs_ohm_cm2"), Catch::Contains("fitted to synthetic"));
 }
 
 TEST_CASE("fit: a stack of plates in series is divided by the plate count", "[fit]") {
