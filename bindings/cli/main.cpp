@@ -276,8 +276,7 @@ int main(int argc, char** argv) {
   fit->add_option("--material", fa.options.material, "selenium or copper-oxide")
       ->check(CLI::IsMember({"selenium", "copper-oxide"}));
   fit->add_option("--area", fa.options.areaCm2,
-                  "Active area of one plate, cm2 (default: the "
-                  "reference's)")
+                  "Active area of one plate, cm2 (default: the reference's)")
       ->check(CLI::PositiveNumber);
   fit->add_option("--name", fa.options.name, "Name of the fitted type");
   fit->add_option("--temperature", fa.temperatureC,
