@@ -25,6 +25,25 @@ void PlateLaws(benchmark::State& st) {
 }
 BENCHMARK(PlateLaws);
 
+// The same with the plate's Arrhenius cache, as the stack evaluates: between Newton iterations
+// and steps the plate temperature moves by microkelvins, so the four temperature laws follow by
+// a short series instead of four exponentials.
+void PlateLawsCached(benchmark::State& st) {
+  const auto k = disc::detail::makePlateConstants(
+      disc::PlateLibrary::builtIn().at("se-25mm-square"), 1.0, 1.0, 1.0, 1.0);
+  disc::detail::PlateState s;
+  disc::detail::ArrheniusCache cache;
+  double uj = -5.0, theta = 12.0;
+  for (auto _ : st) {
+    disc::detail::evaluatePlate(k, 300.0, uj + 0.1, uj, 0.01, theta, 0.9, s, &cache);
+    benchmark::DoNotOptimize(s);
+    uj = uj > 0.6 ? -5.0 : uj + 0.01;  // sweep reverse to forward
+    theta += 2e-7;                     // a slow warm-up: the cache refreshes every 500 calls
+  }
+  st.SetItemsProcessed(st.iterations());
+}
+BENCHMARK(PlateLawsCached);
+
 // Whole-device evaluation of a 100-plate stack through the engine's assembly, per plate.
 void StackEvaluatePerPlate(benchmark::State& st) {
   disc::Circuit c;

@@ -28,6 +28,7 @@ struct Stack::Plate {
   int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0;
   PairSlots coupling;
   int sFj = 0, sFh = 0, sFf = 0;
+  mutable detail::ArrheniusCache cache;  // evaluation cache only: no state of the plate
 };
 
 namespace {
@@ -251,7 +252,7 @@ namespace {
 /// linearises the result back to the unlimited voltage.
 void evaluateLimited(const detail::PlateConstants& k, double ambient, const EvalContext& ctx,
                      double vt, double uj, double ut, double th, double f, int cell,
-                     detail::PlateState& s) {
+                     detail::PlateState& s, detail::ArrheniusCache* cache) {
   double ujl = uj;
   if (ctx.limits) {
     double& last = ctx.limits[cell];
@@ -265,7 +266,7 @@ void evaluateLimited(const detail::PlateConstants& k, double ambient, const Eval
     }
     last = ujl;
   }
-  detail::evaluatePlate(k, ambient, vt, ujl, ut, th, f, s);
+  detail::evaluatePlate(k, ambient, vt, ujl, ut, th, f, s, cache);
   const double d = uj - ujl;
   if (d != 0.0) {
     s.is += s.dIsDuj * d;
@@ -285,7 +286,7 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
   for (const Plate& p : plates_) {
     const double vt = (x[p.a] - x[p.kk]) * inv;
     const double uj = x[p.j], ut = x[p.t], th = x[p.th], f = x[p.f];
-    evaluateLimited(p.k, ambient_, ctx, vt, uj, ut, th, f, p.cell, st);
+    evaluateLimited(p.k, ambient_, ctx, vt, uj, ut, th, f, p.cell, st, &p.cache);
     const double gth = 1.0 / p.k.rth;
     s.i[p.a] += st.is;
     s.i[p.kk] -= st.is;
@@ -391,7 +392,7 @@ double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
       if (p.arm == index - 1 && p.pos == 0) {
         detail::PlateState st;
         detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th],
-                              x[p.f], st);
+                              x[p.f], st, &p.cache);
         return st.is;
       }
     return 0.0;
@@ -409,7 +410,7 @@ double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
     case kPplate: {
       detail::PlateState st;
       detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th], x[p.f],
-                            st);
+                            st, &p.cache);
       return st.p;
     }
     default:
@@ -450,7 +451,7 @@ double Stack::probe(int k, const EvalContext& ctx) const {
   detail::PlateState st;
   for (const Plate& p : plates_) {
     const double vt = (x[p.a] - x[p.kk]) / sc;
-    detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st);
+    detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st, &p.cache);
     power += st.p * sc;
     (vt >= 0.0 ? fwd : rev) += st.p * sc;
     largestPlate = std::max(largestPlate, st.p);

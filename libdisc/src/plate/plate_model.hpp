@@ -59,10 +59,19 @@ struct PlateState {
   double temperature;  // K
 };
 
+/// The four Arrhenius factors of a plate at one law temperature, kept between evaluations: the
+/// plate temperature moves by far less than a millikelvin per Newton iteration, so a short
+/// Taylor series from the cached temperature replaces four exponentials (docs/performance.md).
+struct ArrheniusCache {
+  double temperature = -1.0;                         // K (law temperature), < 0: empty
+  double dInv = 0.0;                                 // 1/T - 1/t0 at that temperature
+  double is = 0.0, rs = 0.0, gsh = 0.0, rate = 0.0;  // exp(-phi/k dInv), exp(Ea/k dInv), ...
+};
+
 /// Evaluates the plate. `ujLimited` is the barrier voltage the laws are evaluated at (equal to
 /// uj unless Newton limiting moved it); the result is linearised from there.
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
-                   double theta, double f, PlateState& s);
+                   double theta, double f, PlateState& s, ArrheniusCache* cache = nullptr);
 
 /// Critical voltage and thermal voltage n kT/q for junction limiting at temperature t.
 void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit);
