@@ -25,7 +25,8 @@ def kernel(tmp_path_factory):
     return "disc-test"
 
 
-@pytest.mark.parametrize("name", ["parallel-stacks.ipynb", "radio-pre-power-check.ipynb"])
+@pytest.mark.parametrize("name", ["parallel-stacks.ipynb", "radio-pre-power-check.ipynb",
+                                  "fit-and-replace.ipynb"])
 def test_notebook_runs(name, kernel):
     nb = nbformat.read(NOTEBOOKS / name, as_version=4)
     client = nbclient.NotebookClient(nb, timeout=600, kernel_name=kernel,
