@@ -92,6 +92,20 @@ TEST_CASE("replace: a table radio's stack, with the comparison table and a runna
   CHECK_THAT(text, Catch::Contains("toxic fumes"));
 }
 
+TEST_CASE("replace: a battery charger's bridge is matched on its charging current",
+          "[analysis][replace]") {
+  disc::ReplaceOptions o;
+  o.stacks = {"SR1", "SR2", "SR3", "SR4"};
+  const auto d =
+      disc::designReplacementFile(std::string(DISC_NETLIST_DIR) + "/battery-charger-6v.disc", o);
+  CHECK(d.quantity == "load current");
+  CHECK(d.unit == "A");
+  CHECK(d.siliconAlone > 1.1 * d.target);  // silicon would overcharge
+  CHECK(std::abs(d.outputExact / d.target - 1.0) <= 0.005);
+  REQUIRE(d.rows.size() == 1);  // a battery load cannot be scaled
+  CHECK(d.rows[0].currentOriginal == Approx(d.target).epsilon(1e-9));
+}
+
 TEST_CASE("replace: inputs it cannot use are refused with a reason", "[analysis][replace]") {
   disc::ReplaceOptions o;
   o.stacks = {"SR9"};

@@ -186,6 +186,8 @@ class ReplacementRow:
     load_fraction: float
     output_original: float
     output_replacement: float
+    current_original: float
+    current_replacement: float
     ripple_original: float
     ripple_replacement: float
     surge_original: float
@@ -197,6 +199,8 @@ class ReplacementDesign:
     file: str
     stacks: list[str]
     load: str
+    quantity: str
+    unit: str
     target: float
     silicon_alone: float
     resistor_exact: float

@@ -33,11 +33,12 @@ struct ReplaceOptions {
 /// The supply at one load: original stacks against the replacement (at the chosen resistor).
 struct ReplacementRow {
   double loadFraction = 1.0;
-  double outputOriginal = 0, outputReplacement = 0;  ///< V, mean DC output
-  double rippleOriginal = 0, rippleReplacement = 0;  ///< V peak to peak
-  double surgeOriginal = 0, surgeReplacement = 0;    ///< A, largest rectifier current of the run
-  double dissipationOriginal = 0;                    ///< W, the stacks together
-  double dissipationReplacement = 0;                 ///< W, diodes and resistors together
+  double outputOriginal = 0, outputReplacement = 0;    ///< V, mean DC output
+  double currentOriginal = 0, currentReplacement = 0;  ///< A, mean load current
+  double rippleOriginal = 0, rippleReplacement = 0;    ///< V peak to peak
+  double surgeOriginal = 0, surgeReplacement = 0;      ///< A, largest rectifier current of the run
+  double dissipationOriginal = 0;                      ///< W, the stacks together
+  double dissipationReplacement = 0;                   ///< W, diodes and resistors together
 };
 
 struct ReplacementDesign {
@@ -45,13 +46,16 @@ struct ReplacementDesign {
   std::vector<std::string> stacks;
   std::string loadName;
   bool loadScalable = true;  ///< the load is a resistor (its fractions can be simulated)
-  double target = 0;         ///< V, the original's settled DC output at the netlist's load
-  double siliconAlone = 0;   ///< V, the output with silicon diodes and no resistor
+  /// What is matched: "output voltage" (V), or "load current" (A) when the load is a battery,
+  /// which pins the voltage (a charger is matched on its charging current).
+  std::string quantity = "output voltage", unit = "V";
+  double target = 0;         ///< the original's settled value of that quantity
+  double siliconAlone = 0;   ///< the same with silicon diodes and no resistor
   double resistorExact = 0;  ///< ohm, per stack, the root-found value
-  double outputExact = 0;    ///< V, with that value
+  double outputExact = 0;    ///< the matched quantity with that value
   double handEstimate = 0;   ///< ohm, from average drops during conduction (common practice)
   double e12 = 0, e24 = 0;   ///< ohm, nearest preferred values (IEC 60063)
-  double outputE12 = 0, outputE24 = 0;  ///< V
+  double outputE12 = 0, outputE24 = 0;  ///< the matched quantity with those values
   double resistorPower = 0;             ///< W per resistor at the E24 value and full load
   double resistorRating = 0;            ///< W, a common rating of at least powerMargin times it
   double peakReverse = 0;               ///< V, largest simulated reverse voltage on a diode

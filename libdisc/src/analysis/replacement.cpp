@@ -15,6 +15,7 @@
 #include "disc/constants.hpp"
 #include "disc/devices/diode.hpp"
 #include "disc/devices/resistor.hpp"
+#include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/measures.hpp"
 #include "disc/netlist.hpp"
@@ -41,6 +42,8 @@ struct Site {
 
 struct Figures {
   double output = 0, ripple = 0, surge = 0, dissipation = 0, peakReverse = 0;
+  double loadCurrent = 0;  // A, settled mean magnitude
+  double matched = 0;      // the quantity the design matches: output voltage or load current
   double resistorPower = 0;
   double conductionDrop = 0, conductionCurrent = 0;  // averages while conducting, per stack
 };
@@ -104,6 +107,8 @@ class Designer {
                        "transient stop=...`): the output is measured on it");
     load_ = nl.output.load;
     loadScalable_ = dynamic_cast<const Resistor*>(nl.circuit.find(load_)) != nullptr;
+    // A battery pins the output voltage: a charger is matched on its charging current.
+    byCurrent_ = dynamic_cast<const VoltageSource*>(nl.circuit.find(load_)) != nullptr;
     for (const auto& s : o.stacks) {
       const auto* st = dynamic_cast<const Stack*>(nl.circuit.find(s));
       if (!st) throw InputError(fmt::format("{}: no stack named '{}' in the netlist", name_, s));
@@ -206,7 +211,12 @@ class Designer {
       bool settled = false;
       Figures f;
       const std::string vout = fmt::format("v:{},{}", nl.output.positive, nl.output.negative);
+      bool currentSettled = false;
       f.output = settledMean(r.time(), r[vout], out.report.frequency, o_.tolerance, settled);
+      f.loadCurrent = std::abs(settledMean(r.time(), r["i:" + load_], out.report.frequency,
+                                           o_.tolerance, currentSettled));
+      f.matched = byCurrent_ ? f.loadCurrent : f.output;
+      if (byCurrent_) settled = currentSettled;
       if (!settled && extensions_ < kMaxExtensions) {
         stopScale_ *= 2.0;
         ++extensions_;
@@ -263,6 +273,7 @@ class Designer {
   double stopScale() const { return stopScale_; }
   const std::string& load() const { return load_; }
   bool loadScalable() const { return loadScalable_; }
+  bool byCurrent() const { return byCurrent_; }
   int runs() const { return runs_; }
   const std::string& unsettled() const { return unsettled_; }
   bool selenium() const {
@@ -312,6 +323,7 @@ class Designer {
   std::vector<Site> sites_;
   std::string load_;
   bool loadScalable_ = true;
+  bool byCurrent_ = false;
   double stopScale_ = 1.0;
   int extensions_ = 0;
   int runs_ = 0;
@@ -355,6 +367,8 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
   r.pivFactor = o.pivFactor;
   r.surgeFactor = o.surgeFactor;
   r.powerMargin = o.powerMargin;
+  r.quantity = d.byCurrent() ? "load current" : "output voltage";
+  r.unit = d.byCurrent() ? "A" : "V";
 
   // The search runs at one run length; when a candidate needs a longer run to settle, the
   // target is measured again at that length and the search repeated.
@@ -364,9 +378,9 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
     const double scale = d.stopScale();
     r.resistorExact = r.outputExact = 0.0;
     original = d.run(NAN, 1.0);
-    r.target = original.output;
+    r.target = original.matched;
     alone = d.run(0.0, 1.0);
-    r.siliconAlone = alone.output;
+    r.siliconAlone = alone.matched;
     // Rule of thumb (common practice): the resistor makes up the difference between the stack's
     // and the diode's drops, averaged while the stack conducts, at its average conduction current.
     if (original.conductionCurrent > 0)
@@ -375,20 +389,20 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
                             original.conductionCurrent);
     const double tol = o.tolerance * std::abs(r.target);
     noResistor.clear();
-    if (alone.output <= r.target + tol) {
+    if (alone.matched <= r.target + tol) {
       noResistor = (fmt::format(
-          "silicon alone gives {:.4g} V, not above the original {:.4g} V: no dropping resistor is "
-          "needed",
-          alone.output, r.target));
+          "silicon alone gives {:.4g} {}, not above the original {:.4g} {}: no dropping resistor "
+          "is needed",
+          alone.matched, r.unit, r.target, r.unit));
     } else {
       // Output falls as R rises: lo keeps output above the target, hi below.
-      double lo = 0, flo = alone.output - r.target;
-      double hi = std::max(r.handEstimate, 1.0), fhi = d.run(hi, 1.0).output - r.target;
+      double lo = 0, flo = alone.matched - r.target;
+      double hi = std::max(r.handEstimate, 1.0), fhi = d.run(hi, 1.0).matched - r.target;
       for (int grow = 0; fhi > 0 && grow < 12; ++grow) {
         lo = hi;
         flo = fhi;
         hi *= 2.0;
-        fhi = d.run(hi, 1.0).output - r.target;
+        fhi = d.run(hi, 1.0).matched - r.target;
       }
       if (fhi > 0)
         throw Error(
@@ -400,7 +414,7 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
       int side = 0;
       for (int it = 0; it < 30 && std::abs(fbest) > tol; ++it) {
         const double x = hi - fhi * (hi - lo) / (fhi - flo);
-        const double fx = d.run(x, 1.0).output - r.target;
+        const double fx = d.run(x, 1.0).matched - r.target;
         if (std::abs(fx) < std::abs(fbest)) {
           best = x;
           fbest = fx;
@@ -429,9 +443,9 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
   if (r.resistorExact > 0) {
     r.e12 = nearestPreferred(r.resistorExact, ESeries::E12);
     r.e24 = nearestPreferred(r.resistorExact, ESeries::E24);
-    r.outputE12 = d.run(r.e12, 1.0).output;
+    r.outputE12 = d.run(r.e12, 1.0).matched;
     full = d.run(r.e24, 1.0);
-    r.outputE24 = full.output;
+    r.outputE24 = full.matched;
     chosen = r.e24;
     r.resistorPower = full.resistorPower;
     r.resistorRating = resistorRatingFor(o.powerMargin * full.resistorPower);
@@ -447,8 +461,8 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
     if (frac != 1.0 && !r.loadScalable) continue;
     const Figures a = frac == 1.0 ? original : d.run(NAN, frac);
     const Figures b = frac == 1.0 ? full : d.run(chosen, frac);
-    r.rows.push_back({frac, a.output, b.output, a.ripple, b.ripple, a.surge, b.surge, a.dissipation,
-                      b.dissipation});
+    r.rows.push_back({frac, a.output, b.output, a.loadCurrent, b.loadCurrent, a.ripple, b.ripple,
+                      a.surge, b.surge, a.dissipation, b.dissipation});
   }
   if (!r.loadScalable)
     r.warnings.push_back(
@@ -483,18 +497,22 @@ ReplacementDesign designReplacementFile(const std::string& path, const ReplaceOp
 std::string replacementText(const ReplacementDesign& r) {
   std::string s =
       fmt::format("SILICON REPLACEMENT for {} in {}\n", fmt::join(r.stacks, ", "), r.file);
-  s += fmt::format("  original output at {}:        {:9.3f} V\n", r.loadName, r.target);
-  s += fmt::format("  silicon alone (no resistor):   {:9.3f} V ({:+.3f} V)\n", r.siliconAlone,
-                   r.siliconAlone - r.target);
+  s += fmt::format(
+      "  matched quantity:              {} at {}{}\n", r.quantity, r.loadName,
+      r.unit == "A" ? " (a battery pins the voltage: the charging current is matched)" : "");
+  s += fmt::format("  original:                      {:9.4g} {}\n", r.target, r.unit);
+  s += fmt::format("  silicon alone (no resistor):   {:9.4g} {} ({:+.3g} {})\n", r.siliconAlone,
+                   r.unit, r.siliconAlone - r.target, r.unit);
   if (r.resistorExact > 0) {
-    s += fmt::format("  dropping resistor per stack:   {:9.3f} ohm -> {:.3f} V ({:+.2f} %)\n",
-                     r.resistorExact, r.outputExact, 100.0 * (r.outputExact / r.target - 1.0));
-    s += fmt::format("  hand estimate (average drops): {:9.3f} ohm (rule of thumb)\n",
+    s += fmt::format("  dropping resistor per stack:   {:9.4g} ohm -> {:.4g} {} ({:+.2f} %)\n",
+                     r.resistorExact, r.outputExact, r.unit,
+                     100.0 * (r.outputExact / r.target - 1.0));
+    s += fmt::format("  hand estimate (average drops): {:9.4g} ohm (rule of thumb)\n",
                      r.handEstimate);
-    s += fmt::format("  nearest E12 (IEC 60063):       {:9.3g} ohm -> {:.3f} V\n", r.e12,
-                     r.outputE12);
-    s += fmt::format("  nearest E24 (IEC 60063):       {:9.3g} ohm -> {:.3f} V  (chosen)\n", r.e24,
-                     r.outputE24);
+    s += fmt::format("  nearest E12 (IEC 60063):       {:9.3g} ohm -> {:.4g} {}\n", r.e12,
+                     r.outputE12, r.unit);
+    s += fmt::format("  nearest E24 (IEC 60063):       {:9.3g} ohm -> {:.4g} {}  (chosen)\n", r.e24,
+                     r.outputE24, r.unit);
     s += fmt::format(
         "  resistor dissipation:          {:9.3f} W -> rate it {:.3g} W or more "
         "({}x margin)\n",
@@ -509,18 +527,18 @@ std::string replacementText(const ReplacementDesign& r) {
       "switch-on peak {:.2f} A)\n",
       r.surgeRequired, r.surgeFactor, r.surgeSimulated);
   s += "\nORIGINAL AGAINST REPLACEMENT\n";
-  s +=
-      fmt::format("  {:>6} {:>10} {:>10} {:>9} {:>9} {:>9} {:>9} {:>9} {:>9}\n", "load", "out orig",
-                  "out new", "rip orig", "rip new", "surge o", "surge n", "diss o", "diss n");
-  s += fmt::format("  {:>6} {:>10} {:>10} {:>9} {:>9} {:>9} {:>9} {:>9} {:>9}\n", "%", "V", "V",
-                   "V pp", "V pp", "A", "A", "W", "W");
+  s += fmt::format("  {:>6} {:>9} {:>9} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8}\n", "load",
+                   "out orig", "out new", "I orig", "I new", "rip orig", "rip new", "surge o",
+                   "surge n", "diss o", "diss n");
+  s += fmt::format("  {:>6} {:>9} {:>9} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8}\n", "%",
+                   "V", "V", "A", "A", "V pp", "V pp", "A", "A", "W", "W");
   for (const auto& row : r.rows)
     s += fmt::format(
-        "  {:6.0f} {:10.3f} {:10.3f} {:9.3f} {:9.3f} {:9.3f} {:9.3f} {:9.3f} "
-        "{:9.3f}\n",
-        100.0 * row.loadFraction, row.outputOriginal, row.outputReplacement, row.rippleOriginal,
-        row.rippleReplacement, row.surgeOriginal, row.surgeReplacement, row.dissipationOriginal,
-        row.dissipationReplacement);
+        "  {:6.0f} {:9.3f} {:9.3f} {:8.4f} {:8.4f} {:8.3f} {:8.3f} {:8.3f} {:8.3f} {:8.3f} "
+        "{:8.3f}\n",
+        100.0 * row.loadFraction, row.outputOriginal, row.outputReplacement, row.currentOriginal,
+        row.currentReplacement, row.rippleOriginal, row.rippleReplacement, row.surgeOriginal,
+        row.surgeReplacement, row.dissipationOriginal, row.dissipationReplacement);
   if (!r.warnings.empty()) {
     s += "\nWARNINGS\n";
     for (const auto& w : r.warnings) s += "  - " + w + "\n";
@@ -538,15 +556,17 @@ std::string replacementJson(const ReplacementDesign& r) {
   j["file"] = r.file;
   j["stacks"] = r.stacks;
   j["load"] = r.loadName;
-  j["target_V"] = r.target;
-  j["silicon_alone_V"] = r.siliconAlone;
+  j["matched_quantity"] = r.quantity;
+  j["matched_unit"] = r.unit;
+  j["target"] = r.target;
+  j["silicon_alone"] = r.siliconAlone;
   j["resistor_exact_ohm"] = r.resistorExact;
-  j["output_exact_V"] = r.outputExact;
+  j["matched_exact"] = r.outputExact;
   j["hand_estimate_ohm"] = r.handEstimate;
   j["e12_ohm"] = r.e12;
   j["e24_ohm"] = r.e24;
-  j["output_e12_V"] = r.outputE12;
-  j["output_e24_V"] = r.outputE24;
+  j["matched_e12"] = r.outputE12;
+  j["matched_e24"] = r.outputE24;
   j["resistor_power_W"] = r.resistorPower;
   j["resistor_rating_W"] = r.resistorRating;
   j["power_margin"] = r.powerMargin;
@@ -561,6 +581,8 @@ std::string replacementJson(const ReplacementDesign& r) {
     rows.push_back({{"load_fraction", x.loadFraction},
                     {"output_original_V", x.outputOriginal},
                     {"output_replacement_V", x.outputReplacement},
+                    {"load_current_original_A", x.currentOriginal},
+                    {"load_current_replacement_A", x.currentReplacement},
                     {"ripple_original_Vpp", x.rippleOriginal},
                     {"ripple_replacement_Vpp", x.rippleReplacement},
                     {"surge_original_A", x.surgeOriginal},
