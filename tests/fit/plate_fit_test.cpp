@@ -239,3 +239,18 @@ TEST_CASE("fit: loops at two sweep rates separate the trap branch", "[fit][dynam
     CHECK(p->covers(t.get(name)));
   }
 }
+
+TEST_CASE("fit: held parameters stay at the reference's values", "[fit]") {
+  disc::Trace t = staticSweep(truth(), 1, 298.15);
+  addNoise(t, 31);
+  disc::FitOptions o;
+  o.fixed = {"image_force_per_V4", "ideality"};
+  const auto fit = disc::fitPlate({t}, o);
+  CHECK(fit.find("ideality") == nullptr);
+  CHECK(fit.type.physics.ideality == base().physics.ideality);
+  CHECK(fit.find("rs_ohm_cm2") != nullptr);
+  o.fixed = {"js0_A_per_cm2", "ideality", "rs_ohm_cm2", "gsh_S_per_cm2", "image_force_per_V4"};
+  CHECK_THROWS_WITH(disc::fitPlate({t}, o), Catch::Contains("nothing is left to fit"));
+  o.fixed = {"no_such_parameter"};
+  CHECK_THROWS_AS(disc::fitPlate({t}, o), disc::InputError);
+}

@@ -12,10 +12,7 @@
 #include <numeric>
 #include <set>
 
-#include "disc/analysis.hpp"
 #include "disc/constants.hpp"
-#include "disc/devices/sources.hpp"
-#include "disc/devices/stack.hpp"
 #include "disc/plate_curve.hpp"
 #include "fit/levenberg_marquardt.hpp"
 
@@ -558,9 +555,9 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
                                }),
                 list->end());
   for (const auto& n : o.fixed) start.set(n, reference.get(n));
-  thermal.insert(thermal.begin(), reverse.begin(), reverse.end());
-  thermal.insert(thermal.begin(), forward.begin(), forward.end());
-  std::vector<std::string> joint = thermal;  // forward + reverse + thermal
+  std::vector<std::string> joint = forward;
+  joint.insert(joint.end(), reverse.begin(), reverse.end());
+  joint.insert(joint.end(), thermal.begin(), thermal.end());
 
   Fitter fitter(std::move(data), start, o);
   const auto cost = [&](const detail::LeastSquaresResult& r, const char* name) {
@@ -570,10 +567,17 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
                     name, r.z.size(), r.r.size(),
                     std::sqrt(r.r.squaredNorm() / std::max<double>(1, r.r.size())), r.iterations));
   };
-  cost(fitter.stage(forward, fwdPts, false), "forward");
-  cost(fitter.stage(reverse, revPts, false), "reverse");
-  auto final = fitter.stage(joint, allPts, false);
-  cost(final, tSpan >= 10.0 ? "static with temperature" : "static");
+  if (joint.empty() && dynamic.empty())
+    throw InputError(
+        "fit: every parameter these traces could determine is held (fixed): "
+        "nothing is left to fit");
+  if (!forward.empty()) cost(fitter.stage(forward, fwdPts, false), "forward");
+  if (!reverse.empty()) cost(fitter.stage(reverse, revPts, false), "reverse");
+  detail::LeastSquaresResult final;
+  if (!joint.empty()) {
+    final = fitter.stage(joint, allPts, false);
+    cost(final, tSpan >= 10.0 ? "static with temperature" : "static");
+  }
 
   std::vector<std::string> names = joint;
   if (!dynamic.empty()) {
