@@ -103,6 +103,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   double t = 0.0, hPrev = 0.0;
   double h = o.initialStep > 0.0 ? o.initialStep : std::min(hmax, o.stop) * 1e-3;
   bool restart = true;
+  double errAccepted = 0.0, hAccepted = 0.0;  // the last accepted step's error and size
   std::size_t nextBreak = 0;
 
   while (t < o.stop) {
@@ -227,12 +228,24 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     if (t >= o.recordFrom) rec.record(ctx);
     reportProgress(o, t);
 
-    const double grow = errNorm > 0.0 ? 0.9 * std::pow(errNorm, -expo) : 2.0;
+    double grow = errNorm > 0.0 ? 0.9 * std::pow(errNorm, -expo) : 2.0;
+    // Gustafsson's predictive controller (E. Hairer and G. Wanner, Solving Ordinary
+    // Differential Equations II, section IV.8): when the error grows from step to step, as it
+    // does while a junction approaches switching, it slows the growth the plain rule would
+    // allow and so avoids the accept-reject alternation that costs a whole Newton solve each
+    // time. The smaller of the two factors is taken.
+    // Only between steps of the same formula: an error estimate after a backward-Euler restart
+    // is of another order and says nothing about the trend.
+    if (errAccepted > 0.0 && errNorm > 0.0 && hAccepted > 0.0 && f != Formula::Euler)
+      grow = std::min(grow, grow * (hPrev / hAccepted) * std::pow(errAccepted / errNorm, expo));
+    errAccepted = f != Formula::Euler ? errNorm : 0.0;
+    hAccepted = hPrev;
     h *= std::clamp(grow, 0.3, 2.0);
     restart = false;
     if (hitsBreak && t < o.stop) {
       // A corner in the excitation: restart at first order from the breakpoint.
       restart = true;
+      errAccepted = 0.0;
       history.reset(t, qn);
       std::fill(qdot.begin(), qdot.end(), 0.0);
       h = std::min(h, std::max(1e-3 * hmax, 100.0 * hmin));
