@@ -87,7 +87,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.abstol = &abstol;
   ns.vabstol = o.tol.voltage;
 
-  std::vector<double> xdot(N, 0.0), xPrev = x, xNew(N, 0.0), hist(N, 0.0);
+  std::vector<double> xdot(N, 0.0), xPrev = x, xPrev2 = x, xNew(N, 0.0), hist(N, 0.0);
   std::vector<double> qn(N, 0.0), qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);
   EvalContext ctx;
   ctx.x = x.data();
@@ -126,11 +126,23 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       if (c.a2 != 0.0) hist[k] += c.a2 * history.q[1][k];
     }
     xNew = x;
-    if (!restart && hPrev > 0.0)
+    if (!restart && history.count >= 3) {
+      // Quadratic extrapolation through the last three accepted points: a closer first Newton
+      // iterate than the straight line on the curved stretches near switching.
+      const double tau = t + h, t0 = history.t[0], t1 = history.t[1], t2 = history.t[2];
+      const double l0 = (tau - t1) * (tau - t2) / ((t0 - t1) * (t0 - t2));
+      const double l1 = (tau - t0) * (tau - t2) / ((t1 - t0) * (t1 - t2));
+      const double l2 = (tau - t0) * (tau - t1) / ((t2 - t0) * (t2 - t1));
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        xNew[uk] = l0 * x[uk] + l1 * xPrev[uk] + l2 * xPrev2[uk];
+      }
+    } else if (!restart && hPrev > 0.0) {
       for (int k = 0; k < n; ++k) {
         const auto uk = static_cast<std::size_t>(k);
         xNew[uk] += (x[uk] - xPrev[uk]) * (h / hPrev);
       }
+    }
     ctx.time = t + h;
     const NewtonOutcome out = solveNewton(sys, ls, xNew, ctx, c.a0, hist.data(), ns, stats);
     if (!out.converged) {
@@ -212,6 +224,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       if (c.a2 != 0.0) xd += c.a2 * xPrev[k];
       xdotNew[k] = xd;
     }
+    xPrev2.swap(xPrev);
     xPrev.swap(x);
     x.swap(xNew);
     xdot.swap(xdotNew);
