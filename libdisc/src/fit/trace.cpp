@@ -73,36 +73,23 @@ std::optional<Quantity> quantityOfName(const std::string& name) {
   return std::nullopt;
 }
 
-const char* quantityName(Quantity q) {
-  switch (q) {
-    case Quantity::Time:
-      return "time";
-    case Quantity::Voltage:
-      return "voltage";
-    case Quantity::Current:
-      return "current";
-    case Quantity::Temperature:
-      return "temperature";
-    case Quantity::Other:
-      break;
-  }
-  return "other";
-}
+struct QuantityWords {
+  const char* name;
+  const char* units;
+};
 
+// Indexed by Quantity.
+constexpr QuantityWords kWords[] = {{"time", "s, ms or us"},
+                                    {"voltage", "V, mV or kV"},
+                                    {"current", "A, mA or uA"},
+                                    {"temperature", "K or degC"},
+                                    {"other", ""}};
+
+const char* quantityName(Quantity q) {
+  return kWords[static_cast<int>(q)].name;
+}
 const char* unitsOf(Quantity q) {
-  switch (q) {
-    case Quantity::Time:
-      return "s, ms or us";
-    case Quantity::Voltage:
-      return "V, mV or kV";
-    case Quantity::Current:
-      return "A, mA or uA";
-    case Quantity::Temperature:
-      return "K or degC";
-    case Quantity::Other:
-      break;
-  }
-  return "";
+  return kWords[static_cast<int>(q)].units;
 }
 
 Column parseHeaderCell(const std::string& cell, const std::string& file, int line, int col) {
