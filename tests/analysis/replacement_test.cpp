@@ -118,6 +118,9 @@ TEST_CASE("replace: inputs it cannot use are refused with a reason", "[analysis]
                     Catch::Contains("names no output"));
   o.stacks.clear();
   CHECK_THROWS_AS(disc::designReplacement(kFieldNotesExample, "x.disc", o), disc::InputError);
+  o.stacks = {"SR1", "SR1"};
+  CHECK_THROWS_WITH(disc::designReplacement(kFieldNotesExample, "x.disc", o),
+                    Catch::Contains("named twice"));
   CHECK(disc::resistorRatingFor(0.3) == 0.5);
   CHECK_THROWS_AS(disc::resistorRatingFor(80.0), disc::InputError);
 }

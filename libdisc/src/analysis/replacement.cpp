@@ -293,7 +293,13 @@ class Designer {
     const auto first = line.find_first_not_of(" \t");
     if (first == std::string::npos || line.compare(first, 6, "record") != 0) return false;
     for (const auto& s : sites_)
-      if (line.find(":" + s.name) != std::string::npos) return true;
+      for (auto at = line.find(":" + s.name); at != std::string::npos;
+           at = line.find(":" + s.name, at + 1)) {
+        // The whole name (SR1, not the start of SR10), possibly with a plate index (#3).
+        const auto end = at + 1 + s.name.size();
+        if (end == line.size() || std::string(" \t,#").find(line[end]) != std::string::npos)
+          return true;
+      }
     return false;
   }
 
@@ -336,6 +342,10 @@ class Designer {
 
 void ReplaceOptions::validate() const {
   if (stacks.empty()) throw InputError("replace: name at least one stack to replace");
+  for (std::size_t k = 0; k < stacks.size(); ++k)
+    for (std::size_t j = k + 1; j < stacks.size(); ++j)
+      if (stacks[k] == stacks[j])
+        throw InputError("replace: stack '" + stacks[k] + "' is named twice");
   if (!(tolerance > 0 && tolerance <= 0.005))
     throw InputError("replace: the output tolerance must lie in (0, 0.005] (0.5 % at most)");
   for (double f : loadFractions)
