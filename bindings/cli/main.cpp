@@ -144,6 +144,7 @@ int runExample(const ExampleArgs& a) {
                         {"accepted_steps", s.acceptedSteps},
                         {"rejected_steps", s.rejectedSteps},
                         {"newton_iterations", s.newtonIterations},
+                        {"factorizations", s.factorizations},
                         {"reltol", a.reltol},
                         {"wall_s", s.wallSeconds},
                         {"peak_rss_kib", peakRssKib()}};

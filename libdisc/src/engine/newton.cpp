@@ -39,14 +39,24 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   ctx.unsettled = &unsettled;
   ctx.reltol = settings.reltol;
   ctx.vabstol = settings.vabstol;
+  // Largest update of the last iteration in units of its tolerance; a chord step (the previous
+  // factorisation kept) is taken only when that iteration ended within kChordBelow of
+  // convergence, where the Jacobian has barely moved, and only while chord steps still contract.
+  constexpr double kChordBelow = 10.0;
+  double lastMeasure = std::numeric_limits<double>::infinity();
+  bool factored = false, chord = false;
   for (int it = 0; it < settings.maxIterations; ++it) {
     unsettled = false;
-    sys.evaluate(ctx, true);
+    chord = settings.reuseJacobian && factored && lastMeasure <= kChordBelow;
+    sys.evaluate(ctx, !chord);
     ++stats.evaluations;
     residual(sys, x, a0, history, settings.gmin, f);
-    sys.assemble(a0, settings.gmin);
-    ls.factor(sys);
-    ++stats.factorizations;
+    if (!chord) {
+      sys.assemble(a0, settings.gmin);
+      ls.factor(sys);
+      factored = true;
+      ++stats.factorizations;
+    }
     for (int k = 0; k < n; ++k) dx[static_cast<std::size_t>(k)] = -f[static_cast<std::size_t>(k)];
     ls.solve(dx.data(), n);
     dx[static_cast<std::size_t>(n)] = 0.0;
@@ -56,14 +66,19 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
     if (!finite) break;
     bool small = !unsettled;
+    double measure = 0.0;
     for (int k = 0; k < n; ++k) {
       const auto uk = static_cast<std::size_t>(k);
       const double step = dx[uk];
       const double xn = x[uk] + step;
-      if (std::abs(step) > settings.reltol * std::max(std::abs(xn), std::abs(x[uk])) + abstol[uk])
-        small = false;
+      const double tol = settings.reltol * std::max(std::abs(xn), std::abs(x[uk])) + abstol[uk];
+      if (std::abs(step) > tol) small = false;
+      measure = std::max(measure, std::abs(step) / tol);
       x[uk] = xn;
     }
+    // A chord step that did not at least halve the update: factorise afresh next time.
+    lastMeasure =
+        chord && measure > 0.5 * lastMeasure ? std::numeric_limits<double>::infinity() : measure;
     if (small) {
       ctx.limits = nullptr;
       sys.evaluate(ctx, false);

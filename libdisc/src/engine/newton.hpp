@@ -15,6 +15,9 @@ struct NewtonSettings {
   const std::vector<double>* abstol = nullptr;  ///< per unknown, size n+1
   double gmin = 0.0;
   double vabstol = 1e-6;  ///< V, for the devices' own junction convergence checks
+  /// Keep the last factorisation for an iteration that starts close to the solution (a chord
+  /// step): the transient's steps, not the operating point's searches.
+  bool reuseJacobian = false;
 };
 
 struct NewtonOutcome {
