@@ -1,8 +1,12 @@
-// Benchmark counters shared by the benchmark programs.
+// Benchmark counters and the timed-run loop shared by the benchmark programs.
 #pragma once
 
 #include <benchmark/benchmark.h>
 
+#include <string>
+
+#include "disc/analysis.hpp"
+#include "disc/circuit.hpp"
 #include "disc/result.hpp"
 
 namespace disc::bench {
@@ -12,10 +16,31 @@ inline void setCounters(benchmark::State& st, const disc::RunStats& s) {
   st.counters["accepted"] = static_cast<double>(s.acceptedSteps);
   st.counters["rejected"] = static_cast<double>(s.rejectedSteps);
   st.counters["newton"] = static_cast<double>(s.newtonIterations);
+  st.counters["factorizations"] = static_cast<double>(s.factorizations);
   st.counters["unknowns"] = s.unknowns;
   st.counters["steps_per_s"] = static_cast<double>(s.acceptedSteps) / s.wallSeconds;
   st.counters["us_per_step"] = 1e6 * s.wallSeconds / static_cast<double>(s.acceptedSteps);
   st.counters["us_per_newton"] = 1e6 * s.wallSeconds / static_cast<double>(s.newtonIterations);
+}
+
+/// Times a switch-on (cold start) transient of the circuit `make()` builds, `stop` seconds with
+/// `method`, recording one signal; the counters come from the last run.
+template <class Make>
+void timeColdRun(benchmark::State& st, Make make, double stop, disc::Method method,
+                 const std::string& signal) {
+  disc::RunStats stats;
+  for (auto _ : st) {
+    disc::Circuit c = make();
+    disc::TransientOptions o;
+    o.stop = stop;
+    o.method = method;
+    o.start = disc::Start::Cold;
+    o.record = {signal};
+    const disc::Result r = disc::transient(c, o);
+    benchmark::DoNotOptimize(r[signal].back());
+    stats = r.stats();
+  }
+  setCounters(st, stats);
 }
 
 }  // namespace disc::bench

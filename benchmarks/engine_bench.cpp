@@ -10,19 +10,8 @@ namespace {
 void BridgeOneSecond(benchmark::State& st) {
   const auto method = static_cast<disc::Method>(st.range(0));
   st.SetLabel(disc::methodName(method));
-  disc::RunStats stats;
-  for (auto _ : st) {
-    disc::Circuit c = disc::reference::bridgeSupply();
-    disc::TransientOptions o;
-    o.stop = 1.0;
-    o.method = method;
-    o.start = disc::Start::Cold;
-    o.record = {"v:out"};
-    const disc::Result r = disc::transient(c, o);
-    benchmark::DoNotOptimize(r["v:out"].back());
-    stats = r.stats();
-  }
-  disc::bench::setCounters(st, stats);
+  disc::bench::timeColdRun(
+      st, [] { return disc::reference::bridgeSupply(); }, 1.0, method, "v:out");
 }
 BENCHMARK(BridgeOneSecond)
     ->Arg(static_cast<int>(disc::Method::Trapezoidal))
@@ -32,19 +21,8 @@ BENCHMARK(BridgeOneSecond)
 
 void Ladder(benchmark::State& st) {
   const int n = static_cast<int>(st.range(0));
-  disc::RunStats stats;
-  for (auto _ : st) {
-    disc::Circuit c = disc::reference::diodeLadder(n);
-    disc::TransientOptions o;
-    o.stop = 0.02;
-    o.method = disc::Method::Bdf2;
-    o.start = disc::Start::Cold;
-    o.record = {"v:n1"};
-    const disc::Result r = disc::transient(c, o);
-    benchmark::DoNotOptimize(r["v:n1"].back());
-    stats = r.stats();
-  }
-  disc::bench::setCounters(st, stats);
+  disc::bench::timeColdRun(
+      st, [n] { return disc::reference::diodeLadder(n); }, 0.02, disc::Method::Bdf2, "v:n1");
 }
 BENCHMARK(Ladder)->Arg(10)->Arg(100)->Arg(1000)->Arg(10000)->Unit(benchmark::kMillisecond);
 

@@ -71,21 +71,12 @@ BENCHMARK(StackEvaluatePerPlate);
 void SeleniumBridgeOneSecond(benchmark::State& st) {
   const bool lumped = st.range(0) == 1;
   st.SetLabel(lumped ? "lumped" : "per-plate");
-  disc::RunStats stats;
-  for (auto _ : st) {
+  const auto make = [lumped] {
     disc::reference::SeleniumBridge spec;
     spec.stack.mode = lumped ? disc::StackMode::Lumped : disc::StackMode::PerPlate;
-    disc::Circuit c = disc::reference::seleniumBridge(spec);
-    disc::TransientOptions o;
-    o.stop = 1.0;
-    o.method = disc::Method::Bdf2;
-    o.start = disc::Start::Cold;
-    o.record = {"v:out"};
-    const disc::Result r = disc::transient(c, o);
-    benchmark::DoNotOptimize(r["v:out"].back());
-    stats = r.stats();
-  }
-  disc::bench::setCounters(st, stats);
+    return disc::reference::seleniumBridge(spec);
+  };
+  disc::bench::timeColdRun(st, make, 1.0, disc::Method::Bdf2, "v:out");
 }
 BENCHMARK(SeleniumBridgeOneSecond)->Arg(0)->Arg(1)->Unit(benchmark::kMillisecond);
 
