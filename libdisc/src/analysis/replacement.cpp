@@ -23,6 +23,8 @@
 #include "disc/session.hpp"
 #include "disc/supply_report.hpp"
 
+#include "analysis/text_blocks.hpp"
+
 namespace disc {
 namespace {
 
@@ -549,13 +551,7 @@ std::string replacementText(const ReplacementDesign& r) {
         100.0 * row.loadFraction, row.outputOriginal, row.outputReplacement, row.currentOriginal,
         row.currentReplacement, row.rippleOriginal, row.rippleReplacement, row.surgeOriginal,
         row.surgeReplacement, row.dissipationOriginal, row.dissipationReplacement);
-  if (!r.warnings.empty()) {
-    s += "\nWARNINGS\n";
-    for (const auto& w : r.warnings) s += "  - " + w + "\n";
-  }
-  s += "\nCAUTIONS\n";
-  for (const auto& c : r.cautions) s += "  - " + c + "\n";
-  s += r.disclaimer + "\n";
+  s += detail::closingBlock(r.warnings, r.cautions, r.disclaimer);
   return s;
 }
 

@@ -9,6 +9,8 @@
 
 #include "disc/error.hpp"
 #include "disc/session.hpp"
+
+#include "analysis/text_blocks.hpp"
 #include "disc/version.hpp"
 
 namespace disc {
@@ -112,13 +114,7 @@ std::string reportText(const SupplyReport& r) {
   }
   line("");
   line(fmt::format("OVERALL: {}", r.worst));
-  if (!r.warnings.empty()) {
-    line("WARNINGS");
-    for (const auto& w : r.warnings) line("  - " + w);
-  }
-  line("CAUTIONS");
-  for (const auto& c : r.cautions) line("  - " + c);
-  line(r.disclaimer);
+  s += detail::closingBlock(r.warnings, r.cautions, r.disclaimer);
   return s;
 }
 

@@ -258,7 +258,7 @@ void evaluateLimited(const detail::PlateConstants& k, double ambient, const Eval
     double& last = ctx.limits[cell];
     if (!std::isnan(last)) {
       double nvt, vcrit;
-      detail::plateLimitScale(k, ambient + th, nvt, vcrit);
+      detail::plateLimitScale(k, ambient + th, nvt, vcrit, cache);
       ujl = detail::limitJunction(last, uj, nvt, vcrit);
       if (ujl != uj ||
           std::abs(uj - last) > ctx.reltol * std::max(std::abs(uj), std::abs(last)) + ctx.vabstol)

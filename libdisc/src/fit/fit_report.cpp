@@ -10,6 +10,8 @@
 #include "disc/session.hpp"
 #include "disc/supply_report.hpp"
 
+#include "analysis/text_blocks.hpp"
+
 namespace disc {
 namespace {
 
@@ -17,29 +19,11 @@ bool isSelenium(const PlateFit& fit) {
   return fit.type.material == "selenium";
 }
 
-std::string wrap(const std::string& text, const std::string& indent, std::size_t width = 92) {
-  std::string out, line;
-  std::size_t start = 0;
-  while (start < text.size()) {
-    auto end = text.find(' ', start);
-    if (end == std::string::npos) end = text.size();
-    const std::string word = text.substr(start, end - start);
-    if (!line.empty() && line.size() + 1 + word.size() > width - indent.size()) {
-      out += indent + line + "\n";
-      line.clear();
-    }
-    line += (line.empty() ? "" : " ") + word;
-    start = end + 1;
-  }
-  if (!line.empty()) out += indent + line + "\n";
-  return out;
-}
-
 }  // namespace
 
 std::string fitReportText(const PlateFit& fit) {
   std::string s = fmt::format("PLATE FIT: {} ({})\n", fit.type.name, fit.type.material);
-  s += wrap(fit.type.description, "  ");
+  s += detail::wrapText(fit.type.description, "  ");
   s += fmt::format("  {} points fitted, rms residual {:.4g} mA, rms weighted residual {:.3g}\n",
                    fit.points, 1e3 * fit.rmsCurrent, fit.rmsWeighted);
   s += "\nPARAMETERS (interval: coverage factor k = 2, about 95 %; static stages by profile "
@@ -55,18 +39,12 @@ std::string fitReportText(const PlateFit& fit) {
                      : p.identifiable ? ""
                                       : " (not determined)");
   s += "\nSTAGES\n";
-  for (const auto& st : fit.stages) s += wrap(st, "  ");
-  if (!fit.warnings.empty()) {
-    s += "\nWARNINGS\n";
-    for (const auto& w : fit.warnings) s += wrap("- " + w, "  ");
-  }
+  for (const auto& st : fit.stages) s += detail::wrapText(st, "  ");
   const auto& h = fit.health;
   s += fmt::format("\nHEALTH: {} (against {} at {:.0f} degC)\n", h.level, h.reference,
                    h.temperature - 273.15);
-  for (const auto& f : h.findings) s += wrap("- " + f, "  ");
-  s += "\nCAUTIONS\n";
-  for (const auto& c : safetyCautions(isSelenium(fit))) s += wrap("- " + c, "  ");
-  s += wrap(simulationDisclaimer(), "");
+  for (const auto& f : h.findings) s += detail::listItem(f);
+  s += detail::closingBlock(fit.warnings, safetyCautions(isSelenium(fit)), simulationDisclaimer());
   return s;
 }
 

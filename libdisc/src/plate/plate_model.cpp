@@ -76,14 +76,6 @@ double formingAfterStorage(const PlateType& type, double years) {
   return std::exp(-years / type.history.storageTauYears);
 }
 
-void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit) {
-  t = std::clamp(t, kLawTmin, kLawTmax);
-  nvt = k.n * constants::thermalVoltage(t);
-  const double is =
-      k.is0 * (t / k.t0) * (t / k.t0) * std::exp(-k.phiOverK * (1.0 / t - 1.0 / k.t0));
-  vcrit = nvt * std::log(nvt / (std::numbers::sqrt2 * is));
-}
-
 namespace {
 
 // exp(x) for |x| below about 1e-3: the series to x^3 (relative error x^4 / 24).
@@ -114,6 +106,17 @@ void arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c
 }
 
 }  // namespace
+
+void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit,
+                     ArrheniusCache* cache) {
+  t = std::clamp(t, kLawTmin, kLawTmax);
+  nvt = k.n * constants::thermalVoltage(t);
+  const double dInv = 1.0 / t - 1.0 / k.t0;
+  double eIs, eRs, eG, eRate;
+  arrhenius(k, t, dInv, cache, eIs, eRs, eG, eRate);
+  const double is = k.is0 * (t / k.t0) * (t / k.t0) * eIs;
+  vcrit = nvt * std::log(nvt / (std::numbers::sqrt2 * is));
+}
 
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
                    double theta, double f, PlateState& s, ArrheniusCache* cache) {

@@ -73,7 +73,9 @@ struct ArrheniusCache {
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
                    double theta, double f, PlateState& s, ArrheniusCache* cache = nullptr);
 
-/// Critical voltage and thermal voltage n kT/q for junction limiting at temperature t.
-void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit);
+/// Critical voltage and thermal voltage n kT/q for junction limiting at temperature t (the
+/// saturation current through the same Arrhenius cache as evaluatePlate).
+void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit,
+                     ArrheniusCache* cache = nullptr);
 
 }  // namespace disc::detail
