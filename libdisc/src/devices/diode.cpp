@@ -69,6 +69,10 @@ void Diode::prepare(const Circuit& c) {
 
 void Diode::derive() {
   fixed_ = scaleAt(p_.temperature > 0.0 ? p_.temperature : ambient_);
+  const detail::DepletionShape d(p_.cj0, p_.vj, p_.m, p_.fc);
+  depF1_ = d.f1;
+  depF2_ = d.f2;
+  depF3_ = d.f3;
 }
 
 Diode::Scale Diode::scaleAt(double t) const {
@@ -133,7 +137,15 @@ void Diode::charge(double v, double id, double gd, double& q, double& c) const {
   c = p_.tt * gd;
   if (p_.cj0 <= 0.0) return;
   double qd, cd;
-  detail::depletionCharge(v, p_.cj0, p_.vj, p_.m, p_.fc, qd, cd);
+  detail::DepletionShape d;
+  d.cj0 = p_.cj0;
+  d.vj = p_.vj;
+  d.m = p_.m;
+  d.fc = p_.fc;
+  d.f1 = depF1_;
+  d.f2 = depF2_;
+  d.f3 = depF3_;
+  detail::depletionCharge(v, d, qd, cd);
   q += qd;
   c += cd;
 }

@@ -33,24 +33,37 @@ inline double limitJunction(double v, double vnew, double nvt, double vcrit) {
   return vnew;
 }
 
-/// Depletion charge q and capacitance c = dq/dv of a junction with zero-bias capacitance cj0,
-/// built-in potential vj and grading m (m = 0.5: abrupt, Mott-Schottky); above fc * vj the
-/// capacitance continues linearly, as device models usually do, so nothing diverges.
-inline void depletionCharge(double v, double cj0, double vj, double m, double fc, double& q,
-                            double& c) {
-  if (v < fc * vj) {
-    const double s = 1.0 - v / vj;
+/// A depletion capacitance's parameters (zero-bias capacitance cj0, built-in potential vj,
+/// grading m, m = 0.5: abrupt, Mott-Schottky) with the constants of its forward continuation
+/// above fc * vj computed once: a device evaluated millions of times should not call pow for
+/// them.
+struct DepletionShape {
+  double cj0 = 0.0, vj = 1.0, m = 0.5, fc = 0.5;
+  double f1 = 0.0, f2 = 1.0, f3 = 0.0;
+  DepletionShape() = default;
+  DepletionShape(double cj0_, double vj_, double m_, double fc_)
+      : cj0(cj0_), vj(vj_), m(m_), fc(fc_) {
+    // (1 - fc)^(1 - m) and (1 - fc)^(1 + m); square roots for abrupt barriers.
+    const double r = m == 0.5 ? std::sqrt(1.0 - fc) : std::pow(1.0 - fc, 1.0 - m);
+    f1 = vj / (1.0 - m) * (1.0 - r);
+    f2 = m == 0.5 ? (1.0 - fc) * r : std::pow(1.0 - fc, 1.0 + m);
+    f3 = 1.0 - fc * (1.0 + m);
+  }
+};
+
+/// Depletion charge q and capacitance c = dq/dv of a junction; above fc * vj the capacitance
+/// continues linearly, as device models usually do, so nothing diverges.
+inline void depletionCharge(double v, const DepletionShape& d, double& q, double& c) {
+  if (v < d.fc * d.vj) {
+    const double s = 1.0 - v / d.vj;
     // s^(1-m) = s * s^-m: one power instead of two, and a square root for abrupt barriers.
-    const double sm = m == 0.5 ? 1.0 / std::sqrt(s) : std::pow(s, -m);
-    q = cj0 * vj / (1.0 - m) * (1.0 - s * sm);
-    c = cj0 * sm;
+    const double sm = d.m == 0.5 ? 1.0 / std::sqrt(s) : std::pow(s, -d.m);
+    q = d.cj0 * d.vj / (1.0 - d.m) * (1.0 - s * sm);
+    c = d.cj0 * sm;
   } else {
-    const double vf = fc * vj;
-    const double f1 = vj / (1.0 - m) * (1.0 - std::pow(1.0 - fc, 1.0 - m));
-    const double f2 = std::pow(1.0 - fc, 1.0 + m);
-    const double f3 = 1.0 - fc * (1.0 + m);
-    q = cj0 * (f1 + (f3 * (v - vf) + m / (2.0 * vj) * (v * v - vf * vf)) / f2);
-    c = cj0 / f2 * (f3 + m * v / vj);
+    const double vf = d.fc * d.vj;
+    q = d.cj0 * (d.f1 + (d.f3 * (v - vf) + d.m / (2.0 * d.vj) * (v * v - vf * vf)) / d.f2);
+    c = d.cj0 / d.f2 * (d.f3 + d.m * v / d.vj);
   }
 }
 

@@ -55,6 +55,7 @@ PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double
   k.bdI0 = p.breakdownJ0 * p.areaCm2;
   k.cj0 = p.c0Area * p.areaCm2;
   k.fc = p.fc;
+  k.depletion = DepletionShape(k.cj0, k.vbi, 0.5, k.fc);
   k.ct = p.trapCArea * p.areaCm2;
   k.gt = k.ct > 0.0 ? k.ct / p.trapTau : 0.0;
   k.rth = type.thermal.rth;
@@ -216,7 +217,7 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
 
   // Barrier charge (Mott-Schottky: grading 1/2).
   if (k.cj0 > 0.0) {
-    depletionCharge(uj, k.cj0, k.vbi, 0.5, k.fc, s.q, s.c);
+    depletionCharge(uj, k.depletion, s.q, s.c);
   } else {
     s.q = 0.0;
     s.c = 0.0;

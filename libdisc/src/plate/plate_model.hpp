@@ -7,6 +7,7 @@
 // Voltages are per plate and relative to the plate's cathode (counter-electrode).
 #pragma once
 
+#include "devices/junction_math.hpp"
 #include "disc/plate_type.hpp"
 
 namespace disc::detail {
@@ -30,6 +31,7 @@ struct PlateConstants {
   double bdV = 50, bdSlope = 3, bdI0 = 0;  // V, V, A
   double cj0 = 0;                          // F
   double fc = 0.5;
+  DepletionShape depletion;  // cj0, vbi, grading 1/2 (Mott-Schottky), fc
   double ct = 0, gt = 0;     // trap capacitance F, conductance S
   double rth = 1, cth = 1;   // K/W, J/K
   double reformRate0 = 0;    // 1/(s V) at t0: (1/tau) / V_ref

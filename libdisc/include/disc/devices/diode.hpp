@@ -62,6 +62,8 @@ class Diode : public DeviceBase<Diode> {
   DiodeParams p_;
   double ambient_ = 298.15;
   Scale fixed_;  // at the device temperature, when isothermal
+  // Constants of the depletion charge's forward continuation (powers of 1 - fc), set by derive().
+  double depF1_ = 0.0, depF2_ = 1.0, depF3_ = 0.0;
   int a_ = 0, k_ = 0, j_ = 0, th_ = 0, cell_ = 0;
   int sTh_ = 0, sThJ_ = 0, sThK_ = 0, sThA_ = 0, sJTh_ = 0,
       sKTh_ = 0;  // anode, cathode, junction (internal anode) unknowns
