@@ -87,6 +87,10 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.abstol = &abstol;
   ns.vabstol = o.tol.voltage;
   ns.reuseJacobian = true;
+  ns.reuseAcrossSolves = true;
+  ns.stopOnDivergence = true;
+  NewtonWorkspace work;
+  ns.workspace = &work;
 
   std::vector<double> xdot(N, 0.0), xPrev = x, xPrev2 = x, xNew(N, 0.0), hist(N, 0.0);
   std::vector<double> qn(N, 0.0), qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);

@@ -16,6 +16,11 @@ bool Klu::refactorize(const Eigen::SparseMatrix<double>& m) {
   return ok != 0 && m_common.status == KLU_OK;
 }
 
+bool Klu::solveInPlace(double* rhs, int n) {
+  if (!m_numeric || !m_symbolic) return false;
+  return klu_solve(m_symbolic, m_numeric, n, 1, rhs, &m_common) != 0;
+}
+
 double Klu::rcond() {
   if (!m_numeric || !m_symbolic) return 0.0;
   klu_rcond(m_symbolic, m_numeric, &m_common);
@@ -64,8 +69,8 @@ void LinearSolver::factor(const System& sys) {
 }
 
 void LinearSolver::solve(double* rhs, int n) {
-  Eigen::Map<Eigen::VectorXd> b(rhs, n);
-  b = klu_.solve(b).eval();
+  if (!klu_.solveInPlace(rhs, n))
+    throw SingularCircuitError("the circuit matrix could not be solved with its factors", "");
 }
 
 }  // namespace disc::detail

@@ -19,6 +19,8 @@ class Klu : public Eigen::KLU<Eigen::SparseMatrix<double>> {
   /// KLU's cheap reciprocal condition estimate of the current factors.
   double rcond();
   bool hasNumeric() const { return m_numeric != nullptr; }
+  /// Solves with the current factors in place (no temporary vector, unlike Eigen's solve()).
+  bool solveInPlace(double* rhs, int n);
 };
 
 class LinearSolver {
@@ -30,11 +32,17 @@ class LinearSolver {
   void solve(double* rhs, int n);
   /// Full factorisations and refactorisations so far.
   long fullFactorizations() const { return full_; }
+  /// The integration coefficient a0 of the Jacobian G + a0 C last factored (0 for DC), so a
+  /// later Newton solve can judge whether those factors are still close enough to use.
+  double factoredA0() const { return factoredA0_; }
+  void setFactoredA0(double a0) { factoredA0_ = a0; }
+  bool hasFactors() const { return analyzed_; }
 
  private:
   Klu klu_;
   bool analyzed_ = false;
-  double rcondFull_ = 0.0;  // condition estimate at the last full factorisation
+  double rcondFull_ = 0.0;
+  double factoredA0_ = 0.0;  // condition estimate at the last full factorisation
   long full_ = 0;
   void fullFactor(const System& sys);
 };

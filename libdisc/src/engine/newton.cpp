@@ -28,12 +28,17 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
                           RunStats& stats) {
   const int n = sys.size();
   const auto& abstol = *settings.abstol;
-  std::vector<double> f(static_cast<std::size_t>(n) + 1, 0.0);
-  std::vector<double> dx(static_cast<std::size_t>(n) + 1, 0.0);
+  NewtonWorkspace local;
+  NewtonWorkspace& work = settings.workspace ? *settings.workspace : local;
+  std::vector<double>& f = work.f;
+  std::vector<double>& dx = work.dx;
+  f.assign(static_cast<std::size_t>(n) + 1, 0.0);
+  dx.assign(static_cast<std::size_t>(n) + 1, 0.0);
   NewtonOutcome out;
   ctx.x = x.data();
-  std::vector<double> limits(static_cast<std::size_t>(sys.limitCells()) + 1,
-                             std::numeric_limits<double>::quiet_NaN());
+  std::vector<double>& limits = work.limits;
+  limits.assign(static_cast<std::size_t>(sys.limitCells()) + 1,
+                std::numeric_limits<double>::quiet_NaN());
   bool unsettled = false;
   ctx.limits = limits.data();
   ctx.unsettled = &unsettled;
@@ -44,16 +49,38 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   // convergence, where the Jacobian has barely moved, and only while chord steps still contract.
   constexpr double kChordBelow = 10.0;
   double lastMeasure = std::numeric_limits<double>::infinity();
-  bool factored = false, chord = false;
+  // The factors of G + a0' C left by the previous solve serve this one's first iteration when
+  // that solve converged and a0'/a0 is within kA0Band of 1 (the chord iteration then contracts
+  // at a rate of about |1 - a0'/a0|), as BDF codes keep their Jacobian over several steps.
+  constexpr double kA0Band = 1.3;
+  const double a0Ratio = ls.factoredA0() > 0.0 && a0 > 0.0 ? ls.factoredA0() / a0 : 0.0;
+  bool factored = settings.reuseJacobian && settings.reuseAcrossSolves && ls.hasFactors() &&
+                  a0Ratio > 1.0 / kA0Band && a0Ratio < kA0Band;
+  if (factored) lastMeasure = 0.0;
+  // The start point, kept while that first iteration runs: if it lands far off, Newton starts
+  // over from here with fresh factors.
+  std::vector<double>& start = work.start;
+  if (factored) start = x;
+  bool chord = false;
+  // Updates growing geometrically (kRise or more, several iterations in a row) mean divergence.
+  constexpr double kRise = 1.2;
+  double previousMeasure = std::numeric_limits<double>::infinity();
+  int rises = 0;
   for (int it = 0; it < settings.maxIterations; ++it) {
     unsettled = false;
     chord = settings.reuseJacobian && factored && lastMeasure <= kChordBelow;
     sys.evaluate(ctx, !chord);
     ++stats.evaluations;
     residual(sys, x, a0, history, settings.gmin, f);
+    // An iterate that overflowed a device law cannot be factored: report failure, so that the
+    // caller shortens the step (or steps gmin or the sources).
+    bool finite = true;
+    for (int k = 0; k < n; ++k) finite = finite && std::isfinite(f[static_cast<std::size_t>(k)]);
+    if (!finite) break;
     if (!chord) {
       sys.assemble(a0, settings.gmin);
       ls.factor(sys);
+      ls.setFactoredA0(-1.0);  // not reusable until this solve converges
       factored = true;
       ++stats.factorizations;
     }
@@ -62,7 +89,6 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     dx[static_cast<std::size_t>(n)] = 0.0;
     ++stats.newtonIterations;
     out.iterations = it + 1;
-    bool finite = true;
     for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
     if (!finite) break;
     bool small = !unsettled;
@@ -76,16 +102,31 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
       measure = std::max(measure, std::abs(step) / tol);
       x[uk] = xn;
     }
-    // A chord step that did not at least halve the update: factorise afresh next time.
-    lastMeasure =
-        chord && measure > 0.5 * lastMeasure ? std::numeric_limits<double>::infinity() : measure;
+    if (chord && it == 0 && measure > kChordBelow) {
+      // The previous solve's factors do not fit this step: start over with fresh ones.
+      x = start;
+      std::fill(limits.begin(), limits.end(), std::numeric_limits<double>::quiet_NaN());
+      lastMeasure = std::numeric_limits<double>::infinity();
+      continue;
+    }
+    // A chord step that did not at least halve the update: factorise afresh next time. (The
+    // first iteration on the previous solve's factors has nothing to compare with.)
+    lastMeasure = chord && it > 0 && measure > 0.5 * lastMeasure
+                      ? std::numeric_limits<double>::infinity()
+                      : measure;
     if (small) {
       ctx.limits = nullptr;
       sys.evaluate(ctx, false);
       ++stats.evaluations;
+      if (ls.factoredA0() < 0.0) ls.setFactoredA0(a0);  // factored during this solve
       out.converged = true;
       return out;
     }
+    // A diverging iteration (typically a factorisation that has lost the circuit's weakest mode
+    // to round-off at a long step) will not recover; a shorter step will.
+    rises = measure > kRise * previousMeasure ? rises + 1 : 0;
+    previousMeasure = measure;
+    if (settings.stopOnDivergence && rises >= 3 && measure > 1.0) break;
   }
   // Name the equation furthest from balance at the last iterate.
   ctx.limits = nullptr;

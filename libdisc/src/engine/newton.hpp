@@ -9,6 +9,12 @@
 
 namespace disc::detail {
 
+/// Scratch vectors of one Newton solve, kept by a caller that solves many times (a transient's
+/// steps) so that no step allocates.
+struct NewtonWorkspace {
+  std::vector<double> f, dx, limits, start;
+};
+
 struct NewtonSettings {
   int maxIterations = 50;
   double reltol = 1e-3;
@@ -18,6 +24,15 @@ struct NewtonSettings {
   /// Keep the last factorisation for an iteration that starts close to the solution (a chord
   /// step): the transient's steps, not the operating point's searches.
   bool reuseJacobian = false;
+  /// With reuseJacobian: the first iteration may also use the factors left by the previous
+  /// solve (the previous time step) when their a0 is within kA0Band of this one, as BDF codes
+  /// do; they are replaced as soon as an iteration fails to contract.
+  bool reuseAcrossSolves = false;
+  /// Give up as soon as the updates grow geometrically (three rises in a row, by at least a
+  /// fifth each, ending above tolerance) instead of running to maxIterations: for the
+  /// transient, where a failure only costs a shorter step.
+  bool stopOnDivergence = false;
+  NewtonWorkspace* workspace = nullptr;  ///< optional; a local one otherwise
 };
 
 struct NewtonOutcome {
