@@ -32,8 +32,9 @@ class LinearSolver {
   void solve(double* rhs, int n);
   /// Full factorisations and refactorisations so far.
   long fullFactorizations() const { return full_; }
-  /// The integration coefficient a0 of the Jacobian G + a0 C last factored (0 for DC), so a
-  /// later Newton solve can judge whether those factors are still close enough to use.
+  /// The integration coefficient a0 of the Jacobian G + a0 C last factored (0 for DC; negative
+  /// while the solve that factored it has not converged), so a later Newton solve can judge
+  /// whether those factors are still close enough to use.
   double factoredA0() const { return factoredA0_; }
   void setFactoredA0(double a0) { factoredA0_ = a0; }
   bool hasFactors() const { return analyzed_; }
@@ -41,8 +42,8 @@ class LinearSolver {
  private:
   Klu klu_;
   bool analyzed_ = false;
-  double rcondFull_ = 0.0;
-  double factoredA0_ = 0.0;  // condition estimate at the last full factorisation
+  double rcondFull_ = 0.0;   // condition estimate at the last full factorisation
+  double factoredA0_ = 0.0;  // a0 of the factors; negative: not to be reused
   long full_ = 0;
   void fullFactor(const System& sys);
 };
