@@ -165,9 +165,7 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
         const double u = -p_.bv - v, ul = detail::limitJunction(-p_.bv - last, u, nvt_, vcrit_);
         if (ul != u) v = -p_.bv - ul;
       }
-      if (v != vraw || std::abs(vraw - last) >
-                           ctx.reltol * std::max(std::abs(vraw), std::abs(last)) + ctx.vabstol)
-        *ctx.unsettled = true;
+      ctx.reportJunction(vraw, v, last);
     }
     last = v;
   }

@@ -260,9 +260,7 @@ void evaluateLimited(const detail::PlateConstants& k, double ambient, const Eval
       double nvt, vcrit;
       detail::plateLimitScale(k, ambient + th, nvt, vcrit, cache);
       ujl = detail::limitJunction(last, uj, nvt, vcrit);
-      if (ujl != uj ||
-          std::abs(uj - last) > ctx.reltol * std::max(std::abs(uj), std::abs(last)) + ctx.vabstol)
-        *ctx.unsettled = true;
+      ctx.reportJunction(uj, ujl, last);
     }
     last = ujl;
   }

@@ -89,6 +89,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.reuseJacobian = true;
   ns.reuseAcrossSolves = true;
   ns.stopOnDivergence = true;
+  ns.predictConvergence = true;
   NewtonWorkspace work;
   ns.workspace = &work;
 

@@ -39,9 +39,9 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   std::vector<double>& limits = work.limits;
   limits.assign(static_cast<std::size_t>(sys.limitCells()) + 1,
                 std::numeric_limits<double>::quiet_NaN());
-  bool unsettled = false;
+  double settle = 0.0;
   ctx.limits = limits.data();
-  ctx.unsettled = &unsettled;
+  ctx.settle = &settle;
   ctx.reltol = settings.reltol;
   ctx.vabstol = settings.vabstol;
   // Largest update of the last iteration in units of its tolerance; a chord step (the previous
@@ -57,17 +57,16 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   bool factored = settings.reuseJacobian && settings.reuseAcrossSolves && ls.hasFactors() &&
                   a0Ratio > 1.0 / kA0Band && a0Ratio < kA0Band;
   if (factored) lastMeasure = 0.0;
-  // The start point, kept while that first iteration runs: if it lands far off, Newton starts
-  // over from here with fresh factors.
-  std::vector<double>& start = work.start;
-  if (factored) start = x;
   bool chord = false;
+  // Predicted convergence: a contraction rate below kFastRate and a predicted remaining error
+  // below kPredictedBelow tolerances.
+  constexpr double kFastRate = 0.25, kPredictedBelow = 0.2;
   // Updates growing geometrically (kRise or more, several iterations in a row) mean divergence.
   constexpr double kRise = 1.2;
   double previousMeasure = std::numeric_limits<double>::infinity();
   int rises = 0;
   for (int it = 0; it < settings.maxIterations; ++it) {
-    unsettled = false;
+    settle = 0.0;
     chord = settings.reuseJacobian && factored && lastMeasure <= kChordBelow;
     sys.evaluate(ctx, !chord);
     ++stats.evaluations;
@@ -91,23 +90,26 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     out.iterations = it + 1;
     for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
     if (!finite) break;
-    bool small = !unsettled;
     double measure = 0.0;
     for (int k = 0; k < n; ++k) {
       const auto uk = static_cast<std::size_t>(k);
       const double step = dx[uk];
       const double xn = x[uk] + step;
       const double tol = settings.reltol * std::max(std::abs(xn), std::abs(x[uk])) + abstol[uk];
-      if (std::abs(step) > tol) small = false;
       measure = std::max(measure, std::abs(step) / tol);
       x[uk] = xn;
     }
-    if (chord && it == 0 && measure > kChordBelow) {
-      // The previous solve's factors do not fit this step: start over with fresh ones.
-      x = start;
-      std::fill(limits.begin(), limits.end(), std::numeric_limits<double>::quiet_NaN());
-      lastMeasure = std::numeric_limits<double>::infinity();
-      continue;
+    // Converged: this update within tolerance on every unknown and every junction settled (the
+    // junctions report the previous update's movement).
+    bool small = measure <= 1.0 && settle <= 1.0;
+    if (!small && settings.predictConvergence && it > 0 && std::isfinite(settle)) {
+      // Or converging fast enough that the iterate just formed is within tolerance: with the
+      // contraction rate rho of the last two updates, the remaining error is about
+      // rho / (1 - rho) times this update (the test of BDF codes, e.g. SUNDIALS IDA), and the
+      // junctions', one update behind, rho^2 / (1 - rho) times their movement.
+      const double rho = measure / previousMeasure;
+      small = rho < kFastRate && measure * rho / (1.0 - rho) <= kPredictedBelow &&
+              settle * rho * rho / (1.0 - rho) <= kPredictedBelow;
     }
     // A chord step that did not at least halve the update: factorise afresh next time. (The
     // first iteration on the previous solve's factors has nothing to compare with.)

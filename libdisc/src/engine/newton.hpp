@@ -12,7 +12,7 @@ namespace disc::detail {
 /// Scratch vectors of one Newton solve, kept by a caller that solves many times (a transient's
 /// steps) so that no step allocates.
 struct NewtonWorkspace {
-  std::vector<double> f, dx, limits, start;
+  std::vector<double> f, dx, limits;
 };
 
 struct NewtonSettings {
@@ -32,6 +32,9 @@ struct NewtonSettings {
   /// fifth each, ending above tolerance) instead of running to maxIterations: for the
   /// transient, where a failure only costs a shorter step.
   bool stopOnDivergence = false;
+  /// Also accept an iterate that the contraction of the last two updates shows to be within
+  /// tolerance, without spending an iteration to confirm it.
+  bool predictConvergence = false;
   NewtonWorkspace* workspace = nullptr;  ///< optional; a local one otherwise
 };
 

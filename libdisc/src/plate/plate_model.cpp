@@ -103,7 +103,7 @@ void arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c
   eRs = std::exp(k.rsEaOverK * dInv);
   eG = std::exp(-k.gshEaOverK * dInv);
   eRate = std::exp(-k.reformEaOverK * dInv);
-  if (c) *c = {T, dInv, eIs, eRs, eG, eRate};
+  if (c) *c = {T, dInv, eIs, eRs, eG, eRate, false, 0.0, 0.0};
 }
 
 }  // namespace
@@ -111,12 +111,22 @@ void arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c
 void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit,
                      ArrheniusCache* cache) {
   t = std::clamp(t, kLawTmin, kLawTmax);
+  if (cache && cache->limitScaleSet && std::abs(t - cache->temperature) <= kCacheKelvin) {
+    nvt = cache->limitNvt;
+    vcrit = cache->limitVcrit;
+    return;
+  }
   nvt = k.n * constants::thermalVoltage(t);
   const double dInv = 1.0 / t - 1.0 / k.t0;
   double eIs, eRs, eG, eRate;
   arrhenius(k, t, dInv, cache, eIs, eRs, eG, eRate);
   const double is = k.is0 * (t / k.t0) * (t / k.t0) * eIs;
   vcrit = nvt * std::log(nvt / (std::numbers::sqrt2 * is));
+  if (cache) {
+    cache->limitScaleSet = true;
+    cache->limitNvt = nvt;
+    cache->limitVcrit = vcrit;
+  }
 }
 
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,

@@ -68,6 +68,10 @@ struct ArrheniusCache {
   double temperature = -1.0;                         // K (law temperature), < 0: empty
   double dInv = 0.0;                                 // 1/T - 1/t0 at that temperature
   double is = 0.0, rs = 0.0, gsh = 0.0, rate = 0.0;  // exp(-phi/k dInv), exp(Ea/k dInv), ...
+  // Junction limiting's scale (n kT/q and the critical voltage) at a temperature within the
+  // cache's band; limiting is a damping heuristic, a sub-millikelvin offset does not matter.
+  bool limitScaleSet = false;
+  double limitNvt = 0.0, limitVcrit = 0.0;
 };
 
 /// Evaluates the plate. `ujLimited` is the barrier voltage the laws are evaluated at (equal to
