@@ -24,7 +24,8 @@ inline void setCounters(benchmark::State& st, const disc::RunStats& s) {
 }
 
 /// Times a switch-on (cold start) transient of the circuit `make()` builds, `stop` seconds with
-/// `method`, recording one signal; the counters come from the last run.
+/// `method`, recording one signal; the counters come from the fastest run (this machine is
+/// shared: other tenants only ever add time, mostly through the shared last-level cache).
 template <class Make>
 void timeColdRun(benchmark::State& st, Make make, double stop, disc::Method method,
                  const std::string& signal) {
@@ -38,7 +39,7 @@ void timeColdRun(benchmark::State& st, Make make, double stop, disc::Method meth
     o.record = {signal};
     const disc::Result r = disc::transient(c, o);
     benchmark::DoNotOptimize(r[signal].back());
-    stats = r.stats();
+    if (stats.wallSeconds <= 0.0 || r.stats().wallSeconds < stats.wallSeconds) stats = r.stats();
   }
   setCounters(st, stats);
 }

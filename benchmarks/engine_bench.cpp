@@ -24,6 +24,13 @@ void Ladder(benchmark::State& st) {
   disc::bench::timeColdRun(
       st, [n] { return disc::reference::diodeLadder(n); }, 0.02, disc::Method::Bdf2, "v:n1");
 }
-BENCHMARK(Ladder)->Arg(10)->Arg(100)->Arg(1000)->Arg(10000)->Unit(benchmark::kMillisecond);
+// At least two seconds each, so that the 10000-diode ladder, too, runs several times.
+BENCHMARK(Ladder)
+    ->Arg(10)
+    ->Arg(100)
+    ->Arg(1000)
+    ->Arg(10000)
+    ->MinTime(2.0)
+    ->Unit(benchmark::kMillisecond);
 
 }  // namespace
