@@ -21,6 +21,12 @@ bool Klu::solveInPlace(double* rhs, int n) {
   return klu_solve(m_symbolic, m_numeric, n, 1, rhs, &m_common) != 0;
 }
 
+bool Klu::permutations(int* p, int* q) {
+  if (!m_numeric || !m_symbolic) return false;
+  return klu_extract(m_numeric, m_symbolic, nullptr, nullptr, nullptr, nullptr, nullptr, nullptr,
+                     nullptr, nullptr, nullptr, p, q, nullptr, nullptr, &m_common) != 0;
+}
+
 double Klu::rcond() {
   if (!m_numeric || !m_symbolic) return 0.0;
   klu_rcond(m_symbolic, m_numeric, &m_common);
@@ -44,6 +50,26 @@ void LinearSolver::fullFactor(const System& sys) {
         col >= 0 ? sys.unknownName(col) : "");
   }
   rcondFull_ = klu_.rcond();
+  adoptPivotOrder(sys);
+}
+
+void LinearSolver::adoptPivotOrder(const System& sys) {
+  const auto& J = sys.jacobian();
+  const int n = static_cast<int>(J.cols());
+  pNew_.resize(static_cast<std::size_t>(n));
+  qNew_.resize(static_cast<std::size_t>(n));
+  useProgram_ = false;
+  if (!klu_.permutations(pNew_.data(), qNew_.data())) return;
+  // The pivot search mostly returns an order it has chosen before: keep the program then.
+  if (!program_.ready() || pNew_ != p_ || qNew_ != q_) {
+    p_.swap(pNew_);
+    q_.swap(qNew_);
+    if (!program_.build(n, J.outerIndexPtr(), J.innerIndexPtr(), p_.data(), q_.data())) return;
+  }
+  // Same arithmetic as KLU's without pivoting, so the program's factors replace KLU's here.
+  if (!program_.factor(J.valuePtr())) return;
+  useProgram_ = true;
+  rcondFull_ = program_.pivotRatio();
 }
 
 void LinearSolver::factor(const System& sys) {
@@ -64,11 +90,19 @@ void LinearSolver::factor(const System& sys) {
   }
   // Reuse the pivot order while the factors stay about as well conditioned as when the pivots
   // were chosen; when a diode switching changes the magnitudes, search pivots again.
-  if (klu_.hasNumeric() && klu_.refactorize(J) && klu_.rcond() > 1e-3 * rcondFull_) return;
+  if (useProgram_) {
+    if (program_.factor(J.valuePtr()) && program_.pivotRatio() > 1e-3 * rcondFull_) return;
+  } else if (klu_.hasNumeric() && klu_.refactorize(J) && klu_.rcond() > 1e-3 * rcondFull_) {
+    return;
+  }
   fullFactor(sys);
 }
 
 void LinearSolver::solve(double* rhs, int n) {
+  if (useProgram_) {
+    program_.solve(rhs);
+    return;
+  }
   if (!klu_.solveInPlace(rhs, n))
     throw SingularCircuitError("the circuit matrix could not be solved with its factors", "");
 }

@@ -1,10 +1,14 @@
-// Sparse LU over SuiteSparse KLU (through Eigen's KLUSupport): symbolic analysis once per
-// topology, a full numeric factorisation with pivot search when needed, and otherwise a
-// refactorisation that reuses the pivot order (private).
+// Sparse LU: SuiteSparse KLU (through Eigen's KLUSupport) analyses the pattern once per topology
+// and factors with a pivot search when needed; between those, a compiled refactorisation
+// (StaticLu) reuses KLU's pivot order (private).
 #pragma once
+
+#include <vector>
 
 #include <Eigen/KLUSupport>
 #include <Eigen/SparseCore>
+
+#include "static_lu.hpp"
 
 namespace disc::detail {
 
@@ -19,6 +23,8 @@ class Klu : public Eigen::KLU<Eigen::SparseMatrix<double>> {
   /// KLU's cheap reciprocal condition estimate of the current factors.
   double rcond();
   bool hasNumeric() const { return m_numeric != nullptr; }
+  /// The row and column permutations of the last factorisation (pivot order included).
+  bool permutations(int* p, int* q);
   /// Solves with the current factors in place (no temporary vector, unlike Eigen's solve()).
   bool solveInPlace(double* rhs, int n);
 };
@@ -41,11 +47,15 @@ class LinearSolver {
 
  private:
   Klu klu_;
+  StaticLu program_;         // refactorisation in KLU's last pivot order
+  bool useProgram_ = false;  // the current factors are the program's (else KLU's)
+  std::vector<int> p_, q_, pNew_, qNew_;
   bool analyzed_ = false;
   double rcondFull_ = 0.0;   // condition estimate at the last full factorisation
   double factoredA0_ = 0.0;  // a0 of the factors; negative: not to be reused
   long full_ = 0;
   void fullFactor(const System& sys);
+  void adoptPivotOrder(const System& sys);
 };
 
 }  // namespace disc::detail

@@ -35,6 +35,10 @@ struct NewtonSettings {
   /// Also accept an iterate that the contraction of the last two updates shows to be within
   /// tolerance, without spending an iteration to confirm it.
   bool predictConvergence = false;
+  /// On convergence, carry the charges and currents to the last iterate along the last
+  /// Jacobian (second-order accurate in an update already within tolerance) instead of
+  /// evaluating every device once more, as BDF codes accept their last iterate.
+  bool linearizeLastUpdate = false;
   NewtonWorkspace* workspace = nullptr;  ///< optional; a local one otherwise
 };
 

@@ -62,14 +62,14 @@ struct PlateState {
 };
 
 /// The four Arrhenius factors of a plate at one law temperature, kept between evaluations: the
-/// plate temperature moves by far less than a millikelvin per Newton iteration, so a short
-/// Taylor series from the cached temperature replaces four exponentials (docs/performance.md).
+/// plate temperature moves by about a millikelvin or less per time step, so within 10 mK of the
+/// cached temperature a Taylor series replaces four exponentials (docs/performance.md).
 struct ArrheniusCache {
   double temperature = -1.0;                         // K (law temperature), < 0: empty
   double dInv = 0.0;                                 // 1/T - 1/t0 at that temperature
   double is = 0.0, rs = 0.0, gsh = 0.0, rate = 0.0;  // exp(-phi/k dInv), exp(Ea/k dInv), ...
   // Junction limiting's scale (n kT/q and the critical voltage) at a temperature within the
-  // cache's band; limiting is a damping heuristic, a sub-millikelvin offset does not matter.
+  // cache's band; limiting is a damping heuristic, a 10 mK offset (3e-5 of kT) does not matter.
   bool limitScaleSet = false;
   double limitNvt = 0.0, limitVcrit = 0.0;
 };

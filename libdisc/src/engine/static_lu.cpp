@@ -1,0 +1,171 @@
+// Compiled static-pivot sparse LU.
+#include "static_lu.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <functional>
+#include <queue>
+
+namespace disc::detail {
+
+void StaticLu::clear() {
+  n_ = 0;
+  perm_.clear();
+  qperm_.clear();
+  colStart_.clear();
+  diag_.clear();
+  row_.clear();
+  opsEnd_.clear();
+  ops_.clear();
+  load_.clear();
+  fill_.clear();
+  order_.clear();
+  lu_.clear();
+  invPivot_.clear();
+}
+
+bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, const int* q) {
+  clear();
+  if (n <= 0) return false;
+  const auto un = static_cast<std::size_t>(n);
+  std::vector<int> pinv(un);
+  for (int k = 0; k < n; ++k) pinv[static_cast<std::size_t>(p[k])] = k;
+  load_.assign(static_cast<std::size_t>(colPtr[n]), -1);
+  colStart_.assign(un + 1, 0);
+  diag_.assign(un, 0);
+  opsEnd_.assign(un, 0);
+  std::vector<int> mark(un, -1), pos(un, -1), upper, lower, level(un, 0);
+  // Rows below the current column, visited in increasing order: the L-solve of a column needs
+  // each earlier row final before it is used, and increasing order is a topological order.
+  std::priority_queue<int, std::vector<int>, std::greater<>> pending;
+  for (int k = 0; k < n; ++k) {
+    upper.clear();
+    lower.clear();
+    bool hasDiagonal = false;
+    auto reach = [&](int r) {
+      if (mark[static_cast<std::size_t>(r)] == k) return;
+      mark[static_cast<std::size_t>(r)] = k;
+      if (r < k)
+        pending.push(r);
+      else if (r == k)
+        hasDiagonal = true;
+      else
+        lower.push_back(r);
+    };
+    const int col = q[k];
+    for (int e = colPtr[col]; e < colPtr[col + 1]; ++e)
+      reach(pinv[static_cast<std::size_t>(rowIdx[e])]);
+    while (!pending.empty()) {
+      const int j = pending.top();
+      pending.pop();
+      upper.push_back(j);
+      for (int e = diag_[static_cast<std::size_t>(j)] + 1;
+           e < colStart_[static_cast<std::size_t>(j) + 1]; ++e)
+        reach(row_[static_cast<std::size_t>(e)]);
+    }
+    if (!hasDiagonal) {
+      clear();
+      return false;
+    }
+    std::sort(lower.begin(), lower.end());
+    const int start = static_cast<int>(row_.size());
+    colStart_[static_cast<std::size_t>(k)] = start;
+    for (int r : upper) row_.push_back(r);
+    row_.push_back(k);
+    for (int r : lower) row_.push_back(r);
+    const int end = static_cast<int>(row_.size());
+    for (int e = start; e < end; ++e)
+      pos[static_cast<std::size_t>(row_[static_cast<std::size_t>(e)])] = e;
+    diag_[static_cast<std::size_t>(k)] = start + static_cast<int>(upper.size());
+    colStart_[static_cast<std::size_t>(k) + 1] = end;
+    for (int j : upper) {
+      const int uj = pos[static_cast<std::size_t>(j)];
+      for (int e = diag_[static_cast<std::size_t>(j)] + 1;
+           e < colStart_[static_cast<std::size_t>(j) + 1]; ++e)
+        ops_.push_back({pos[static_cast<std::size_t>(row_[static_cast<std::size_t>(e)])], e, uj});
+    }
+    opsEnd_[static_cast<std::size_t>(k)] = static_cast<int>(ops_.size());
+    int lv = 0;
+    for (int j : upper) lv = std::max(lv, level[static_cast<std::size_t>(j)] + 1);
+    level[static_cast<std::size_t>(k)] = lv;
+    for (int e = colPtr[col]; e < colPtr[col + 1]; ++e)
+      load_[static_cast<std::size_t>(e)] =
+          pos[static_cast<std::size_t>(pinv[static_cast<std::size_t>(rowIdx[e])])];
+  }
+  // Columns in order of their depth in the elimination's dependency graph: columns of one depth
+  // are independent, so the processor overlaps one column's division with the next column's
+  // work instead of waiting for it as in pivot order, where each column often needs the last.
+  order_.resize(un);
+  for (int k = 0; k < n; ++k) order_[static_cast<std::size_t>(k)] = k;
+  std::stable_sort(order_.begin(), order_.end(), [&](int a, int b) {
+    return level[static_cast<std::size_t>(a)] < level[static_cast<std::size_t>(b)];
+  });
+  n_ = n;
+  perm_.assign(p, p + n);
+  qperm_.assign(q, q + n);
+  lu_.assign(row_.size(), 0.0);
+  std::vector<char> loaded(row_.size(), 0);
+  for (int e : load_) loaded[static_cast<std::size_t>(e)] = 1;
+  for (std::size_t e = 0; e < loaded.size(); ++e)
+    if (!loaded[e]) fill_.push_back(static_cast<int>(e));
+  invPivot_.assign(un, 0.0);
+  work_.assign(un, 0.0);
+  return true;
+}
+
+bool StaticLu::factor(const double* values) {
+  double* lu = lu_.data();
+  for (int e : fill_) lu[e] = 0.0;
+  const std::size_t nnz = load_.size();
+  for (std::size_t e = 0; e < nnz; ++e) lu[load_[e]] = values[e];
+  const Op* ops = ops_.data();
+  const int* diag = diag_.data();
+  const int* colEnd = colStart_.data() + 1;
+  const int* opsEnd = opsEnd_.data();
+  double* inv = invPivot_.data();
+  for (int k : order_) {
+    for (const Op *op = ops + (k > 0 ? opsEnd[k - 1] : 0), *end = ops + opsEnd[k]; op != end; ++op)
+      lu[op->dst] -= lu[op->l] * lu[op->u];
+    const double r = 1.0 / lu[diag[k]];
+    inv[k] = r;
+    for (int e = diag[k] + 1; e < colEnd[k]; ++e) lu[e] *= r;
+  }
+  // Pivot magnitudes in a separate pass, off the elimination's dependency chain.
+  double smallest = HUGE_VAL, largest = 0.0;
+  for (int k = 0; k < n_; ++k) {
+    const double mag = std::abs(inv[k]);  // 1 / |pivot|
+    smallest = std::min(smallest, mag);
+    largest = std::max(largest, mag);
+  }
+  // A zero pivot gives an infinite reciprocal, an overflow a zero or NaN one.
+  if (!(largest < HUGE_VAL) || !(smallest > 0.0)) {
+    pivotRatio_ = 0.0;
+    return false;
+  }
+  pivotRatio_ = smallest / largest;  // min |pivot| / max |pivot|
+  return true;
+}
+
+void StaticLu::solve(double* b) const {
+  double* y = work_.data();
+  const double* lu = lu_.data();
+  const int* row = row_.data();
+  const int* diag = diag_.data();
+  const int* colStart = colStart_.data();
+  const double* inv = invPivot_.data();
+  const int* perm = perm_.data();
+  for (int k = 0; k < n_; ++k) y[k] = b[perm[k]];
+  for (int k = 0; k < n_; ++k) {  // L, unit diagonal
+    const double yk = y[k];
+    for (int e = diag[k] + 1; e < colStart[k + 1]; ++e) y[row[e]] -= lu[e] * yk;
+  }
+  for (int k = n_ - 1; k >= 0; --k) {  // U
+    const double yk = y[k] * inv[k];
+    y[k] = yk;
+    for (int e = colStart[k]; e < diag[k]; ++e) y[row[e]] -= lu[e] * yk;
+  }
+  const int* qperm = qperm_.data();
+  for (int k = 0; k < n_; ++k) b[qperm[k]] = y[k];
+}
+
+}  // namespace disc::detail

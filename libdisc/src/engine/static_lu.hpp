@@ -1,0 +1,57 @@
+// Sparse LU with a fixed pivot sequence, compiled into a flat list of operations (private).
+#pragma once
+
+#include <vector>
+
+namespace disc::detail {
+
+/// LU factors of B = A(P, Q) for a fixed pattern and fixed row and column permutations (those
+/// of a pivoting factorisation, KLU's here), without any pivot search: the elimination is
+/// worked out once and stored as a list of multiply-subtract operations on one array of factor
+/// values, so each refactorisation is a straight pass over that list. Circuit matrices keep
+/// their pattern for a whole run and their pivot order for most of it; what a general sparse
+/// refactorisation spends on gathering, scattering and traversing columns is paid once here
+/// (the approach of "compiled" sparse refactorisation for repeated solves with one pattern).
+class StaticLu {
+ public:
+  /// Builds the program for the CSC pattern (n, colPtr, rowIdx) with row permutation p (p[k] is
+  /// the row of A that is the k-th pivot row) and column permutation q. Returns false, leaving
+  /// the object empty, if a pivot position is structurally empty in that order.
+  bool build(int n, const int* colPtr, const int* rowIdx, const int* p, const int* q);
+  bool ready() const { return n_ > 0; }
+  void clear();
+
+  /// Factors the values (in the CSC order of the pattern given to build). Returns false if a
+  /// pivot is zero or not finite. pivotRatio() is then the smallest over the largest pivot
+  /// magnitude (KLU's cheap reciprocal condition estimate, comparable with its rcond).
+  bool factor(const double* values);
+  double pivotRatio() const { return pivotRatio_; }
+
+  /// Solves A x = b in place with the last factors.
+  void solve(double* b) const;
+
+  /// Entries of L and U together (diagonal once) and multiply-subtract operations per factor.
+  std::size_t factorEntries() const { return lu_.size(); }
+  std::size_t operations() const { return ops_.size(); }
+
+ private:
+  struct Op {
+    int dst, l, u;  // lu[dst] -= lu[l] * lu[u]
+  };
+  int n_ = 0;
+  std::vector<int> perm_, qperm_;  // p and q of build()
+  std::vector<int> colStart_;      // per column: U entries, then the diagonal, then L entries
+  std::vector<int> diag_;          // position of each column's diagonal
+  std::vector<int> row_;           // row (in B) of each factor entry
+  std::vector<int> opsEnd_;        // end of each column's operations in ops_
+  std::vector<Op> ops_;
+  std::vector<int> load_;   // position in lu_ of each value of A, in CSC order
+  std::vector<int> fill_;   // positions in lu_ that no value of A lands on
+  std::vector<int> order_;  // columns in the order the factorisation computes them
+  std::vector<double> lu_;
+  std::vector<double> invPivot_;
+  mutable std::vector<double> work_;
+  double pivotRatio_ = 0.0;
+};
+
+}  // namespace disc::detail
