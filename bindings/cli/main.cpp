@@ -101,6 +101,7 @@ struct ExampleArgs {
   bool json = false;
   bool cold = true;
   double reltol = 1e-3;
+  double abstol = 0.0;  // V and A; 0: the library's defaults
 };
 
 // Peak resident memory of this process image (VmHWM; getrusage's figure survives exec and
@@ -130,6 +131,10 @@ int runExample(const ExampleArgs& a) {
   opt.start = a.cold ? disc::Start::Cold : disc::Start::OperatingPoint;
   opt.record = {"v:" + out};
   opt.tol.reltol = a.reltol;
+  if (a.abstol > 0.0) {
+    opt.tol.voltage = a.abstol;
+    opt.tol.current = a.abstol;
+  }
   const disc::Result r = disc::transient(circuit, opt);
   const auto fig = disc::measure::outputFigures(r.time(), r["v:" + out], f, a.cycles);
   const auto& s = r.stats();
@@ -146,6 +151,7 @@ int runExample(const ExampleArgs& a) {
                         {"newton_iterations", s.newtonIterations},
                         {"factorizations", s.factorizations},
                         {"reltol", a.reltol},
+                        {"abstol", opt.tol.voltage},
                         {"wall_s", s.wallSeconds},
                         {"peak_rss_kib", peakRssKib()}};
     std::cout << j.dump(2) << "\n";
@@ -260,6 +266,11 @@ int main(int argc, char** argv) {
   example->add_flag("--json", ex.json, "Print the figures as JSON");
   example->add_option("--reltol", ex.reltol, "Relative tolerance of Newton and step control")
       ->check(CLI::Range(1e-12, 0.05));
+  example
+      ->add_option("--abstol", ex.abstol,
+                   "Absolute tolerance of voltages (V) and currents (A); default 1e-6. Below "
+                   "about 1e-6 relative accuracy it, not --reltol, limits the error")
+      ->check(CLI::Range(1e-15, 1e-3));
   example->add_flag("!--from-operating-point", ex.cold,
                     "Start from the DC operating point instead of switching on cold");
 

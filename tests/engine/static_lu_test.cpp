@@ -83,9 +83,9 @@ TEST_CASE("Static-pivot LU follows KLU's pivot order on an MNA matrix", "[engine
   // reproduce KLU's solution and its pivot-ratio condition estimate (klu_rcond's definition:
   // smallest over largest pivot magnitude) with KLU's permutations.
   //   unknowns: v1, v2, v3, i_src;  1 V source from v1 to ground, 1 k / 2 k / 10 uS network.
-  std::vector<Eigen::Triplet<double>> t = {
-      {0, 0, 1e-3},  {0, 1, -1e-3}, {1, 0, -1e-3}, {1, 1, 1.5e-3}, {1, 2, -5e-4},
-      {2, 1, -5e-4}, {2, 2, 5.1e-4}, {0, 3, 1.0},  {3, 0, 1.0}};
+  std::vector<Eigen::Triplet<double>> t = {{0, 0, 1e-3},   {0, 1, -1e-3}, {1, 0, -1e-3},
+                                           {1, 1, 1.5e-3}, {1, 2, -5e-4}, {2, 1, -5e-4},
+                                           {2, 2, 5.1e-4}, {0, 3, 1.0},   {3, 0, 1.0}};
   Eigen::SparseMatrix<double> a(4, 4);
   a.setFromTriplets(t.begin(), t.end());
   a.makeCompressed();

@@ -128,3 +128,12 @@ TEST_CASE("Derived and used plate types", "[netlist][parser]") {
       "plate-type x base=se-25mm-square rs_ohm_cm=3\nvoltage V1 a gnd dc=1V\nresistor R a gnd 1\n",
       1, 34, "did you mean 'rs_ohm_cm2'");
 }
+
+TEST_CASE("run transient takes an absolute tolerance", "[netlist][parser]") {
+  const Netlist nl = parseNetlist(kOk + "run transient stop=1ms reltol=1e-6 abstol=1e-9\n");
+  REQUIRE(nl.analyses.size() == 1);
+  CHECK(nl.analyses[0].transient.tol.reltol == 1e-6);
+  CHECK(nl.analyses[0].transient.tol.voltage == 1e-9);
+  CHECK(nl.analyses[0].transient.tol.current == 1e-9);
+  expectError(kOk + "run transient stop=1ms abstol=0\n", 3, 31, "abstol must lie above 0");
+}

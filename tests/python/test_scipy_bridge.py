@@ -70,10 +70,10 @@ def reference():
     return {"mean": np.trapz(vo, t) / (t[-1] - t[0]), "ripple": vo.max() - vo.min()}
 
 
-def run_disc(method):
+def run_disc(method, reltol=1e-6, extra=()):
     cli = os.environ.get("DISC_CLI", "disc")
     out = subprocess.run([cli, "example", "shockley-bridge", "--method", method, "--stop",
-                          str(STOP), "--reltol", "1e-6", "--json"],
+                          str(STOP), "--reltol", str(reltol), "--json", *extra],
                          check=True, capture_output=True, text=True).stdout
     return json.loads(out)
 
@@ -104,3 +104,14 @@ def test_python_module_matches_scipy_radau(reference):
     mean = np.trapz(v[keep], t[keep]) / (t[keep][-1] - t[keep][0])
     assert mean == pytest.approx(reference["mean"], rel=1e-3)
     assert v[keep].max() - v[keep].min() == pytest.approx(reference["ripple"], rel=1e-2)
+
+
+def test_tighter_absolute_tolerance_is_more_accurate(reference):
+    # Below about 1e-6 relative accuracy the absolute tolerances (1e-6 V and A by default) set
+    # the error: --abstol tightens them (reference: the Radau solution above).
+    loose = run_disc("trap", 1e-8)
+    tight = run_disc("trap", 1e-8, ["--abstol", "1e-9"])
+    assert tight["abstol"] == 1e-9 and loose["abstol"] == 1e-6
+    err = [abs(f["output_mean_V"] - reference["mean"]) / reference["mean"] for f in (loose, tight)]
+    assert err[1] < 1e-6
+    assert err[1] < err[0]

@@ -229,11 +229,12 @@ class Circuit:
 
     # -- analyses -------------------------------------------------------------------------
     def run_transient(self, stop, record=None, method="trap", start="cold", max_step=0.0,
-                      reltol=0.0):
+                      reltol=0.0, abstol=0.0):
         """Transient from 0 to stop (s). method: 'trap', 'bdf2' or 'ida'; start: 'cold' or
-        'operating-point'. The GIL is released while the engine runs; Ctrl-C stops it."""
+        'operating-point'; reltol (default 1e-3) and abstol (volts and amperes, default 1e-6),
+        0 for the defaults. The GIL is released while the engine runs; Ctrl-C stops it."""
         res = self._net.run_transient(float(stop), list(record or []), method, start,
-                                      float(max_step), float(reltol))
+                                      float(max_step), float(reltol), float(abstol))
         return Result(self, res)
 
     def run_op(self, record=None):

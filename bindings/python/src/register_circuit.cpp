@@ -111,7 +111,8 @@ void registerCircuit(py::module_& m) {
       .def(
           "run_transient",
           [](Netlist& n, double stop, const std::vector<std::string>& record,
-             const std::string& method, const std::string& start, double maxStep, double reltol) {
+             const std::string& method, const std::string& start, double maxStep, double reltol,
+             double abstol) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
@@ -124,13 +125,14 @@ void registerCircuit(py::module_& m) {
               throw InputError("start is 'cold' or 'operating-point', got '" + start + "'");
             o.maxStep = maxStep;
             if (reltol > 0.0) o.tol.reltol = reltol;
+            if (abstol > 0.0) o.tol.voltage = o.tol.current = abstol;
             o.record = runSignals(n, record);
             o.progress = interruptible();
             py::gil_scoped_release nogil;
             return own(transient(n.circuit, o));
           },
           py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"),
-          py::arg("max_step"), py::arg("reltol"))
+          py::arg("max_step"), py::arg("reltol"), py::arg("abstol"))
       .def(
           "run_op",
           [](Netlist& n, const std::vector<std::string>& record) {

@@ -20,6 +20,8 @@ struct Stack::Plate {
   double f0 = 1.0;
   int a = 0, kk = 0, j = 0, t = 0, th = 0, f = 0;
   int neighbour = -1;  // temperature unknown of the next plate in the arm, or -1
+  double gth = 0.0;    // thermal conductance to ambient, W/K
+  double gc = 0.0;     // thermal conductance to the next plate, W/K
   int cell = 0;
   int sAa = 0, sAk = 0, sAj = 0, sAth = 0;
   int sKa = 0, sKk = 0, sKj = 0, sKth = 0;
@@ -171,6 +173,8 @@ void Stack::build() {
                                        std::exp(opt_.spread.rs * zr),
                                        std::exp(opt_.spread.gsh * zg), age);
       p.k.rth /= opt_.cooling;
+      p.gth = 1.0 / p.k.rth;
+      p.gc = 1.0 / type_.thermal.rthCoupling;
       plates_.push_back(p);
     }
 }
@@ -285,7 +289,7 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     const double vt = (x[p.a] - x[p.kk]) * inv;
     const double uj = x[p.j], ut = x[p.t], th = x[p.th], f = x[p.f];
     evaluateLimited(p.k, ambient_, ctx, vt, uj, ut, th, f, p.cell, st, &p.cache);
-    const double gth = 1.0 / p.k.rth;
+    const double gth = p.gth;
     s.i[p.a] += st.is;
     s.i[p.kk] -= st.is;
     s.i[p.j] += st.ib + st.it - st.is;
@@ -297,7 +301,7 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     s.i[p.th] += gth * th - st.p;
     s.q[p.th] += p.k.cth * th;
     if (p.neighbour >= 0) {
-      const double gc = 1.0 / type_.thermal.rthCoupling, flow = gc * (th - x[p.neighbour]);
+      const double gc = p.gc, flow = gc * (th - x[p.neighbour]);
       s.i[p.th] += flow;
       s.i[p.neighbour] -= flow;
       if (s.jacobian) p.coupling.add(s.G, gc);

@@ -179,17 +179,21 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
                               : f == Formula::Bdf2 ? (4.0 / 3.0) * h * h * h
                                                    : h * h;
       order = third && f != Formula::Euler ? 2 : 1;
+      // Reciprocal time differences once per step, not per unknown.
+      const double r01 = 1.0 / (t0 - t1), r12 = 1.0 / (t1 - t2), r02 = 1.0 / (t0 - t2);
+      const double r23 = third ? 1.0 / (t2 - t3) : 0.0, r13 = third ? 1.0 / (t1 - t3) : 0.0;
+      const double r03 = third ? 1.0 / (t0 - t3) : 0.0;
       for (int k = 0; k < n; ++k) {
         const auto uk = static_cast<std::size_t>(k);
         const double q0 = qNew[uk], q1 = history.q[0][uk], q2 = history.q[1][uk];
-        const double d01 = (q0 - q1) / (t0 - t1), d12 = (q1 - q2) / (t1 - t2);
-        const double dd2 = (d01 - d12) / (t0 - t2);
+        const double d01 = (q0 - q1) * r01, d12 = (q1 - q2) * r12;
+        const double dd2 = (d01 - d12) * r02;
         double dd;
         if (third && order == 2) {
           const double q3 = history.q[2][uk];
-          const double d23 = (q2 - q3) / (t2 - t3);
-          const double dd2b = (d12 - d23) / (t1 - t3);
-          dd = (dd2 - dd2b) / (t0 - t3);
+          const double d23 = (q2 - q3) * r23;
+          const double dd2b = (d12 - d23) * r13;
+          dd = (dd2 - dd2b) * r03;
         } else {
           dd = dd2;
         }

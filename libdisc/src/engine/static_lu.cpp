@@ -19,7 +19,12 @@ void StaticLu::clear() {
   ops_.clear();
   load_.clear();
   fill_.clear();
-  order_.clear();
+  levelEnd_.clear();
+  pivots_.clear();
+  scales_.clear();
+  lower_.clear();
+  upperSolve_.clear();
+  unitRows_.clear();
   lu_.clear();
   invPivot_.clear();
 }
@@ -92,14 +97,49 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
       load_[static_cast<std::size_t>(e)] =
           pos[static_cast<std::size_t>(pinv[static_cast<std::size_t>(rowIdx[e])])];
   }
-  // Columns in order of their depth in the elimination's dependency graph: columns of one depth
-  // are independent, so the processor overlaps one column's division with the next column's
-  // work instead of waiting for it as in pivot order, where each column often needs the last.
-  order_.resize(un);
-  for (int k = 0; k < n; ++k) order_[static_cast<std::size_t>(k)] = k;
-  std::stable_sort(order_.begin(), order_.end(), [&](int a, int b) {
-    return level[static_cast<std::size_t>(a)] < level[static_cast<std::size_t>(b)];
-  });
+  // The factorisation runs level by level, a level being the columns whose dependencies (the
+  // columns their U part reads) all lie in earlier levels: per level one flat pass of
+  // multiply-subtracts, one of reciprocal pivots and one of L scalings. Columns of a level are
+  // independent, so the processor overlaps their work, and no pass has a short inner loop whose
+  // exit the branch predictor would miss once per column.
+  const int levels = n > 0 ? *std::max_element(level.begin(), level.end()) + 1 : 0;
+  std::vector<std::vector<int>> byLevel(static_cast<std::size_t>(levels));
+  for (int k = 0; k < n; ++k)
+    byLevel[static_cast<std::size_t>(level[static_cast<std::size_t>(k)])].push_back(k);
+  std::vector<Op> columnOps;
+  columnOps.swap(ops_);
+  levelEnd_.clear();
+  pivots_.clear();
+  scales_.clear();
+  for (const auto& cols : byLevel) {
+    for (int k : cols)
+      for (int o = k > 0 ? opsEnd_[static_cast<std::size_t>(k) - 1] : 0;
+           o < opsEnd_[static_cast<std::size_t>(k)]; ++o)
+        ops_.push_back(columnOps[static_cast<std::size_t>(o)]);
+    for (int k : cols) {
+      pivots_.push_back(k);
+      for (int e = diag_[static_cast<std::size_t>(k)] + 1;
+           e < colStart_[static_cast<std::size_t>(k) + 1]; ++e)
+        scales_.push_back({e, k});
+    }
+    levelEnd_.push_back({static_cast<int>(ops_.size()), static_cast<int>(pivots_.size()),
+                         static_cast<int>(scales_.size())});
+  }
+  // Solve streams: L by columns in increasing order, U (rows scaled to a unit diagonal after
+  // each factorisation) by columns in decreasing order.
+  lower_.clear();
+  upperSolve_.clear();
+  unitRows_.clear();
+  for (int k = 0; k < n; ++k)
+    for (int e = diag_[static_cast<std::size_t>(k)] + 1;
+         e < colStart_[static_cast<std::size_t>(k) + 1]; ++e)
+      lower_.push_back({row_[static_cast<std::size_t>(e)], e, k});
+  for (int k = n - 1; k >= 0; --k)
+    for (int e = colStart_[static_cast<std::size_t>(k)]; e < diag_[static_cast<std::size_t>(k)];
+         ++e) {
+      upperSolve_.push_back({row_[static_cast<std::size_t>(e)], e, k});
+      unitRows_.push_back({e, row_[static_cast<std::size_t>(e)]});
+    }
   n_ = n;
   perm_.assign(p, p + n);
   qperm_.assign(q, q + n);
@@ -118,18 +158,21 @@ bool StaticLu::factor(const double* values) {
   for (int e : fill_) lu[e] = 0.0;
   const std::size_t nnz = load_.size();
   for (std::size_t e = 0; e < nnz; ++e) lu[load_[e]] = values[e];
-  const Op* ops = ops_.data();
-  const int* diag = diag_.data();
-  const int* colEnd = colStart_.data() + 1;
-  const int* opsEnd = opsEnd_.data();
   double* inv = invPivot_.data();
-  for (int k : order_) {
-    for (const Op *op = ops + (k > 0 ? opsEnd[k - 1] : 0), *end = ops + opsEnd[k]; op != end; ++op)
+  const Op* op = ops_.data();
+  const int* pivot = pivots_.data();
+  const Scale* scale = scales_.data();
+  const int* diag = diag_.data();
+  for (const LevelEnd& end : levelEnd_) {
+    for (const Op* last = ops_.data() + end.ops; op != last; ++op)
       lu[op->dst] -= lu[op->l] * lu[op->u];
-    const double r = 1.0 / lu[diag[k]];
-    inv[k] = r;
-    for (int e = diag[k] + 1; e < colEnd[k]; ++e) lu[e] *= r;
+    for (const int* last = pivots_.data() + end.pivots; pivot != last; ++pivot)
+      inv[*pivot] = 1.0 / lu[diag[*pivot]];
+    for (const Scale* last = scales_.data() + end.scales; scale != last; ++scale)
+      lu[scale->entry] *= inv[scale->column];
   }
+  // U's rows scaled to a unit diagonal: the solve then has no per-column division step.
+  for (const Scale& u : unitRows_) lu[u.entry] *= inv[u.column];
   // Pivot magnitudes in a separate pass, off the elimination's dependency chain.
   double smallest = HUGE_VAL, largest = 0.0;
   for (int k = 0; k < n_; ++k) {
@@ -149,21 +192,12 @@ bool StaticLu::factor(const double* values) {
 void StaticLu::solve(double* b) const {
   double* y = work_.data();
   const double* lu = lu_.data();
-  const int* row = row_.data();
-  const int* diag = diag_.data();
-  const int* colStart = colStart_.data();
   const double* inv = invPivot_.data();
   const int* perm = perm_.data();
   for (int k = 0; k < n_; ++k) y[k] = b[perm[k]];
-  for (int k = 0; k < n_; ++k) {  // L, unit diagonal
-    const double yk = y[k];
-    for (int e = diag[k] + 1; e < colStart[k + 1]; ++e) y[row[e]] -= lu[e] * yk;
-  }
-  for (int k = n_ - 1; k >= 0; --k) {  // U
-    const double yk = y[k] * inv[k];
-    y[k] = yk;
-    for (int e = colStart[k]; e < diag[k]; ++e) y[row[e]] -= lu[e] * yk;
-  }
+  for (const SolveOp& o : lower_) y[o.dst] -= lu[o.entry] * y[o.src];       // L, unit diagonal
+  for (int k = 0; k < n_; ++k) y[k] *= inv[k];                              // D
+  for (const SolveOp& o : upperSolve_) y[o.dst] -= lu[o.entry] * y[o.src];  // D^-1 U
   const int* qperm = qperm_.data();
   for (int k = 0; k < n_; ++k) b[qperm[k]] = y[k];
 }

@@ -27,7 +27,8 @@ class StaticLu {
   bool factor(const double* values);
   double pivotRatio() const { return pivotRatio_; }
 
-  /// Solves A x = b in place with the last factors.
+  /// Solves A x = b in place with the last factors (L unit lower, U scaled to unit diagonal, D
+  /// the pivots).
   void solve(double* b) const;
 
   /// Entries of L and U together (diagonal once) and multiply-subtract operations per factor.
@@ -38,16 +39,29 @@ class StaticLu {
   struct Op {
     int dst, l, u;  // lu[dst] -= lu[l] * lu[u]
   };
+  struct Scale {
+    int entry, column;  // lu[entry] *= invPivot[column]
+  };
+  struct LevelEnd {
+    int ops, pivots, scales;  // ends of one level's passes
+  };
+  struct SolveOp {
+    int dst, entry, src;  // y[dst] -= lu[entry] * y[src]
+  };
   int n_ = 0;
   std::vector<int> perm_, qperm_;  // p and q of build()
   std::vector<int> colStart_;      // per column: U entries, then the diagonal, then L entries
   std::vector<int> diag_;          // position of each column's diagonal
   std::vector<int> row_;           // row (in B) of each factor entry
-  std::vector<int> opsEnd_;        // end of each column's operations in ops_
+  std::vector<int> opsEnd_;        // end of each column's operations (while building)
   std::vector<Op> ops_;
-  std::vector<int> load_;   // position in lu_ of each value of A, in CSC order
-  std::vector<int> fill_;   // positions in lu_ that no value of A lands on
-  std::vector<int> order_;  // columns in the order the factorisation computes them
+  std::vector<int> load_;  // position in lu_ of each value of A, in CSC order
+  std::vector<int> fill_;  // positions in lu_ that no value of A lands on
+  std::vector<LevelEnd> levelEnd_;
+  std::vector<int> pivots_;      // columns, level by level
+  std::vector<Scale> scales_;    // L entries, level by level
+  std::vector<Scale> unitRows_;  // U entries off the diagonal, with their row
+  std::vector<SolveOp> lower_, upperSolve_;
   std::vector<double> lu_;
   std::vector<double> invPivot_;
   mutable std::vector<double> work_;

@@ -693,10 +693,18 @@ class Builder {
               error(tok.valueWhere, "reltol must lie between 0 and 0.1");
             else if (v)
               a.transient.tol.reltol = *v;
+          } else if (tok.key == "abstol") {
+            // One absolute floor for voltages (V) and currents (A): below about 1e-6 relative
+            // accuracy it, not reltol, sets the error.
+            auto v = number(tok.value, Dim::None, tok.valueWhere);
+            if (v && (*v <= 0.0 || *v > 1e-3))
+              error(tok.valueWhere, "abstol must lie above 0 and at most 1e-3");
+            else if (v)
+              a.transient.tol.voltage = a.transient.tol.current = *v;
           } else {
             error(tok.where, fmt::format("run transient has no parameter '{}'{}", tok.key,
                                          didYouMean(tok.key, {"stop", "max-step", "method", "start",
-                                                              "reltol"})));
+                                                              "reltol", "abstol"})));
           }
         }
         if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");

@@ -29,6 +29,9 @@ constexpr double kExpLimitCurrent = 1e4;  // A, where the forward exponential tu
 // The laws are evaluated within this temperature range. Beyond it the plate has long failed
 // (selenium melts near 490 K); the clamp keeps Newton iterates and runaways finite.
 constexpr double kLawTmin = 200.0, kLawTmax = 700.0;
+// exp(-40) = 4e-18 is lost to rounding next to 1: the forward exponential is not evaluated
+// below that.
+constexpr double kNegligibleExponent = 40.0;
 
 }  // namespace
 
@@ -169,7 +172,12 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   // Overflow guard only: the log of the limit ratio is taken at t0 (precomputed), not at T.
   const double ulimit = nvt * k.expLimitLog;
   double ex, dEx;
-  limitedExp(uj, nvt, ulimit, ex, dEx);
+  if (uj < -kNegligibleExponent * nvt) {
+    ex = 0.0;  // below 4e-18 of the "- 1" it joins: the reverse-biased half of a bridge's plates
+    dEx = 0.0;
+  } else {
+    limitedExp(uj, nvt, ulimit, ex, dEx);
+  }
   // d(ex)/dT at fixed uj: nvt grows with T, so exp(uj/nvt) falls.
   const double dExDT = -(uj <= ulimit ? ex * uj / nvt : dEx * uj) * invT * tSlope;
   const double em1 = ex - 1.0;
