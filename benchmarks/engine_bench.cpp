@@ -25,12 +25,7 @@ void Ladder(benchmark::State& st) {
       st, [n] { return disc::reference::diodeLadder(n); }, 0.02, disc::Method::Bdf2, "v:n1");
 }
 // At least two seconds each, so that the 10000-diode ladder, too, runs several times.
-BENCHMARK(Ladder)
-    ->Arg(10)
-    ->Arg(100)
-    ->Arg(1000)
-    ->Arg(10000)
-    ->MinTime(2.0)
-    ->Unit(benchmark::kMillisecond);
+BENCHMARK(Ladder)->Arg(10)->Arg(100)->Arg(1000)->Arg(10000)->MinTime(2.0)->Unit(
+    benchmark::kMillisecond);
 
 }  // namespace

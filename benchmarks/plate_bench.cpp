@@ -83,11 +83,13 @@ BENCHMARK(SeleniumBridgeOneSecond)->Arg(0)->Arg(1)->Unit(benchmark::kMillisecond
 
 }  // namespace
 
-// The sparse LU of the per-plate selenium bridge's Jacobian (103 unknowns): one refactorisation
-// in the kept pivot order plus one solve, as a Newton iteration does them.
+// The sparse LU of the selenium bridge's Jacobian (per-plate 103 unknowns, lumped 23): one
+// refactorisation in the kept pivot order plus one solve, as a Newton iteration does them.
 void SeleniumBridgeLu(benchmark::State& st) {
   disc::reference::SeleniumBridge spec;
-  spec.stack.mode = disc::StackMode::PerPlate;
+  const bool lumped = st.range(0) == 1;
+  st.SetLabel(lumped ? "lumped" : "per-plate");
+  spec.stack.mode = lumped ? disc::StackMode::Lumped : disc::StackMode::PerPlate;
   disc::Circuit c = disc::reference::seleniumBridge(spec);
   disc::detail::System sys(c);
   std::vector<double> x(static_cast<std::size_t>(sys.size()) + 1, 0.0), xdot(x.size(), 0.0);
@@ -109,4 +111,4 @@ void SeleniumBridgeLu(benchmark::State& st) {
   st.counters["unknowns"] = sys.size();
   st.counters["full_factorizations"] = static_cast<double>(ls.fullFactorizations());
 }
-BENCHMARK(SeleniumBridgeLu);
+BENCHMARK(SeleniumBridgeLu)->Arg(0)->Arg(1);

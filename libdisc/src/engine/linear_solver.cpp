@@ -90,12 +90,26 @@ void LinearSolver::factor(const System& sys) {
   }
   // Reuse the pivot order while the factors stay about as well conditioned as when the pivots
   // were chosen; when a diode switching changes the magnitudes, search pivots again.
-  if (useProgram_) {
+  if (repivot_) {
+    repivot_ = false;
+  } else if (useProgram_) {
     if (program_.factor(J.valuePtr()) && program_.pivotRatio() > 1e-3 * rcondFull_) return;
   } else if (klu_.hasNumeric() && klu_.refactorize(J) && klu_.rcond() > 1e-3 * rcondFull_) {
     return;
   }
   fullFactor(sys);
+}
+
+void LinearSolver::factor(System& sys, double a0, double gmin) {
+  if (useProgram_ && !repivot_) {
+    if (gminSlots_.empty())
+      for (int k : sys.nodeRows()) gminSlots_.push_back(sys.diagonalSlot(k));
+    if (program_.factor(sys.G.data(), sys.C.data(), a0, gminSlots_, gmin) &&
+        program_.pivotRatio() > 1e-3 * rcondFull_)
+      return;
+  }
+  sys.assemble(a0, gmin);
+  factor(sys);
 }
 
 void LinearSolver::solve(double* rhs, int n) {

@@ -34,6 +34,10 @@ class LinearSolver {
   /// Factors the system's current Jacobian values; throws SingularCircuitError naming the
   /// unknown where the pivot vanished.
   void factor(const System& sys);
+  /// Factors G + a0 C + gmin (on node rows) from the system's last Jacobian evaluation. In the
+  /// kept pivot order this goes straight into the factors; otherwise it assembles the matrix
+  /// first.
+  void factor(System& sys, double a0, double gmin);
   /// Solves J dx = rhs in place (size n).
   void solve(double* rhs, int n);
   /// Full factorisations and refactorisations so far.
@@ -44,13 +48,18 @@ class LinearSolver {
   double factoredA0() const { return factoredA0_; }
   void setFactoredA0(double a0) { factoredA0_ = a0; }
   bool hasFactors() const { return analyzed_; }
+  /// The next factorisation searches pivots afresh (after a failed Newton solve: the kept
+  /// pivot order may have lost accuracy since a junction switched).
+  void repivot() { repivot_ = true; }
 
  private:
   Klu klu_;
   StaticLu program_;         // refactorisation in KLU's last pivot order
   bool useProgram_ = false;  // the current factors are the program's (else KLU's)
   std::vector<int> p_, q_, pNew_, qNew_;
+  std::vector<int> gminSlots_;  // diagonal slots of node rows
   bool analyzed_ = false;
+  bool repivot_ = false;
   double rcondFull_ = 0.0;   // condition estimate at the last full factorisation
   double factoredA0_ = 0.0;  // a0 of the factors; negative: not to be reused
   long full_ = 0;

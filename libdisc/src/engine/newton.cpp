@@ -64,6 +64,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   // Updates growing geometrically (kRise or more, several iterations in a row) mean divergence.
   constexpr double kRise = 1.2;
   double previousMeasure = std::numeric_limits<double>::infinity();
+  double previousSettle = std::numeric_limits<double>::infinity();  // junctions, last iteration
   int rises = 0;
   for (int it = 0; it < settings.maxIterations; ++it) {
     settle = 0.0;
@@ -77,8 +78,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     for (int k = 0; k < n; ++k) finite = finite && std::isfinite(f[static_cast<std::size_t>(k)]);
     if (!finite) break;
     if (!chord) {
-      sys.assemble(a0, settings.gmin);
-      ls.factor(sys);
+      ls.factor(sys, a0, settings.gmin);
       ls.setFactoredA0(-1.0);  // not reusable until this solve converges
       factored = true;
       ++stats.factorizations;
@@ -102,7 +102,11 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     // Converged: this update within tolerance on every unknown and every junction settled (the
     // junctions report the previous update's movement).
     bool small = measure <= 1.0 && settle <= 1.0;
-    if (!small && settings.predictConvergence && it > 0 && std::isfinite(settle)) {
+    // Only where the last two updates are both free of junction limiting: after a limited
+    // (wild) update their ratio says nothing about the contraction, and a tiny ratio would
+    // accept an iterate far from the solution.
+    if (!small && settings.predictConvergence && it > 0 && std::isfinite(settle) &&
+        std::isfinite(previousSettle)) {
       // Or converging fast enough that the iterate just formed is within tolerance: with the
       // contraction rate rho of the last two updates, the remaining error is about
       // rho / (1 - rho) times this update (the test of BDF codes, e.g. SUNDIALS IDA), and the
@@ -119,7 +123,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     if (small) {
       ctx.limits = nullptr;
       if (settings.linearizeLastUpdate) {
-        sys.advanceAlongJacobian(dx.data());
+        sys.advanceCharges(dx.data());
       } else {
         sys.evaluate(ctx, false);
         ++stats.evaluations;
@@ -132,8 +136,12 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     // to round-off at a long step) will not recover; a shorter step will.
     rises = measure > kRise * previousMeasure ? rises + 1 : 0;
     previousMeasure = measure;
+    previousSettle = settle;
     if (settings.stopOnDivergence && rises >= 3 && measure > 1.0) break;
   }
+  // Failed: search pivots afresh for the next attempt (a shorter step) rather than trust an
+  // order chosen before the junctions switched.
+  ls.repivot();
   // Name the equation furthest from balance at the last iterate.
   ctx.limits = nullptr;
   sys.evaluate(ctx, false);

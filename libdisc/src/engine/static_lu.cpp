@@ -158,6 +158,22 @@ bool StaticLu::factor(const double* values) {
   for (int e : fill_) lu[e] = 0.0;
   const std::size_t nnz = load_.size();
   for (std::size_t e = 0; e < nnz; ++e) lu[load_[e]] = values[e];
+  return eliminate();
+}
+
+bool StaticLu::factor(const double* g, const double* c, double a0,
+                      const std::vector<int>& shiftSlots, double shift) {
+  double* lu = lu_.data();
+  for (int e : fill_) lu[e] = 0.0;
+  const std::size_t nnz = load_.size();
+  for (std::size_t e = 0; e < nnz; ++e) lu[load_[e]] = g[e] + a0 * c[e];
+  if (shift != 0.0)
+    for (int slot : shiftSlots) lu[load_[static_cast<std::size_t>(slot)]] += shift;
+  return eliminate();
+}
+
+bool StaticLu::eliminate() {
+  double* lu = lu_.data();
   double* inv = invPivot_.data();
   const Op* op = ops_.data();
   const int* pivot = pivots_.data();
@@ -175,13 +191,15 @@ bool StaticLu::factor(const double* values) {
   for (const Scale& u : unitRows_) lu[u.entry] *= inv[u.column];
   // Pivot magnitudes in a separate pass, off the elimination's dependency chain.
   double smallest = HUGE_VAL, largest = 0.0;
+  bool regular = true;
   for (int k = 0; k < n_; ++k) {
     const double mag = std::abs(inv[k]);  // 1 / |pivot|
+    // A zero pivot gives an infinite reciprocal, an overflow a zero one, a NaN value a NaN.
+    regular = regular && mag > 0.0 && mag < HUGE_VAL;
     smallest = std::min(smallest, mag);
     largest = std::max(largest, mag);
   }
-  // A zero pivot gives an infinite reciprocal, an overflow a zero or NaN one.
-  if (!(largest < HUGE_VAL) || !(smallest > 0.0)) {
+  if (!regular) {
     pivotRatio_ = 0.0;
     return false;
   }

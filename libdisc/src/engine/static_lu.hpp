@@ -25,6 +25,10 @@ class StaticLu {
   /// pivot is zero or not finite. pivotRatio() is then the smallest over the largest pivot
   /// magnitude (KLU's cheap reciprocal condition estimate, comparable with its rcond).
   bool factor(const double* values);
+  /// The same for the values g + a0 c (in the pattern's CSC order), plus `shift` on the
+  /// entries at `shiftSlots` (CSC positions): the engine's G + a0 C + gmin without assembling.
+  bool factor(const double* g, const double* c, double a0, const std::vector<int>& shiftSlots,
+              double shift);
   double pivotRatio() const { return pivotRatio_; }
 
   /// Solves A x = b in place with the last factors (L unit lower, U scaled to unit diagonal, D
@@ -36,6 +40,7 @@ class StaticLu {
   std::size_t operations() const { return ops_.size(); }
 
  private:
+  bool eliminate();
   struct Op {
     int dst, l, u;  // lu[dst] -= lu[l] * lu[u]
   };

@@ -169,16 +169,14 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
   }
 }
 
-void System::advanceAlongJacobian(const double* dx) {
+void System::advanceCharges(const double* dx) {
   const int* colStart = jac_.outerIndexPtr();
   const int* row = jac_.innerIndexPtr();
   for (int col = 0; col < n_; ++col) {
     const double d = dx[col];
     if (d == 0.0) continue;
-    for (int e = colStart[col]; e < colStart[col + 1]; ++e) {
-      i[static_cast<std::size_t>(row[e])] += G[static_cast<std::size_t>(e)] * d;
+    for (int e = colStart[col]; e < colStart[col + 1]; ++e)
       q[static_cast<std::size_t>(row[e])] += C[static_cast<std::size_t>(e)] * d;
-    }
   }
 }
 
