@@ -90,7 +90,6 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.reuseAcrossSolves = true;
   ns.stopOnDivergence = true;
   ns.predictConvergence = true;
-  ns.linearizeLastUpdate = true;
   NewtonWorkspace work;
   ns.workspace = &work;
 

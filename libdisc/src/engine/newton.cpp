@@ -122,12 +122,8 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
                       : measure;
     if (small) {
       ctx.limits = nullptr;
-      if (settings.linearizeLastUpdate) {
-        sys.advanceCharges(dx.data());
-      } else {
-        sys.evaluate(ctx, false);
-        ++stats.evaluations;
-      }
+      sys.evaluate(ctx, false);
+      ++stats.evaluations;
       if (ls.factoredA0() < 0.0) ls.setFactoredA0(a0);  // factored during this solve
       out.converged = true;
       return out;

@@ -35,11 +35,6 @@ struct NewtonSettings {
   /// Also accept an iterate that the contraction of the last two updates shows to be within
   /// tolerance, without spending an iteration to confirm it.
   bool predictConvergence = false;
-  /// On convergence, carry the charges to the last iterate along the last Jacobian
-  /// (second-order accurate in an update already within tolerance) instead of evaluating every
-  /// device once more, as BDF codes accept their last iterate. The currents i then stay those
-  /// of the previous iterate (the transient uses only the charges).
-  bool linearizeLastUpdate = false;
   NewtonWorkspace* workspace = nullptr;  ///< optional; a local one otherwise
 };
 
@@ -51,7 +46,7 @@ struct NewtonOutcome {
 };
 
 /// Solves in place. ctx.x must point at x. On success the system's i and q hold their values at
-/// the converged x (q only, to first order, with linearizeLastUpdate). `a0` and `history` give the
+/// the converged x. `a0` and `history` give the
 /// integration formula's d/dt q = a0 q + history (a0 = 0 and history = nullptr for DC).
 NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x, EvalContext ctx,
                           double a0, const double* history, const NewtonSettings& settings,

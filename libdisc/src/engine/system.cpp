@@ -169,17 +169,6 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
   }
 }
 
-void System::advanceCharges(const double* dx) {
-  const int* colStart = jac_.outerIndexPtr();
-  const int* row = jac_.innerIndexPtr();
-  for (int col = 0; col < n_; ++col) {
-    const double d = dx[col];
-    if (d == 0.0) continue;
-    for (int e = colStart[col]; e < colStart[col + 1]; ++e)
-      q[static_cast<std::size_t>(row[e])] += C[static_cast<std::size_t>(e)] * d;
-  }
-}
-
 void System::assemble(double a0, double gmin) {
   double* v = jac_.valuePtr();
   const int nz = nnz();

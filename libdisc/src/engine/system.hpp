@@ -43,9 +43,6 @@ class System {
 
   /// Evaluates every device into i, q (and G, C when jacobian).
   void evaluate(const EvalContext& ctx, bool jacobian);
-  /// q += C dx with the last evaluated C: the first-order update of the charges for a small
-  /// step dx (size n + 1). The currents i are left at the last evaluation.
-  void advanceCharges(const double* dx);
   /// J = G + a0 C, plus gmin on the diagonal of node rows; values into the sparse matrix.
   void assemble(double a0, double gmin);
   /// Total Newton limiting cells of all devices.
