@@ -56,15 +56,22 @@ struct History {
   std::array<std::vector<double>, 3> q;
   int count = 0;
   void reset(double time, const std::vector<double>& qn) {
+    q[0] = qn;
+    restartAt(time);
+  }
+  /// Forgets all but the newest point.
+  void restartAt(double time) {
     count = 1;
     t[0] = time;
-    q[0] = qn;
   }
-  void push(double time, const std::vector<double>& qn) {
+  /// Takes qn's storage as the newest point (qn is left with the oldest point's, to be
+  /// overwritten): no copy of a circuit-sized vector per step.
+  void push(double time, std::vector<double>& qn) {
     std::rotate(t.rbegin(), t.rbegin() + 1, t.rend());
     std::rotate(q.rbegin(), q.rbegin() + 1, q.rend());
     t[0] = time;
-    q[0] = qn;
+    q[0].swap(qn);
+    if (qn.size() != q[0].size()) qn.assign(q[0].size(), 0.0);
     count = std::min(count + 1, 3);
   }
 };
@@ -94,18 +101,17 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.workspace = &work;
 
   std::vector<double> xdot(N, 0.0), xPrev = x, xPrev2 = x, xNew(N, 0.0), hist(N, 0.0);
-  std::vector<double> qn(N, 0.0), qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);
+  std::vector<double> qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);
   EvalContext ctx;
   ctx.x = x.data();
   ctx.xdot = xdot.data();
   ctx.time = 0.0;
   sys.evaluate(ctx, true);
   ++stats.evaluations;
-  qn = sys.q;
   if (o.recordFrom <= 0.0) rec.record(ctx);
 
-  History history;
-  history.reset(0.0, qn);
+  History history;  // history.q[0] is the charge at the current time t
+  history.reset(0.0, sys.q);
   double t = 0.0, hPrev = 0.0;
   double h = o.initialStep > 0.0 ? o.initialStep : std::min(hmax, o.stop) * 1e-3;
   bool restart = true;
@@ -127,6 +133,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
                                  : o.method == Method::Bdf2                     ? Formula::Euler
                                                                                 : Formula::Trap);
     const Coefficients c = coefficients(f, h, hPrev);
+    const std::vector<double>& qn = history.q[0];
     for (std::size_t k = 0; k < N; ++k) {
       hist[k] = c.a1 * qn[k] + c.b * qdot[k];
       if (c.a2 != 0.0) hist[k] += c.a2 * history.q[1][k];
@@ -163,7 +170,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
             t, out.worstRow >= 0 ? sys.unknownName(out.worstRow) : "");
       continue;
     }
-    qNew = sys.q;
+    qNew.swap(sys.q);  // the next evaluation overwrites sys.q entirely
 
     // Truncation error on the charges, from divided differences including the new point.
     double errNorm = 0.0;
@@ -240,10 +247,9 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     xdot.swap(xdotNew);
     x[static_cast<std::size_t>(n)] = 0.0;
     xdot[static_cast<std::size_t>(n)] = 0.0;
-    qn = qNew;
     hPrev = h;
     t = hitsBreak ? tb : t + h;
-    history.push(t, qn);
+    history.push(t, qNew);
     ++stats.acceptedSteps;
     ctx.x = x.data();
     ctx.xdot = xdot.data();
@@ -269,7 +275,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       // A corner in the excitation: restart at first order from the breakpoint.
       restart = true;
       errAccepted = 0.0;
-      history.reset(t, qn);
+      history.restartAt(t);
       std::fill(qdot.begin(), qdot.end(), 0.0);
       h = std::min(h, std::max(1e-3 * hmax, 100.0 * hmin));
     }

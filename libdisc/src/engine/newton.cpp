@@ -32,8 +32,11 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   NewtonWorkspace& work = settings.workspace ? *settings.workspace : local;
   std::vector<double>& f = work.f;
   std::vector<double>& dx = work.dx;
-  f.assign(static_cast<std::size_t>(n) + 1, 0.0);
-  dx.assign(static_cast<std::size_t>(n) + 1, 0.0);
+  // Every entry below n is written before it is read; only the ground cell needs clearing.
+  f.resize(static_cast<std::size_t>(n) + 1);
+  dx.resize(static_cast<std::size_t>(n) + 1);
+  f[static_cast<std::size_t>(n)] = 0.0;
+  dx[static_cast<std::size_t>(n)] = 0.0;
   NewtonOutcome out;
   ctx.x = x.data();
   std::vector<double>& limits = work.limits;
