@@ -20,6 +20,7 @@ void requireJacobian(Circuit& c, double spread, double offset = 0.0, double t = 
     // Finite differences carry rounding near 1e-7 relative; a wrong sign or factor shows as O(1).
     CHECK(j.maxErrorG < 1e-5);
     CHECK(j.maxErrorC < 1e-5);
+    CHECK(j.maxErrorChargesOnly < 1e-14);
   }
 }
 

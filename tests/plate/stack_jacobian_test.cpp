@@ -43,6 +43,7 @@ TEST_CASE("Stack Jacobians match finite differences", "[plate][jacobian]") {
                   << ": worst " << j.worst);
         CHECK(j.maxErrorG < 1e-5);
         CHECK(j.maxErrorC < 1e-5);
+        CHECK(j.maxErrorChargesOnly < 1e-14);
       }
     }
   }

@@ -140,6 +140,10 @@ class Device {
   virtual void declare(PatternBuilder& pb) = 0;
   /// Adds i, q and (if s.jacobian) G, C at ctx.x.
   virtual void evaluate(const EvalContext& ctx, Stamp& s) const = 0;
+  /// Adds at least q at ctx.x (i may be added too; G and C are not asked for). The transient
+  /// needs only the charges of an accepted Newton iterate; a device whose charges are cheaper
+  /// than its currents overrides this (default: evaluate()).
+  virtual void evaluateCharges(const EvalContext& ctx, Stamp& s) const { evaluate(ctx, s); }
 
   /// Terminal pairs that conduct at DC (for the floating-node check before simulation).
   virtual std::vector<std::pair<int, int>> dcPaths() const;

@@ -12,6 +12,9 @@ struct JacobianCheck {
   double maxErrorG = 0.0;  ///< largest relative error over the entries of G = di/dx
   double maxErrorC = 0.0;  ///< largest relative error over the entries of C = dq/dx
   std::string worst;       ///< "G[row, col]" or "C[row, col]" with unknown names
+  /// Largest relative difference between the charges of a full evaluation and of the
+  /// charges-only evaluation the transient uses at accepted iterates (rounding: about 1e-16).
+  double maxErrorChargesOnly = 0.0;
 };
 
 /// Unknown names of a circuit in solution-vector order (nodes first, then internals).

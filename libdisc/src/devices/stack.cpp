@@ -346,6 +346,20 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
   }
 }
 
+void Stack::evaluateCharges(const EvalContext& ctx, Stamp& s) const {
+  const double* x = ctx.x;
+  for (const Plate& p : plates_) {
+    double q, c;
+    if (p.k.cj0 > 0.0) {
+      detail::depletionCharge(x[p.j], p.k.depletion, q, c);
+      s.q[p.j] += q;
+    }
+    s.q[p.t] += p.k.ct * x[p.t];
+    s.q[p.th] += p.k.cth * x[p.th];
+    s.q[p.f] += x[p.f];
+  }
+}
+
 void Stack::initialState(double* x) const {
   for (const Plate& p : plates_) {
     x[p.f] = p.f0;

@@ -97,6 +97,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.reuseAcrossSolves = true;
   ns.stopOnDivergence = true;
   ns.predictConvergence = true;
+  ns.finalChargesOnly = true;
   NewtonWorkspace work;
   ns.workspace = &work;
 

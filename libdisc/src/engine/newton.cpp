@@ -125,7 +125,10 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
                       : measure;
     if (small) {
       ctx.limits = nullptr;
-      sys.evaluate(ctx, false);
+      if (settings.finalChargesOnly)
+        sys.evaluateCharges(ctx);
+      else
+        sys.evaluate(ctx, false);
       ++stats.evaluations;
       if (ls.factoredA0() < 0.0) ls.setFactoredA0(a0);  // factored during this solve
       out.converged = true;

@@ -35,6 +35,9 @@ struct NewtonSettings {
   /// Also accept an iterate that the contraction of the last two updates shows to be within
   /// tolerance, without spending an iteration to confirm it.
   bool predictConvergence = false;
+  /// At the accepted iterate evaluate only the charges (the transient needs nothing else);
+  /// sys.i then holds the currents of the previous iterate.
+  bool finalChargesOnly = false;
   NewtonWorkspace* workspace = nullptr;  ///< optional; a local one otherwise
 };
 

@@ -169,6 +169,12 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
   }
 }
 
+void System::evaluateCharges(const EvalContext& ctx) {
+  std::fill(q.begin(), q.end(), 0.0);
+  Stamp s{i.data(), q.data(), G.data(), C.data(), false};
+  for (const Device* d : devices_) d->evaluateCharges(ctx, s);
+}
+
 void System::assemble(double a0, double gmin) {
   double* v = jac_.valuePtr();
   const int nz = nnz();

@@ -43,6 +43,8 @@ class System {
 
   /// Evaluates every device into i, q (and G, C when jacobian).
   void evaluate(const EvalContext& ctx, bool jacobian);
+  /// Evaluates every device's charges into q (i is left undefined).
+  void evaluateCharges(const EvalContext& ctx);
   /// J = G + a0 C, plus gmin on the diagonal of node rows; values into the sparse matrix.
   void assemble(double a0, double gmin);
   /// Total Newton limiting cells of all devices.

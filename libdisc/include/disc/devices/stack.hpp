@@ -68,6 +68,8 @@ class Stack : public DeviceBase<Stack> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  /// Barrier (Mott-Schottky), trap, heat and forming "charges" only: no exponentials.
+  void evaluateCharges(const EvalContext& ctx, Stamp& s) const override;
   void initialState(double* x) const override;
   int limitCells() const override;
   std::vector<std::string> probes() const override;
