@@ -212,6 +212,19 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   }
 }
 
+void Diode::evaluateCharges(const EvalContext& ctx, Stamp& s) const {
+  // A diffusion charge follows the current: then the junction law is needed after all.
+  if (p_.tt != 0.0) {
+    evaluate(ctx, s);
+    return;
+  }
+  double q, c;
+  charge(ctx.x[j_] - ctx.x[k_], 0.0, 0.0, q, c);  // depletion charge only
+  s.q[j_] += q;
+  s.q[k_] -= q;
+  if (p_.rth > 0.0) s.q[th_] += p_.cth * ctx.x[th_];
+}
+
 std::string Diode::probeUnit(int k) const {
   static const char* units[] = {"A", "W", "V", "K"};
   return units[k];

@@ -43,6 +43,8 @@ class Diode : public DeviceBase<Diode> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  /// Depletion and heat charges without the junction law when there is no transit time.
+  void evaluateCharges(const EvalContext& ctx, Stamp& s) const override;
   int limitCells() const override { return 1; }
   std::vector<std::string> probes() const override { return {"i", "p", "vj", "temp"}; }
   std::string probeUnit(int k) const override;
