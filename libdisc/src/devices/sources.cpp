@@ -41,7 +41,11 @@ void VoltageSource::evaluate(const EvalContext& ctx, Stamp& s) const {
   s.i[p_] -= i;
   s.i[n_] += i;
   // v_p - v_n = V(t) - R i - L di/dt.
-  s.i[br_] += ctx.x[p_] - ctx.x[n_] - ctx.sourceScale * w_.value(ctx.time) + r_ * i;
+  if (ctx.time != memoTime_) {
+    memoValue_ = w_.value(ctx.time);
+    memoTime_ = ctx.time;
+  }
+  s.i[br_] += ctx.x[p_] - ctx.x[n_] - ctx.sourceScale * memoValue_ + r_ * i;
   s.q[br_] += l_ * i;
   if (!s.jacobian) return;
   s.G[spb_] -= 1.0;

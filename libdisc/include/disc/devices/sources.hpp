@@ -1,6 +1,8 @@
 // Independent sources: voltage (with optional series R and L: mains, battery) and current.
 #pragma once
 
+#include <limits>
+
 #include "disc/device.hpp"
 #include "disc/waveform.hpp"
 
@@ -16,7 +18,10 @@ class VoltageSource : public DeviceBase<VoltageSource> {
                 double inductance = 0.0);
   std::string_view kind() const override { return "voltage source"; }
   const Waveform& waveform() const { return w_; }
-  void setWaveform(Waveform w) { w_ = std::move(w); }
+  void setWaveform(Waveform w) {
+    w_ = std::move(w);
+    memoTime_ = std::numeric_limits<double>::quiet_NaN();
+  }
   double resistance() const { return r_; }
   double inductance() const { return l_; }
   void setImpedance(double ohm, double henry);
@@ -26,6 +31,10 @@ class VoltageSource : public DeviceBase<VoltageSource> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  /// The source inductance's flux only: no waveform evaluation.
+  void evaluateCharges(const EvalContext& ctx, Stamp& s) const override {
+    s.q[br_] += l_ * ctx.x[br_];
+  }
   bool definesVoltage() const override { return r_ == 0.0 && l_ == 0.0; }
   void breakpoints(double from, double to, std::vector<double>& out) const override {
     w_.breakpoints(from, to, out);
@@ -36,6 +45,8 @@ class VoltageSource : public DeviceBase<VoltageSource> {
  private:
   Waveform w_;
   double r_, l_;
+  // The waveform at the last time asked: every Newton iteration of a step asks the same time.
+  mutable double memoTime_ = std::numeric_limits<double>::quiet_NaN(), memoValue_ = 0.0;
   int p_ = 0, n_ = 0, br_ = 0;
   int spb_ = 0, snb_ = 0, sbp_ = 0, sbn_ = 0, sbb_ = 0;
 };
@@ -57,6 +68,7 @@ class CurrentSource : public DeviceBase<CurrentSource> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder&) override {}
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  void evaluateCharges(const EvalContext&, Stamp&) const override {}  // no charge
   std::vector<std::pair<int, int>> dcPaths() const override { return {}; }
   void breakpoints(double from, double to, std::vector<double>& out) const override {
     w_.breakpoints(from, to, out);

@@ -18,6 +18,7 @@ class Switch : public DeviceBase<Switch> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  void evaluateCharges(const EvalContext&, Stamp&) const override {}  // no charge
   void breakpoints(double from, double to, std::vector<double>& out) const override;
   double probe(int k, const EvalContext& ctx) const override;
 
