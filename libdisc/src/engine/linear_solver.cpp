@@ -27,6 +27,11 @@ bool Klu::permutations(int* p, int* q) {
                      nullptr, nullptr, nullptr, p, q, nullptr, nullptr, &m_common) != 0;
 }
 
+void Klu::releaseNumeric() {
+  if (m_numeric) klu_free_numeric(&m_numeric, &m_common);
+  m_factorizationIsOk = 0;
+}
+
 double Klu::rcond() {
   if (!m_numeric || !m_symbolic) return 0.0;
   klu_rcond(m_symbolic, m_numeric, &m_common);
@@ -70,6 +75,9 @@ void LinearSolver::adoptPivotOrder(const System& sys) {
   if (!program_.factor(J.valuePtr())) return;
   useProgram_ = true;
   rcondFull_ = program_.pivotRatio();
+  // KLU's own factors are not used while the program's serve; a new pivot search makes new
+  // ones. (Half the factor memory of a large circuit.)
+  klu_.releaseNumeric();
 }
 
 void LinearSolver::factor(const System& sys) {

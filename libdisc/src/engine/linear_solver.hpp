@@ -25,6 +25,8 @@ class Klu : public Eigen::KLU<Eigen::SparseMatrix<double>> {
   bool hasNumeric() const { return m_numeric != nullptr; }
   /// The row and column permutations of the last factorisation (pivot order included).
   bool permutations(int* p, int* q);
+  /// Frees the numeric factors (the symbolic analysis stays); factorize() makes new ones.
+  void releaseNumeric();
   /// Solves with the current factors in place (no temporary vector, unlike Eigen's solve()).
   bool solveInPlace(double* rhs, int n);
 };

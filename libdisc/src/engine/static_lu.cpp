@@ -15,7 +15,6 @@ void StaticLu::clear() {
   colStart_.clear();
   diag_.clear();
   row_.clear();
-  opsEnd_.clear();
   ops_.clear();
   load_.clear();
   fill_.clear();
@@ -32,14 +31,38 @@ void StaticLu::clear() {
 bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, const int* q) {
   clear();
   if (n <= 0) return false;
+  std::vector<Op> columnOps;
+  std::vector<int> opsEnd, level;
+  if (!symbolic(n, colPtr, rowIdx, p, q, columnOps, opsEnd, level)) {
+    clear();
+    return false;
+  }
+  scheduleByLevel(columnOps, opsEnd, level);
+  buildSolveStreams();
+  n_ = n;
+  perm_.assign(p, p + n);
+  qperm_.assign(q, q + n);
+  lu_.assign(row_.size(), 0.0);
+  std::vector<char> loaded(row_.size(), 0);
+  for (int e : load_) loaded[static_cast<std::size_t>(e)] = 1;
+  for (std::size_t e = 0; e < loaded.size(); ++e)
+    if (!loaded[e]) fill_.push_back(static_cast<int>(e));
+  invPivot_.assign(static_cast<std::size_t>(n), 0.0);
+  work_.assign(static_cast<std::size_t>(n), 0.0);
+  return true;
+}
+
+bool StaticLu::symbolic(int n, const int* colPtr, const int* rowIdx, const int* p, const int* q,
+                        std::vector<Op>& ops, std::vector<int>& opsEnd, std::vector<int>& level) {
   const auto un = static_cast<std::size_t>(n);
   std::vector<int> pinv(un);
   for (int k = 0; k < n; ++k) pinv[static_cast<std::size_t>(p[k])] = k;
   load_.assign(static_cast<std::size_t>(colPtr[n]), -1);
   colStart_.assign(un + 1, 0);
   diag_.assign(un, 0);
-  opsEnd_.assign(un, 0);
-  std::vector<int> mark(un, -1), pos(un, -1), upper, lower, level(un, 0);
+  opsEnd.assign(un, 0);
+  level.assign(un, 0);
+  std::vector<int> mark(un, -1), pos(un, -1), upper, lower;
   // Rows below the current column, visited in increasing order: the L-solve of a column needs
   // each earlier row final before it is used, and increasing order is a topological order.
   std::priority_queue<int, std::vector<int>, std::greater<>> pending;
@@ -68,10 +91,7 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
            e < colStart_[static_cast<std::size_t>(j) + 1]; ++e)
         reach(row_[static_cast<std::size_t>(e)]);
     }
-    if (!hasDiagonal) {
-      clear();
-      return false;
-    }
+    if (!hasDiagonal) return false;
     std::sort(lower.begin(), lower.end());
     const int start = static_cast<int>(row_.size());
     colStart_[static_cast<std::size_t>(k)] = start;
@@ -83,38 +103,39 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
       pos[static_cast<std::size_t>(row_[static_cast<std::size_t>(e)])] = e;
     diag_[static_cast<std::size_t>(k)] = start + static_cast<int>(upper.size());
     colStart_[static_cast<std::size_t>(k) + 1] = end;
+    int depth = 0;
     for (int j : upper) {
       const int uj = pos[static_cast<std::size_t>(j)];
       for (int e = diag_[static_cast<std::size_t>(j)] + 1;
            e < colStart_[static_cast<std::size_t>(j) + 1]; ++e)
-        ops_.push_back({pos[static_cast<std::size_t>(row_[static_cast<std::size_t>(e)])], e, uj});
+        ops.push_back({pos[static_cast<std::size_t>(row_[static_cast<std::size_t>(e)])], e, uj});
+      depth = std::max(depth, level[static_cast<std::size_t>(j)] + 1);
     }
-    opsEnd_[static_cast<std::size_t>(k)] = static_cast<int>(ops_.size());
-    int lv = 0;
-    for (int j : upper) lv = std::max(lv, level[static_cast<std::size_t>(j)] + 1);
-    level[static_cast<std::size_t>(k)] = lv;
+    opsEnd[static_cast<std::size_t>(k)] = static_cast<int>(ops.size());
+    level[static_cast<std::size_t>(k)] = depth;
     for (int e = colPtr[col]; e < colPtr[col + 1]; ++e)
       load_[static_cast<std::size_t>(e)] =
           pos[static_cast<std::size_t>(pinv[static_cast<std::size_t>(rowIdx[e])])];
   }
+  return true;
+}
+
+void StaticLu::scheduleByLevel(const std::vector<Op>& columnOps, const std::vector<int>& opsEnd,
+                               const std::vector<int>& level) {
   // The factorisation runs level by level, a level being the columns whose dependencies (the
   // columns their U part reads) all lie in earlier levels: per level one flat pass of
   // multiply-subtracts, one of reciprocal pivots and one of L scalings. Columns of a level are
   // independent, so the processor overlaps their work, and no pass has a short inner loop whose
   // exit the branch predictor would miss once per column.
+  const auto n = level.size();
   const int levels = n > 0 ? *std::max_element(level.begin(), level.end()) + 1 : 0;
   std::vector<std::vector<int>> byLevel(static_cast<std::size_t>(levels));
-  for (int k = 0; k < n; ++k)
-    byLevel[static_cast<std::size_t>(level[static_cast<std::size_t>(k)])].push_back(k);
-  std::vector<Op> columnOps;
-  columnOps.swap(ops_);
-  levelEnd_.clear();
-  pivots_.clear();
-  scales_.clear();
+  for (std::size_t k = 0; k < n; ++k)
+    byLevel[static_cast<std::size_t>(level[k])].push_back(static_cast<int>(k));
   for (const auto& cols : byLevel) {
     for (int k : cols)
-      for (int o = k > 0 ? opsEnd_[static_cast<std::size_t>(k) - 1] : 0;
-           o < opsEnd_[static_cast<std::size_t>(k)]; ++o)
+      for (int o = k > 0 ? opsEnd[static_cast<std::size_t>(k) - 1] : 0;
+           o < opsEnd[static_cast<std::size_t>(k)]; ++o)
         ops_.push_back(columnOps[static_cast<std::size_t>(o)]);
     for (int k : cols) {
       pivots_.push_back(k);
@@ -125,11 +146,12 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
     levelEnd_.push_back({static_cast<int>(ops_.size()), static_cast<int>(pivots_.size()),
                          static_cast<int>(scales_.size())});
   }
-  // Solve streams: L by columns in increasing order, U (rows scaled to a unit diagonal after
-  // each factorisation) by columns in decreasing order.
-  lower_.clear();
-  upperSolve_.clear();
-  unitRows_.clear();
+}
+
+void StaticLu::buildSolveStreams() {
+  // L by columns in increasing order, U (rows scaled to a unit diagonal after each
+  // factorisation) by columns in decreasing order.
+  const int n = static_cast<int>(diag_.size());
   for (int k = 0; k < n; ++k)
     for (int e = diag_[static_cast<std::size_t>(k)] + 1;
          e < colStart_[static_cast<std::size_t>(k) + 1]; ++e)
@@ -140,17 +162,6 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
       upperSolve_.push_back({row_[static_cast<std::size_t>(e)], e, k});
       unitRows_.push_back({e, row_[static_cast<std::size_t>(e)]});
     }
-  n_ = n;
-  perm_.assign(p, p + n);
-  qperm_.assign(q, q + n);
-  lu_.assign(row_.size(), 0.0);
-  std::vector<char> loaded(row_.size(), 0);
-  for (int e : load_) loaded[static_cast<std::size_t>(e)] = 1;
-  for (std::size_t e = 0; e < loaded.size(); ++e)
-    if (!loaded[e]) fill_.push_back(static_cast<int>(e));
-  invPivot_.assign(un, 0.0);
-  work_.assign(un, 0.0);
-  return true;
 }
 
 bool StaticLu::factor(const double* values) {

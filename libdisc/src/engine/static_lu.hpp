@@ -40,6 +40,13 @@ class StaticLu {
   std::size_t operations() const { return ops_.size(); }
 
  private:
+  struct Op;
+  /// Fill pattern, factor layout, load map and each column's operations and depth.
+  bool symbolic(int n, const int* colPtr, const int* rowIdx, const int* p, const int* q,
+                std::vector<Op>& ops, std::vector<int>& opsEnd, std::vector<int>& level);
+  void scheduleByLevel(const std::vector<Op>& columnOps, const std::vector<int>& opsEnd,
+                       const std::vector<int>& level);
+  void buildSolveStreams();
   bool eliminate();
   struct Op {
     int dst, l, u;  // lu[dst] -= lu[l] * lu[u]
@@ -58,7 +65,6 @@ class StaticLu {
   std::vector<int> colStart_;      // per column: U entries, then the diagonal, then L entries
   std::vector<int> diag_;          // position of each column's diagonal
   std::vector<int> row_;           // row (in B) of each factor entry
-  std::vector<int> opsEnd_;        // end of each column's operations (while building)
   std::vector<Op> ops_;
   std::vector<int> load_;  // position in lu_ of each value of A, in CSC order
   std::vector<int> fill_;  // positions in lu_ that no value of A lands on
