@@ -212,6 +212,11 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   }
 }
 
+double Diode::junctionStep(const EvalContext& ctx, const double* dx) const {
+  const double v = ctx.x[j_] - ctx.x[k_], dv = dx[j_] - dx[k_];
+  return std::abs(dv) / (ctx.reltol * std::max(std::abs(v), std::abs(v - dv)) + ctx.vabstol);
+}
+
 void Diode::evaluateCharges(const EvalContext& ctx, Stamp& s) const {
   // A diffusion charge follows the current: then the junction law is needed after all.
   if (p_.tt != 0.0) {

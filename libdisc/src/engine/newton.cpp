@@ -51,6 +51,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   // factorisation kept) is taken only when that iteration ended within kChordBelow of
   // convergence, where the Jacobian has barely moved, and only while chord steps still contract.
   constexpr double kChordBelow = 10.0;
+  constexpr double kChordDiscard = 1e4;  // a chord update this large (in tolerances) is discarded
   double lastMeasure = std::numeric_limits<double>::infinity();
   // The factors of G + a0' C left by the previous solve serve this one's first iteration when
   // that solve converged and a0'/a0 is within kA0Band of 1 (the chord iteration then contracts
@@ -67,7 +68,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   // Updates growing geometrically (kRise or more, several iterations in a row) mean divergence.
   constexpr double kRise = 1.2;
   double previousMeasure = std::numeric_limits<double>::infinity();
-  double previousSettle = std::numeric_limits<double>::infinity();  // junctions, last iteration
+  bool previousLimited = true;  // the last iteration's evaluation limited a junction
   int rises = 0;
   for (int it = 0; it < settings.maxIterations; ++it) {
     settle = 0.0;
@@ -93,6 +94,23 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     out.iterations = it + 1;
     for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
     if (!finite) break;
+    if (chord) {
+      // Factors kept from an earlier iterate or step can be far off after a junction switched:
+      // an update of thousands of tolerances of the present values is theirs, not the
+      // circuit's. Discard it and factorise afresh at the same iterate, rather than continue
+      // from a wild point where the update-based test can be fooled.
+      double reach = 0.0;
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        reach =
+            std::max(reach, std::abs(dx[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
+      }
+      if (reach > kChordDiscard) {
+        lastMeasure = std::numeric_limits<double>::infinity();
+        factored = false;
+        continue;
+      }
+    }
     double measure = 0.0;
     for (int k = 0; k < n; ++k) {
       const auto uk = static_cast<std::size_t>(k);
@@ -102,21 +120,26 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
       measure = std::max(measure, std::abs(step) / tol);
       x[uk] = xn;
     }
-    // Converged: this update within tolerance on every unknown and every junction settled (the
-    // junctions report the previous update's movement).
-    bool small = measure <= 1.0 && settle <= 1.0;
-    // Only where the last two updates are both free of junction limiting: after a limited
-    // (wild) update their ratio says nothing about the contraction, and a tiny ratio would
-    // accept an iterate far from the solution.
-    if (!small && settings.predictConvergence && it > 0 && std::isfinite(settle) &&
-        std::isfinite(previousSettle)) {
-      // Or converging fast enough that the iterate just formed is within tolerance: with the
-      // contraction rate rho of the last two updates, the remaining error is about
-      // rho / (1 - rho) times this update (the test of BDF codes, e.g. SUNDIALS IDA), and the
-      // junctions', one update behind, rho^2 / (1 - rho) times their movement.
+    // The junctions' movement in this same update (devices whose junction voltage is a
+    // difference of node voltages: those are large in a tall stack while the junction's is
+    // small, so the unknowns' measure does not cover it).
+    measure = std::max(measure, sys.junctionStep(ctx, dx.data()));
+    // An evaluation that limited a junction linearised the device elsewhere than at x.
+    const bool limited = !std::isfinite(settle);
+    // Converged: this update within tolerance on every unknown and every junction. Not on a
+    // chord step at the start of a solve in a circuit with junctions: factors kept from before
+    // a junction switched make the update small while the junction current is far off (a
+    // forward junction's huge conductance), and nothing yet shows their contraction.
+    const bool unrated = chord && it == 0 && sys.limitCells() > 0;
+    bool small = measure <= 1.0 && !limited && !unrated;
+    // Or converging fast enough that the iterate just formed is within tolerance: with the
+    // contraction rate rho of the last two updates, the remaining error is about
+    // rho / (1 - rho) times this update (the test of BDF codes, e.g. SUNDIALS IDA). Only where
+    // neither of the two evaluations limited a junction: after a limited (wild) update the
+    // ratio says nothing about the contraction.
+    if (!small && settings.predictConvergence && it > 0 && !limited && !previousLimited) {
       const double rho = measure / previousMeasure;
-      small = rho < kFastRate && measure * rho / (1.0 - rho) <= kPredictedBelow &&
-              settle * rho * rho / (1.0 - rho) <= kPredictedBelow;
+      small = rho < kFastRate && measure * rho / (1.0 - rho) <= kPredictedBelow;
     }
     // A chord step that did not at least halve the update: factorise afresh next time. (The
     // first iteration on the previous solve's factors has nothing to compare with.)
@@ -138,7 +161,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     // to round-off at a long step) will not recover; a shorter step will.
     rises = measure > kRise * previousMeasure ? rises + 1 : 0;
     previousMeasure = measure;
-    previousSettle = settle;
+    previousLimited = limited;
     if (settings.stopOnDivergence && rises >= 3 && measure > 1.0) break;
   }
   // Failed: search pivots afresh for the next attempt (a shorter step) rather than trust an

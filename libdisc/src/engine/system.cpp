@@ -106,6 +106,7 @@ System::System(Circuit& circuit) : circuit_(circuit) {
     b.internals = internals[k];
     b.limitCell = limitCells_;
     limitCells_ += devices_[k]->limitCells();
+    if (devices_[k]->limitCells() > 0) limiting_.push_back(devices_[k]);
     terminalIndex_[k] = b.terminals;
     devices_[k]->bind(b);
   }
@@ -173,6 +174,12 @@ void System::evaluateCharges(const EvalContext& ctx) {
   std::fill(q.begin(), q.end(), 0.0);
   Stamp s{i.data(), q.data(), G.data(), C.data(), false};
   for (const Device* d : devices_) d->evaluateCharges(ctx, s);
+}
+
+double System::junctionStep(const EvalContext& ctx, const double* dx) const {
+  double m = 0.0;
+  for (const Device* d : limiting_) m = std::max(m, d->junctionStep(ctx, dx));
+  return m;
 }
 
 void System::assemble(double a0, double gmin) {
