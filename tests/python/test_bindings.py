@@ -189,3 +189,12 @@ def test_an_interrupt_stops_a_long_run_cleanly():
         signal.signal(signal.SIGALRM, previous)
     # The module is still usable afterwards.
     assert small_supply().run_transient(stop=0.05).stats["accepted_steps"] > 0
+
+
+def test_absolute_tolerance_reaches_the_engine():
+    # abstol tightens the absolute floors of voltages and currents (docs/engine.md): the run
+    # takes more steps and settles on the same output within the default tolerance.
+    loose = small_supply().run_transient(stop=0.2, record=["v:b"], reltol=1e-6)
+    tight = small_supply().run_transient(stop=0.2, record=["v:b"], reltol=1e-6, abstol=1e-10)
+    assert tight.stats["accepted_steps"] > loose.stats["accepted_steps"]
+    assert tight["v:b"][-1] == pytest.approx(loose["v:b"][-1], rel=1e-3)

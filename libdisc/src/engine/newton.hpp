@@ -48,8 +48,8 @@ struct NewtonOutcome {
   double worstResidual = 0.0;
 };
 
-/// Solves in place. ctx.x must point at x. On success the system's i and q hold their values at
-/// the converged x. `a0` and `history` give the
+/// Solves in place. ctx.x must point at x. On success the system's q (and i, unless
+/// finalChargesOnly) hold their values at the converged x. `a0` and `history` give the
 /// integration formula's d/dt q = a0 q + history (a0 = 0 and history = nullptr for DC).
 NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x, EvalContext ctx,
                           double a0, const double* history, const NewtonSettings& settings,
