@@ -127,3 +127,30 @@ TEST_CASE("Static-pivot LU reports empty and vanishing pivots", "[engine][lu]") 
   CHECK_FALSE(lu.factor(zeros));
   CHECK(lu.pivotRatio() == 0.0);
 }
+
+TEST_CASE("Static-pivot LU of a tridiagonal matrix has no fill", "[engine][lu]") {
+  // A tridiagonal matrix factored in natural order keeps L and U within its band: no fill,
+  // one multiply-subtract per column after the first (G. H. Golub and C. F. Van Loan, Matrix
+  // Computations, section on banded LU; from memory). A chain of series junctions gives such
+  // matrices, so the program's work must grow linearly with the chain.
+  const int n = 50;
+  std::vector<Eigen::Triplet<double>> t;
+  for (int k = 0; k < n; ++k) {
+    t.emplace_back(k, k, 4.0);
+    if (k > 0) t.emplace_back(k, k - 1, -1.0);
+    if (k + 1 < n) t.emplace_back(k, k + 1, -1.5);
+  }
+  Eigen::SparseMatrix<double> a(n, n);
+  a.setFromTriplets(t.begin(), t.end());
+  a.makeCompressed();
+  std::vector<int> natural(static_cast<std::size_t>(n));
+  std::iota(natural.begin(), natural.end(), 0);
+  StaticLu lu;
+  REQUIRE(lu.build(n, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
+  CHECK(lu.factorEntries() == static_cast<std::size_t>(a.nonZeros()));
+  CHECK(lu.operations() == static_cast<std::size_t>(n - 1));
+  REQUIRE(lu.factor(a.valuePtr()));
+  Eigen::VectorXd b = Eigen::VectorXd::Ones(n), x = b;
+  lu.solve(x.data());
+  CHECK((Eigen::MatrixXd(a) * x - b).norm() <= 1e-13 * b.norm());
+}

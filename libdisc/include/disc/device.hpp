@@ -67,24 +67,18 @@ struct EvalContext {
   double sourceScale = 1.0;      ///< 0..1, scales independent sources (source stepping)
   bool dc = false;               ///< true in operating-point analyses
   /// Newton limiting memory, one cell per limitCells() of each device (nullptr: no limiting).
-  /// A NaN cell means "no previous iterate". A device reports through reportJunction() how far
-  /// its junction voltage moved since the previous iterate: node voltages of a tall stack are
-  /// large, so only the device can tell whether its own junction has converged.
+  /// A NaN cell means "no previous iterate". A device reports through reportJunction() whether
+  /// it limited its junction: Newton cannot accept an iterate whose devices were linearised
+  /// elsewhere.
   double* limits = nullptr;
-  /// Largest junction movement of this iteration in units of reltol * |v| + vabstol; infinite
-  /// when a device limited its junction.
-  double* settle = nullptr;
+  /// Set when a device limited its junction in this evaluation.
+  bool* limited = nullptr;
   double reltol = 1e-3;   ///< relative convergence tolerance of the current Newton solve
   double vabstol = 1e-6;  ///< absolute voltage tolerance, V
 
-  /// Records a junction's movement from `last` (the previous iterate's voltage) to `raw` (this
-  /// iterate's), of which the device used `used` after limiting.
-  void reportJunction(double raw, double used, double last) const {
-    if (!settle) return;
-    const double m = used != raw ? std::numeric_limits<double>::infinity()
-                                 : std::abs(raw - last) /
-                                       (reltol * std::max(std::abs(raw), std::abs(last)) + vabstol);
-    if (m > *settle) *settle = m;
+  /// Records that a junction evaluated at `raw` used `used` after limiting.
+  void reportJunction(double raw, double used) const {
+    if (limited && used != raw) *limited = true;
   }
 };
 

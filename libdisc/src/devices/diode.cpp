@@ -165,7 +165,7 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
         const double u = -p_.bv - v, ul = detail::limitJunction(-p_.bv - last, u, nvt_, vcrit_);
         if (ul != u) v = -p_.bv - ul;
       }
-      ctx.reportJunction(vraw, v, last);
+      ctx.reportJunction(vraw, v);
     }
     last = v;
   }

@@ -264,7 +264,7 @@ void evaluateLimited(const detail::PlateConstants& k, double ambient, const Eval
       double nvt, vcrit;
       detail::plateLimitScale(k, ambient + th, nvt, vcrit, cache);
       ujl = detail::limitJunction(last, uj, nvt, vcrit);
-      ctx.reportJunction(uj, ujl, last);
+      ctx.reportJunction(uj, ujl);
     }
     last = ujl;
   }

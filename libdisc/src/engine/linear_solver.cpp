@@ -7,6 +7,13 @@
 #include "system.hpp"
 
 namespace disc::detail {
+namespace {
+
+// The kept pivot order serves while the smallest over the largest pivot magnitude stays above
+// this fraction of its value when the pivots were chosen; below it, a pivot search.
+constexpr double kKeptPivotRatio = 1e-3;
+
+}  // namespace
 
 bool Klu::refactorize(const Eigen::SparseMatrix<double>& m) {
   if (!m_numeric || !m_symbolic) return false;
@@ -101,8 +108,10 @@ void LinearSolver::factor(const System& sys) {
   if (repivot_) {
     repivot_ = false;
   } else if (useProgram_) {
-    if (program_.factor(J.valuePtr()) && program_.pivotRatio() > 1e-3 * rcondFull_) return;
-  } else if (klu_.hasNumeric() && klu_.refactorize(J) && klu_.rcond() > 1e-3 * rcondFull_) {
+    if (program_.factor(J.valuePtr()) && program_.pivotRatio() > kKeptPivotRatio * rcondFull_)
+      return;
+  } else if (klu_.hasNumeric() && klu_.refactorize(J) &&
+             klu_.rcond() > kKeptPivotRatio * rcondFull_) {
     return;
   }
   fullFactor(sys);
@@ -113,7 +122,7 @@ void LinearSolver::factor(System& sys, double a0, double gmin) {
     if (gminSlots_.empty())
       for (int k : sys.nodeRows()) gminSlots_.push_back(sys.diagonalSlot(k));
     if (program_.factor(sys.G.data(), sys.C.data(), a0, gminSlots_, gmin) &&
-        program_.pivotRatio() > 1e-3 * rcondFull_)
+        program_.pivotRatio() > kKeptPivotRatio * rcondFull_)
       return;
   }
   sys.assemble(a0, gmin);

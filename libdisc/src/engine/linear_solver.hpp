@@ -42,7 +42,7 @@ class LinearSolver {
   void factor(System& sys, double a0, double gmin);
   /// Solves J dx = rhs in place (size n).
   void solve(double* rhs, int n);
-  /// Full factorisations and refactorisations so far.
+  /// Factorisations with a pivot search so far (the others reuse the pivot order).
   long fullFactorizations() const { return full_; }
   /// The integration coefficient a0 of the Jacobian G + a0 C last factored (0 for DC; negative
   /// while the solve that factored it has not converged), so a later Newton solve can judge

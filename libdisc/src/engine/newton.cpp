@@ -42,9 +42,9 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   std::vector<double>& limits = work.limits;
   limits.assign(static_cast<std::size_t>(sys.limitCells()) + 1,
                 std::numeric_limits<double>::quiet_NaN());
-  double settle = 0.0;
+  bool limited = false;  // a junction was limited in the last evaluation
   ctx.limits = limits.data();
-  ctx.settle = &settle;
+  ctx.limited = &limited;
   ctx.reltol = settings.reltol;
   ctx.vabstol = settings.vabstol;
   // Largest update of the last iteration in units of its tolerance; a chord step (the previous
@@ -71,7 +71,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   bool previousLimited = true;  // the last iteration's evaluation limited a junction
   int rises = 0;
   for (int it = 0; it < settings.maxIterations; ++it) {
-    settle = 0.0;
+    limited = false;
     chord = settings.reuseJacobian && factored && lastMeasure <= kChordBelow;
     sys.evaluate(ctx, !chord);
     ++stats.evaluations;
@@ -92,24 +92,22 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     dx[static_cast<std::size_t>(n)] = 0.0;
     ++stats.newtonIterations;
     out.iterations = it + 1;
-    for (int k = 0; k < n; ++k) finite = finite && std::isfinite(dx[static_cast<std::size_t>(k)]);
+    // Reach of the update in tolerances of the present values (for chord steps below).
+    double reach = 0.0;
+    for (int k = 0; k < n; ++k) {
+      const auto uk = static_cast<std::size_t>(k);
+      finite = finite && std::isfinite(dx[uk]);
+      reach = std::max(reach, std::abs(dx[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
+    }
     if (!finite) break;
-    if (chord) {
+    if (chord && reach > kChordDiscard) {
       // Factors kept from an earlier iterate or step can be far off after a junction switched:
       // an update of thousands of tolerances of the present values is theirs, not the
       // circuit's. Discard it and factorise afresh at the same iterate, rather than continue
       // from a wild point where the update-based test can be fooled.
-      double reach = 0.0;
-      for (int k = 0; k < n; ++k) {
-        const auto uk = static_cast<std::size_t>(k);
-        reach =
-            std::max(reach, std::abs(dx[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
-      }
-      if (reach > kChordDiscard) {
-        lastMeasure = std::numeric_limits<double>::infinity();
-        factored = false;
-        continue;
-      }
+      lastMeasure = std::numeric_limits<double>::infinity();
+      factored = false;
+      continue;
     }
     double measure = 0.0;
     for (int k = 0; k < n; ++k) {
@@ -124,8 +122,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     // difference of node voltages: those are large in a tall stack while the junction's is
     // small, so the unknowns' measure does not cover it).
     measure = std::max(measure, sys.junctionStep(ctx, dx.data()));
-    // An evaluation that limited a junction linearised the device elsewhere than at x.
-    const bool limited = !std::isfinite(settle);
+    // (An evaluation that limited a junction linearised the device elsewhere than at x.)
     // Converged: this update within tolerance on every unknown and every junction. Not on a
     // chord step at the start of a solve in a circuit with junctions: factors kept from before
     // a junction switched make the update small while the junction current is far off (a

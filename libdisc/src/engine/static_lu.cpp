@@ -23,7 +23,6 @@ void StaticLu::clear() {
   scales_.clear();
   lower_.clear();
   upperSolve_.clear();
-  unitRows_.clear();
   lu_.clear();
   invPivot_.clear();
 }
@@ -158,10 +157,8 @@ void StaticLu::buildSolveStreams() {
       lower_.push_back({row_[static_cast<std::size_t>(e)], e, k});
   for (int k = n - 1; k >= 0; --k)
     for (int e = colStart_[static_cast<std::size_t>(k)]; e < diag_[static_cast<std::size_t>(k)];
-         ++e) {
+         ++e)
       upperSolve_.push_back({row_[static_cast<std::size_t>(e)], e, k});
-      unitRows_.push_back({e, row_[static_cast<std::size_t>(e)]});
-    }
 }
 
 bool StaticLu::factor(const double* values) {
@@ -199,7 +196,7 @@ bool StaticLu::eliminate() {
       lu[scale->entry] *= inv[scale->column];
   }
   // U's rows scaled to a unit diagonal: the solve then has no per-column division step.
-  for (const Scale& u : unitRows_) lu[u.entry] *= inv[u.column];
+  for (const SolveOp& u : upperSolve_) lu[u.entry] *= inv[u.dst];
   // Pivot magnitudes in a separate pass, off the elimination's dependency chain.
   double smallest = HUGE_VAL, largest = 0.0;
   bool regular = true;

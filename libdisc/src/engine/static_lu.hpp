@@ -69,10 +69,10 @@ class StaticLu {
   std::vector<int> load_;  // position in lu_ of each value of A, in CSC order
   std::vector<int> fill_;  // positions in lu_ that no value of A lands on
   std::vector<LevelEnd> levelEnd_;
-  std::vector<int> pivots_;      // columns, level by level
-  std::vector<Scale> scales_;    // L entries, level by level
-  std::vector<Scale> unitRows_;  // U entries off the diagonal, with their row
-  std::vector<SolveOp> lower_, upperSolve_;
+  std::vector<int> pivots_;          // columns, level by level
+  std::vector<Scale> scales_;        // L entries, level by level
+  std::vector<SolveOp> lower_;       // L by columns in increasing order
+  std::vector<SolveOp> upperSolve_;  // U off the diagonal by columns in decreasing order
   std::vector<double> lu_;
   std::vector<double> invPivot_;
   mutable std::vector<double> work_;
