@@ -148,13 +148,12 @@ class Device {
   /// A limiting device evaluates its law at the limited voltage and linearises from there, so
   /// a wild Newton update of one junction does not damp the whole circuit.
   virtual int limitCells() const { return 0; }
-  /// Largest movement of the device's limited junctions in the Newton update dx that led to
-  /// ctx.x, in units of ctx.reltol |v| + ctx.vabstol. Devices whose junction voltage is an
-  /// unknown of its own need not override this (Newton measures every unknown's update); a
-  /// junction between two nodes must, or Newton cannot tell when it has converged.
-  virtual double junctionStep(const EvalContext& /*ctx*/, const double* /*dx*/) const {
-    return 0.0;
-  }
+  /// Limited junctions whose voltage is the difference of two unknowns (after bind): appends
+  /// each as (positive side, negative side). Newton measures their movement in every update in
+  /// units of reltol |v| + vabstol; without that it cannot tell when a junction between two
+  /// nodes has converged (in a tall stack the node voltages are large and the junction's
+  /// small). Devices whose junction voltage is an unknown of its own need not declare it.
+  virtual void junctionPairs(std::vector<std::pair<int, int>>& /*out*/) const {}
   /// Largest time step that resolves this device's excitation (s), or +inf.
   virtual double stepHint() const;
   /// Times in (from, to] where the device's excitation has a corner or a jump.

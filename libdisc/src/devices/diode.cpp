@@ -212,9 +212,8 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   }
 }
 
-double Diode::junctionStep(const EvalContext& ctx, const double* dx) const {
-  const double v = ctx.x[j_] - ctx.x[k_], dv = dx[j_] - dx[k_];
-  return std::abs(dv) / (ctx.reltol * std::max(std::abs(v), std::abs(v - dv)) + ctx.vabstol);
+void Diode::junctionPairs(std::vector<std::pair<int, int>>& out) const {
+  out.emplace_back(j_, k_);
 }
 
 void Diode::evaluateCharges(const EvalContext& ctx, Stamp& s) const {

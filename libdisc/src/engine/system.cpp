@@ -106,9 +106,14 @@ System::System(Circuit& circuit) : circuit_(circuit) {
     b.internals = internals[k];
     b.limitCell = limitCells_;
     limitCells_ += devices_[k]->limitCells();
-    if (devices_[k]->limitCells() > 0) limiting_.push_back(devices_[k]);
     terminalIndex_[k] = b.terminals;
     devices_[k]->bind(b);
+  }
+  std::vector<std::pair<int, int>> pairs;
+  for (const Device* d : devices_) d->junctionPairs(pairs);
+  for (const auto& [pos, neg] : pairs) {
+    junctionPos_.push_back(pos);
+    junctionNeg_.push_back(neg);
   }
   Collector collector(n_);
   diag_.assign(static_cast<std::size_t>(n_), 0);
@@ -177,8 +182,16 @@ void System::evaluateCharges(const EvalContext& ctx) {
 }
 
 double System::junctionStep(const EvalContext& ctx, const double* dx) const {
+  // A flat table rather than a call per device: in a large circuit the device objects are
+  // scattered in memory and one more pass over them per Newton iteration misses the cache.
   double m = 0.0;
-  for (const Device* d : limiting_) m = std::max(m, d->junctionStep(ctx, dx));
+  const std::size_t count = junctionPos_.size();
+  for (std::size_t k = 0; k < count; ++k) {
+    const int a = junctionPos_[k], b = junctionNeg_[k];
+    const double v = ctx.x[a] - ctx.x[b], dv = dx[a] - dx[b];
+    m = std::max(
+        m, std::abs(dv) / (ctx.reltol * std::max(std::abs(v), std::abs(v - dv)) + ctx.vabstol));
+  }
   return m;
 }
 

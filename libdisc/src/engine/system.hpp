@@ -47,8 +47,8 @@ class System {
   void evaluateCharges(const EvalContext& ctx);
   /// J = G + a0 C, plus gmin on the diagonal of node rows; values into the sparse matrix.
   void assemble(double a0, double gmin);
-  /// Largest junction movement over the limiting devices for the update dx that led to
-  /// ctx.x (see Device::junctionStep).
+  /// Largest junction movement over the devices' junction pairs for the update dx that led to
+  /// ctx.x (see Device::junctionPairs).
   double junctionStep(const EvalContext& ctx, const double* dx) const;
   /// Total Newton limiting cells of all devices.
   int limitCells() const { return limitCells_; }
@@ -72,7 +72,7 @@ class System {
  private:
   Circuit& circuit_;
   std::vector<Device*> devices_;
-  std::vector<const Device*> limiting_;  // devices with limit cells
+  std::vector<int> junctionPos_, junctionNeg_;  // Device::junctionPairs of all devices
   int n_ = 0;
   std::vector<int> nodeUnknown_;  // by NodeId
   std::vector<int> nodeRows_;
