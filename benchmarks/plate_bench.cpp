@@ -69,17 +69,31 @@ void StackEvaluatePerPlate(benchmark::State& st) {
 }
 BENCHMARK(StackEvaluatePerPlate);
 
+// Arguments: mode (0 per-plate, 1 lumped) and plates per arm. Taller stacks get a secondary
+// voltage and a load resistance in proportion, so every plate carries the same voltage and
+// current as in the 5-plate bridge.
 void SeleniumBridgeOneSecond(benchmark::State& st) {
   const bool lumped = st.range(0) == 1;
+  const int plates = static_cast<int>(st.range(1));
   st.SetLabel(lumped ? "lumped" : "per-plate");
-  const auto make = [lumped] {
+  const auto make = [lumped, plates] {
     disc::reference::SeleniumBridge spec;
     spec.stack.mode = lumped ? disc::StackMode::Lumped : disc::StackMode::PerPlate;
+    const double scale = plates / static_cast<double>(spec.stack.plates);
+    spec.secondaryRms *= scale;
+    spec.load *= scale;
+    spec.stack.plates = plates;
     return disc::reference::seleniumBridge(spec);
   };
   disc::bench::timeColdRun(st, make, 1.0, disc::Method::Bdf2, "v:out");
+  st.counters["plates_per_arm"] = plates;
 }
-BENCHMARK(SeleniumBridgeOneSecond)->Arg(0)->Arg(1)->Unit(benchmark::kMillisecond);
+BENCHMARK(SeleniumBridgeOneSecond)
+    ->Args({0, 5})
+    ->Args({1, 5})
+    ->Args({0, 10})
+    ->Args({1, 10})
+    ->Unit(benchmark::kMillisecond);
 
 }  // namespace
 

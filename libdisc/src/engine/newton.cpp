@@ -21,6 +21,33 @@ void residual(const System& sys, const std::vector<double>& x, double a0, const 
       f[static_cast<std::size_t>(k)] += gmin * x[static_cast<std::size_t>(k)];
 }
 
+/// dx = -F(x) in one pass (the right-hand side of the Newton update); false if any entry is not
+/// finite.
+bool negatedResidual(const System& sys, const std::vector<double>& x, double a0,
+                     const double* history, double gmin, std::vector<double>& dx) {
+  const int n = sys.size();
+  const double* i = sys.i.data();
+  const double* q = sys.q.data();
+  double* out = dx.data();
+  bool finite = true;
+  if (history) {
+    for (int k = 0; k < n; ++k) {
+      const double v = i[k] + a0 * q[k] + history[k];
+      finite = finite && std::isfinite(v);
+      out[k] = -v;
+    }
+  } else {
+    for (int k = 0; k < n; ++k) {
+      const double v = a0 != 0.0 ? i[k] + a0 * q[k] : i[k];
+      finite = finite && std::isfinite(v);
+      out[k] = -v;
+    }
+  }
+  if (gmin > 0.0)
+    for (int k : sys.nodeRows()) out[k] -= gmin * x[static_cast<std::size_t>(k)];
+  return finite;
+}
+
 }  // namespace
 
 NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x, EvalContext ctx,
@@ -75,31 +102,27 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     chord = settings.reuseJacobian && factored && lastMeasure <= kChordBelow;
     sys.evaluate(ctx, !chord);
     ++stats.evaluations;
-    residual(sys, x, a0, history, settings.gmin, f);
     // An iterate that overflowed a device law cannot be factored: report failure, so that the
     // caller shortens the step (or steps gmin or the sources).
-    bool finite = true;
-    for (int k = 0; k < n; ++k) finite = finite && std::isfinite(f[static_cast<std::size_t>(k)]);
-    if (!finite) break;
+    if (!negatedResidual(sys, x, a0, history, settings.gmin, dx)) break;
     if (!chord) {
       ls.factor(sys, a0, settings.gmin);
       ls.setFactoredA0(-1.0);  // not reusable until this solve converges
       factored = true;
       ++stats.factorizations;
     }
-    for (int k = 0; k < n; ++k) dx[static_cast<std::size_t>(k)] = -f[static_cast<std::size_t>(k)];
     ls.solve(dx.data(), n);
     dx[static_cast<std::size_t>(n)] = 0.0;
     ++stats.newtonIterations;
     out.iterations = it + 1;
-    // Reach of the update in tolerances of the present values (for chord steps below).
+    // Reach of a chord update in tolerances of the present values (discarded below if wild).
     double reach = 0.0;
-    for (int k = 0; k < n; ++k) {
-      const auto uk = static_cast<std::size_t>(k);
-      finite = finite && std::isfinite(dx[uk]);
-      reach = std::max(reach, std::abs(dx[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
-    }
-    if (!finite) break;
+    if (chord)
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        reach =
+            std::max(reach, std::abs(dx[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
+      }
     if (chord && reach > kChordDiscard) {
       // Factors kept from an earlier iterate or step can be far off after a junction switched:
       // an update of thousands of tolerances of the present values is theirs, not the
@@ -110,14 +133,18 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
       continue;
     }
     double measure = 0.0;
+    bool finite = true;
     for (int k = 0; k < n; ++k) {
       const auto uk = static_cast<std::size_t>(k);
       const double step = dx[uk];
-      const double xn = x[uk] + step;
-      const double tol = settings.reltol * std::max(std::abs(xn), std::abs(x[uk])) + abstol[uk];
+      const double tol =
+          settings.reltol * std::max(std::abs(x[uk] + step), std::abs(x[uk])) + abstol[uk];
+      finite = finite && std::isfinite(step);
       measure = std::max(measure, std::abs(step) / tol);
-      x[uk] = xn;
     }
+    // A non-finite update (a factorisation gone singular) is not applied.
+    if (!finite) break;
+    for (int k = 0; k < n; ++k) x[static_cast<std::size_t>(k)] += dx[static_cast<std::size_t>(k)];
     // The junctions' movement in this same update (devices whose junction voltage is a
     // difference of node voltages: those are large in a tall stack while the junction's is
     // small, so the unknowns' measure does not cover it).
