@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "disc/disc.hpp"
+#include "engine/system.hpp"
 
 using namespace disc;
 
@@ -68,4 +69,50 @@ TEST_CASE("IDA starts a cold switch-on under tight absolute tolerances", "[engin
   REQUIRE_NOTHROW(ida = run(Method::Ida));
   CHECK(ida == Approx(run(Method::Trapezoidal)).epsilon(1e-4));
   CHECK(ida > 10.0);  // charged towards the 20 V peak less two junction drops
+}
+
+TEST_CASE("Junctions between two nodes are measured from the devices' declared pairs",
+          "[engine][newton]") {
+  // Two diodes with series resistance in a tall chain: each junction lies between an internal
+  // node and the next chain node, high above ground. Newton's junction measure must be the
+  // largest |dv| / (reltol max(|v|, |v - dv|) + vabstol) over both junctions (common practice
+  // in circuit engines: the same test as for the unknowns, applied to the junction voltage).
+  Circuit c;
+  const NodeId a = c.node("a"), m = c.node("m"), k = c.node("k");
+  c.emplace<VoltageSource>("V1", a, kGround, Waveform::dc(1000.0));
+  DiodeParams d;
+  d.rs = 1.0;
+  c.emplace<Diode>("D1", a, m, d);
+  c.emplace<Diode>("D2", m, k, d);
+  c.emplace<Resistor>("R1", k, kGround, 1000.0);
+  detail::System sys(c);
+  const int n = sys.size();
+  const auto index = [&](const std::string& name) {
+    for (int u = 0; u < n; ++u)
+      if (sys.unknownName(u) == name) return u;
+    FAIL("no unknown " << name);
+    return -1;
+  };
+  std::vector<double> x(static_cast<std::size_t>(n) + 1, 0.0), dx(x.size(), 0.0);
+  const auto at = [](int u) { return static_cast<std::size_t>(u); };
+  x[at(sys.unknownOfNode(a))] = 1000.0;
+  x[at(index("D1.j"))] = 999.9;
+  x[at(sys.unknownOfNode(m))] = 999.2;
+  x[at(index("D2.j"))] = 999.1;
+  x[at(sys.unknownOfNode(k))] = 998.45;
+  // The update that led there: D1's junction moved by 2 mV, D2's by 5 mV.
+  dx[at(index("D1.j"))] = 0.003;
+  dx[at(sys.unknownOfNode(m))] = 0.001;
+  dx[at(index("D2.j"))] = 0.004;
+  dx[at(sys.unknownOfNode(k))] = -0.001;
+  EvalContext ctx;
+  ctx.x = x.data();
+  ctx.reltol = 1e-3;
+  ctx.vabstol = 1e-6;
+  const auto measure = [&](double v, double dv) {
+    return std::abs(dv) / (1e-3 * std::max(std::abs(v), std::abs(v - dv)) + 1e-6);
+  };
+  const double d1 = measure(999.9 - 999.2, 0.002), d2 = measure(999.1 - 998.45, 0.005);
+  CHECK(sys.junctionStep(ctx, dx.data()) == Approx(std::max(d1, d2)).epsilon(1e-12));
+  CHECK(d2 > d1);
 }
