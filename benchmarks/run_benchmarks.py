@@ -26,6 +26,16 @@ def cpu_name():
     return platform.processor() or "unknown"
 
 
+def table_header(*columns):
+    print("| " + " | ".join(columns) + " |")
+    print("|" + "---|" * len(columns))
+
+
+def named(data, prefix):
+    """The benchmark entries whose name starts with prefix."""
+    return [b for b in data if b["name"].startswith(prefix)]
+
+
 def peak_rss(cmd):
     """Peak RSS (KiB) that a `disc example ... --json` run reports for itself."""
     out = subprocess.run(cmd, check=True, capture_output=True, text=True).stdout
@@ -49,12 +59,10 @@ def main():
     data = json.loads(out)["benchmarks"]
 
     print("## One second of the 50 Hz bridge supply (cold switch-on, reltol 1e-3)\n")
-    print("| method | wall ms | accepted | rejected | Newton its | steps/s | peak RSS KiB |")
-    print("|---|---|---|---|---|---|---|")
+    table_header("method", "wall ms", "accepted", "rejected", "Newton its", "steps/s",
+                 "peak RSS KiB")
     walls = {}
-    for b in data:
-        if not b["name"].startswith("BridgeOneSecond"):
-            continue
+    for b in named(data, "BridgeOneSecond"):
         method = b["label"]
         rss = peak_rss([cli, "example", "bridge", "--method", method, "--json"])
         walls[method] = b["real_time"] / 1e3
@@ -62,13 +70,10 @@ def main():
               f"{b['newton']:.0f} | {b['steps_per_s']:.0f} | {rss} |")
 
     print("\n## Diode ladder scaling (BDF2, 20 ms)\n")
-    print("| diodes | unknowns | wall ms | steps | us/step (fastest) | us/step (median) | "
-          "us/Newton | peak RSS KiB |")
-    print("|---|---|---|---|---|---|---|---|")
+    table_header("diodes", "unknowns", "wall ms", "steps", "us/step (fastest)",
+                 "us/step (median)", "us/Newton", "peak RSS KiB")
     ladder = {}
-    for b in data:
-        if not b["name"].startswith("Ladder/"):
-            continue
+    for b in named(data, "Ladder/"):
         n = int(b["name"].split("/")[1])
         rss = peak_rss([cli, "example", f"ladder-{n}", "--stop", "0.02", "--method", "bdf2",
                         "--json"])
@@ -186,8 +191,8 @@ def scipy_comparison(cli, build):
         mean = np.trapz(sol.sol(grid)[2], grid) / (grid[-1] - grid[0])
         rows.append(("SciPy Radau", f"{rtol:g}", wall, abs(mean - ref_mean) / ref_mean,
                      waveform_error(sol.t, sol.y[2])))
-    print("| solver | tolerance | wall s | error of the mean output | largest waveform error |")
-    print("|---|---|---|---|---|")
+    table_header("solver", "tolerance", "wall s", "error of the mean output",
+                 "largest waveform error")
     for r in rows:
         print(f"| {r[0]} | {r[1]} | {r[2]:.4f} | {r[3]:.1e} | {r[4]:.1e} |")
     # Matched accuracy: each SciPy run against the fastest libdisc run at least as accurate on
@@ -216,12 +221,11 @@ def plate_section(data):
         if b["name"] in ("PlateLaws", "PlateLawsCached", "StackEvaluatePerPlate"):
             per = b["real_time"] / (100 if b["name"] == "StackEvaluatePerPlate" else 1)
             print(f"- {b['name']}: {per:.1f} ns per plate")
-    print("\n| plates per arm | mode | wall ms | accepted | rejected | Newton its | unknowns |")
-    print("|---|---|---|---|---|---|---|")
+    print()
+    table_header("plates per arm", "mode", "wall ms", "accepted", "rejected", "Newton its",
+                 "unknowns")
     walls = {}
-    for b in data:
-        if not b["name"].startswith("SeleniumBridgeOneSecond/"):
-            continue
+    for b in named(data, "SeleniumBridgeOneSecond/"):
         plates = int(b["plates_per_arm"])
         walls[(plates, b["label"])] = b["real_time"]
         print(f"| {plates} | {b['label']} | {b['real_time']:.1f} | {b['accepted']:.0f} | "
