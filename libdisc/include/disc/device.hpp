@@ -101,6 +101,13 @@ struct Binding {
 
 class Device;
 
+/// One exponential junction of a device (see Device::junctionPairs).
+struct JunctionPair {
+  int positive = 0;    ///< unknown index of the junction's positive side
+  int negative = 0;    ///< unknown index of its negative side (ground sentinel: none)
+  double scale = 0.0;  ///< V, smallest voltage over which the law bends (n kT/q or less)
+};
+
 /// A device parameter readable and settable by its netlist name (for sweeps without re-parsing).
 struct DeviceParameter {
   std::string name;
@@ -148,12 +155,14 @@ class Device {
   /// A limiting device evaluates its law at the limited voltage and linearises from there, so
   /// a wild Newton update of one junction does not damp the whole circuit.
   virtual int limitCells() const { return 0; }
-  /// Limited junctions whose voltage is the difference of two unknowns (after bind): appends
-  /// each as (positive side, negative side). Newton measures their movement in every update in
-  /// units of reltol |v| + vabstol; without that it cannot tell when a junction between two
-  /// nodes has converged (in a tall stack the node voltages are large and the junction's
-  /// small). Devices whose junction voltage is an unknown of its own need not declare it.
-  virtual void junctionPairs(std::vector<std::pair<int, int>>& /*out*/) const {}
+  /// The device's exponential junctions (after bind), each as the unknowns on its positive and
+  /// negative side (the ground sentinel where the junction voltage is an unknown of its own)
+  /// and the smallest voltage scale its law bends over (n kT/q at the lowest temperature the
+  /// device can reach, or a smaller breakdown slope). Newton measures each junction's movement
+  /// in every update in units of reltol |v| + vabstol (without that it cannot tell when a
+  /// junction between two nodes has converged: in a tall stack the node voltages are large and
+  /// the junction's small), and bounds an exact step's second-order remainder with the scale.
+  virtual void junctionPairs(std::vector<JunctionPair>& /*out*/) const {}
   /// Largest time step that resolves this device's excitation (s), or +inf.
   virtual double stepHint() const;
   /// Times in (from, to] where the device's excitation has a corner or a jump.

@@ -81,12 +81,17 @@ double settledMean(const std::vector<double>& t, const std::vector<double>& v, d
   const double a = cycleMean(2 * s), b = cycleMean(s), c = last;
   const double d1 = b - a, d2 = c - b;
   const double scale = std::max(std::abs(c), 1e-12);
+  // A geometric approach (Aitken's extrapolation) only where the window shows it: successive
+  // differences shrinking by at least kMaxRatio. A nearly straight drift (a stack warming over
+  // minutes) has a ratio near one, and its "limit" c + d2 r / (1 - r) would be a wild guess
+  // far beyond the run; it counts as not settled instead.
+  constexpr double kMaxRatio = 0.9;
+  const bool geometric = d1 * d2 > 0 && std::abs(d2) <= kMaxRatio * std::abs(d1);
   if (std::abs(d2) <= 0.5 * tol * scale) {
     settled = true;
-    // A geometric approach still under way: its limit, else the last cycle.
-    return d1 * d2 > 0 && std::abs(d2) < std::abs(d1) ? c - d2 * d2 / (d2 - d1) : c;
+    return geometric ? c - d2 * d2 / (d2 - d1) : c;
   }
-  if (d1 * d2 > 0 && std::abs(d2) < std::abs(d1)) {
+  if (geometric) {
     const double extrapolated = c - d2 * d2 / (d2 - d1);
     settled = std::abs(extrapolated - c) <= tol * scale;
     return extrapolated;

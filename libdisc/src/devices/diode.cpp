@@ -212,8 +212,10 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   }
 }
 
-void Diode::junctionPairs(std::vector<std::pair<int, int>>& out) const {
-  out.emplace_back(j_, k_);
+void Diode::junctionPairs(std::vector<JunctionPair>& out) const {
+  // Self-heating only raises the temperature; three quarters of the base temperature leaves a
+  // margin for a cold ambient given later.
+  out.push_back({j_, k_, p_.n * constants::thermalVoltage(0.75 * fixed_.t)});
 }
 
 void Diode::evaluateCharges(const EvalContext& ctx, Stamp& s) const {

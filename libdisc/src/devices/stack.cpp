@@ -9,6 +9,7 @@
 
 #include "check.hpp"
 #include "disc/circuit.hpp"
+#include "disc/constants.hpp"
 #include "junction_math.hpp"
 #include "plate/plate_model.hpp"
 
@@ -200,6 +201,7 @@ std::vector<UnknownSpec> Stack::internalUnknowns() const {
 void Stack::bind(const Binding& b) {
   a_ = b.terminals[0];
   k_ = b.terminals[1];
+  ground_ = b.ground;
   std::size_t next = 0;
   int previous = -1;  // cathode-side chain node of the previous plate in this arm
   for (std::size_t n = 0; n < plates_.size(); ++n) {
@@ -216,6 +218,16 @@ void Stack::bind(const Binding& b) {
     if (last) p.kk = k_;
     p.neighbour = -1;
     if (p.pos > 0) plates_[n - 1].neighbour = p.th;
+  }
+}
+
+void Stack::junctionPairs(std::vector<JunctionPair>& out) const {
+  // Each barrier voltage is an unknown of its own; the scale is n kT/q at the laws' lowest
+  // temperature, or the soft-breakdown slope where that is smaller.
+  for (const Plate& p : plates_) {
+    double scale = p.k.n * constants::thermalVoltage(detail::kPlateLawTmin);
+    if (p.k.bdI0 > 0.0) scale = std::min(scale, p.k.bdSlope);
+    out.push_back({p.j, ground_, scale});
   }
 }
 

@@ -97,6 +97,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.reuseAcrossSolves = true;
   ns.stopOnDivergence = true;
   ns.predictConvergence = true;
+  ns.acceptQuadratic = true;
   ns.finalChargesOnly = true;
   NewtonWorkspace work;
   ns.workspace = &work;
@@ -178,6 +179,12 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     }
     ctx.time = t + h;
     const NewtonOutcome out = solveNewton(sys, ls, xNew, ctx, c.a0, hist.data(), ns, stats);
+    // Factors kept from the previous step make the first iteration a chord step, which is never
+    // accepted alone; fresh factors let an exact first step end the solve (the second-order
+    // test). So: fresh factors while first updates are that small (tight tolerances, smooth
+    // stretches), kept factors otherwise (they also carry a long chain of junctions in
+    // reverse bias, whose weakest mode a fresh factorisation at a long step can lose).
+    ns.reuseAcrossSolves = !(out.converged && out.firstUpdateQuadratic);
     if (!out.converged) {
       ++stats.rejectedSteps;
       h /= 8.0;

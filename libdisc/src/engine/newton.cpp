@@ -92,6 +92,37 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   // Predicted convergence: a contraction rate below kFastRate and a predicted remaining error
   // below kPredictedBelow tolerances.
   constexpr double kFastRate = 0.25, kPredictedBelow = 0.2;
+  // Second-order remainder of an exact step accepted below this many tolerances, for updates
+  // of at most kQuadraticReach tolerances (a guard against a factorisation gone bad).
+  constexpr double kQuadraticBelow = 0.2, kQuadraticReach = 1e3;
+  constexpr double kRefinementBelow = 0.02;  // the solve's own error, in tolerances
+  // Per unknown, 1 / (2 S) for the smallest scale S over which the device laws bend apart from
+  // the junctions, which declare their own (Device::junctionPairs): voltages 50 mV (the
+  // rounding of a plate's reverse-voltage ramp), temperatures kT^2/Ea >= 2 K (activation
+  // energies up to 1.5 eV at 200 K and above), slow states 0.1; currents enter every law
+  // linearly (branch equations of sources, inductors and windings).
+  if (work.halfCurvature.size() != static_cast<std::size_t>(n) + 1) {
+    work.halfCurvature.assign(static_cast<std::size_t>(n) + 1, 0.0);
+    for (int k = 0; k < n; ++k) {
+      double scale = 0.0;
+      switch (sys.kind(k)) {
+        case UnknownKind::Voltage:
+          scale = 0.05;
+          break;
+        case UnknownKind::Temperature:
+          scale = 2.0;
+          break;
+        case UnknownKind::State:
+          scale = 0.1;
+          break;
+        case UnknownKind::Current:
+          break;
+      }
+      work.halfCurvature[static_cast<std::size_t>(k)] = scale > 0.0 ? 0.5 / scale : 0.0;
+    }
+  }
+  const std::vector<double>& halfCurvature = work.halfCurvature;
+  std::vector<double>& rhs = work.rhs;
   // Updates growing geometrically (kRise or more, several iterations in a row) mean divergence.
   constexpr double kRise = 1.2;
   double previousMeasure = std::numeric_limits<double>::infinity();
@@ -111,6 +142,8 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
       factored = true;
       ++stats.factorizations;
     }
+    // The right-hand side is kept for the refinement check of an exact step (below).
+    if (settings.acceptQuadratic && !chord) rhs.assign(dx.begin(), dx.end());
     ls.solve(dx.data(), n);
     dx[static_cast<std::size_t>(n)] = 0.0;
     ++stats.newtonIterations;
@@ -132,7 +165,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
       factored = false;
       continue;
     }
-    double measure = 0.0;
+    double measure = 0.0, quadratic = 0.0;
     bool finite = true;
     for (int k = 0; k < n; ++k) {
       const auto uk = static_cast<std::size_t>(k);
@@ -141,6 +174,7 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
           settings.reltol * std::max(std::abs(x[uk] + step), std::abs(x[uk])) + abstol[uk];
       finite = finite && std::isfinite(step);
       measure = std::max(measure, std::abs(step) / tol);
+      quadratic = std::max(quadratic, step * step * halfCurvature[uk] / tol);
     }
     // A non-finite update (a factorisation gone singular) is not applied.
     if (!finite) break;
@@ -148,7 +182,9 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     // The junctions' movement in this same update (devices whose junction voltage is a
     // difference of node voltages: those are large in a tall stack while the junction's is
     // small, so the unknowns' measure does not cover it).
-    measure = std::max(measure, sys.junctionStep(ctx, dx.data()));
+    double junctionMove = 0.0, junctionRemainder = 0.0;
+    sys.junctionMeasures(ctx, dx.data(), junctionMove, junctionRemainder);
+    measure = std::max(measure, junctionMove);
     // (An evaluation that limited a junction linearised the device elsewhere than at x.)
     // Converged: this update within tolerance on every unknown and every junction. Not on a
     // chord step at the start of a solve in a circuit with junctions: factors kept from before
@@ -156,6 +192,36 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
     // forward junction's huge conductance), and nothing yet shows their contraction.
     const bool unrated = chord && it == 0 && sys.limitCells() > 0;
     bool small = measure <= 1.0 && !limited && !unrated;
+    // Or an exact Newton step (Jacobian evaluated at this iterate, no junction limited) small
+    // enough that its second-order remainder, the error it leaves, is within tolerance: for a
+    // junction law exp(v / (n kT/q)) about dv^2 / (2 n kT/q) (Newton's quadratic convergence),
+    // with the scale each junction declares and the smallest other bend of the laws. The update
+    // itself may then exceed the tolerance: at tight tolerances this saves the iteration that
+    // would only confirm it.
+    const bool secondOrderSmall = !limited && measure <= kQuadraticReach &&
+                                  quadratic <= kQuadraticBelow &&
+                                  junctionRemainder <= kQuadraticBelow;
+    if (it == 0) out.firstUpdateQuadratic = secondOrderSmall;
+    if (!small && settings.acceptQuadratic && !chord && secondOrderSmall) {
+      // The quadratic bound holds for the exact Newton update; a factorisation that lost a weak
+      // mode to round-off (a long chain of junctions in reverse bias at a long step) gives a
+      // different one. One step of iterative refinement measures the solve's own error: the
+      // residual of the linear system, solved again, must be far within tolerance.
+      sys.jacobianTimes(a0, settings.gmin, dx.data(), f.data());
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        f[uk] = rhs[uk] - f[uk];
+      }
+      f[static_cast<std::size_t>(n)] = 0.0;
+      ls.solve(f.data(), n);
+      double refinement = 0.0;
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        refinement = std::max(refinement,
+                              std::abs(f[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
+      }
+      small = refinement <= kRefinementBelow;
+    }
     // Or converging fast enough that the iterate just formed is within tolerance: with the
     // contraction rate rho of the last two updates, the remaining error is about
     // rho / (1 - rho) times this update (the test of BDF codes, e.g. SUNDIALS IDA). Only where

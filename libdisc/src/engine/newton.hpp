@@ -13,6 +13,8 @@ namespace disc::detail {
 /// steps) so that no step allocates.
 struct NewtonWorkspace {
   std::vector<double> f, dx, limits;
+  std::vector<double> halfCurvature;  // per unknown, for the second-order remainder test
+  std::vector<double> rhs;            // right-hand side of an exact step, for its refinement
 };
 
 struct NewtonSettings {
@@ -35,6 +37,9 @@ struct NewtonSettings {
   /// Also accept an iterate that the contraction of the last two updates shows to be within
   /// tolerance, without spending an iteration to confirm it.
   bool predictConvergence = false;
+  /// Also accept an exact Newton step (fresh Jacobian, no junction limited) whose second-order
+  /// remainder is within tolerance, without an iteration to confirm it.
+  bool acceptQuadratic = false;
   /// At the accepted iterate evaluate only the charges (the transient needs nothing else);
   /// sys.i then holds the currents of the previous iterate.
   bool finalChargesOnly = false;
@@ -44,6 +49,9 @@ struct NewtonSettings {
 struct NewtonOutcome {
   bool converged = false;
   int iterations = 0;
+  /// The first update was small enough for the second-order test (NewtonSettings::
+  /// acceptQuadratic): with fresh factors the solve would have ended there.
+  bool firstUpdateQuadratic = false;
   int worstRow = -1;  ///< row with the largest residual at the last iterate
   double worstResidual = 0.0;
 };

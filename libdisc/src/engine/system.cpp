@@ -109,11 +109,17 @@ System::System(Circuit& circuit) : circuit_(circuit) {
     terminalIndex_[k] = b.terminals;
     devices_[k]->bind(b);
   }
-  std::vector<std::pair<int, int>> pairs;
+  std::vector<JunctionPair> pairs;
   for (const Device* d : devices_) d->junctionPairs(pairs);
-  for (const auto& [pos, neg] : pairs) {
-    junctionPos_.push_back(pos);
-    junctionNeg_.push_back(neg);
+  for (const JunctionPair& j : pairs) {
+    if (!(j.scale > 0.0))
+      throw InputError(
+          fmt::format("a device declared a junction with voltage scale {} V; it "
+                      "must be positive (a device model error)",
+                      j.scale));
+    junctionPos_.push_back(j.positive);
+    junctionNeg_.push_back(j.negative);
+    junctionHalfCurvature_.push_back(0.5 / j.scale);
   }
   Collector collector(n_);
   diag_.assign(static_cast<std::size_t>(n_), 0);
@@ -181,18 +187,21 @@ void System::evaluateCharges(const EvalContext& ctx) {
   for (const Device* d : devices_) d->evaluateCharges(ctx, s);
 }
 
-double System::junctionStep(const EvalContext& ctx, const double* dx) const {
+void System::junctionMeasures(const EvalContext& ctx, const double* dx, double& step,
+                              double& remainder) const {
   // A flat table rather than a call per device: in a large circuit the device objects are
   // scattered in memory and one more pass over them per Newton iteration misses the cache.
-  double m = 0.0;
+  double m = 0.0, r = 0.0;
   const std::size_t count = junctionPos_.size();
   for (std::size_t k = 0; k < count; ++k) {
     const int a = junctionPos_[k], b = junctionNeg_[k];
     const double v = ctx.x[a] - ctx.x[b], dv = dx[a] - dx[b];
-    m = std::max(
-        m, std::abs(dv) / (ctx.reltol * std::max(std::abs(v), std::abs(v - dv)) + ctx.vabstol));
+    const double inv = 1.0 / (ctx.reltol * std::max(std::abs(v), std::abs(v - dv)) + ctx.vabstol);
+    m = std::max(m, std::abs(dv) * inv);
+    r = std::max(r, dv * dv * junctionHalfCurvature_[k] * inv);
   }
-  return m;
+  step = m;
+  remainder = r;
 }
 
 void System::assemble(double a0, double gmin) {
@@ -206,6 +215,20 @@ void System::assemble(double a0, double gmin) {
   }
   if (gmin > 0.0)
     for (int k : nodeRows_) v[diag_[static_cast<std::size_t>(k)]] += gmin;
+}
+
+void System::jacobianTimes(double a0, double gmin, const double* v, double* out) const {
+  std::fill(out, out + n_ + 1, 0.0);
+  const int* outer = jac_.outerIndexPtr();
+  const int* inner = jac_.innerIndexPtr();
+  for (int col = 0; col < n_; ++col) {
+    const double vc = v[col];
+    for (int s = outer[col]; s < outer[col + 1]; ++s)
+      out[inner[s]] += (G[static_cast<std::size_t>(s)] + a0 * C[static_cast<std::size_t>(s)]) * vc;
+  }
+  if (gmin > 0.0)
+    for (int k : nodeRows_) out[k] += gmin * v[k];
+  out[n_] = 0.0;
 }
 
 std::vector<double> System::breakpoints(double from, double to) const {

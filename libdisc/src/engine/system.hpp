@@ -47,9 +47,13 @@ class System {
   void evaluateCharges(const EvalContext& ctx);
   /// J = G + a0 C, plus gmin on the diagonal of node rows; values into the sparse matrix.
   void assemble(double a0, double gmin);
-  /// Largest junction movement over the devices' junction pairs for the update dx that led to
-  /// ctx.x (see Device::junctionPairs).
-  double junctionStep(const EvalContext& ctx, const double* dx) const;
+  /// out = (G + a0 C + gmin on node rows) v, from the last Jacobian evaluation (size n + 1).
+  void jacobianTimes(double a0, double gmin, const double* v, double* out) const;
+  /// Over the devices' junctions (Device::junctionPairs), for the update dx that led to
+  /// ctx.x: the largest movement |dv| and the largest second-order remainder dv^2 / (2 scale),
+  /// each in units of the junction's tolerance reltol max(|v|, |v - dv|) + vabstol.
+  void junctionMeasures(const EvalContext& ctx, const double* dx, double& step,
+                        double& remainder) const;
   /// Total Newton limiting cells of all devices.
   int limitCells() const { return limitCells_; }
   /// Breakpoints of all devices in (from, to], sorted and unique.
@@ -73,6 +77,7 @@ class System {
   Circuit& circuit_;
   std::vector<Device*> devices_;
   std::vector<int> junctionPos_, junctionNeg_;  // Device::junctionPairs of all devices
+  std::vector<double> junctionHalfCurvature_;   // 1 / (2 scale) of each
   int n_ = 0;
   std::vector<int> nodeUnknown_;  // by NodeId
   std::vector<int> nodeRows_;

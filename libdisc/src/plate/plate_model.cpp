@@ -26,9 +26,7 @@ namespace {
 constexpr double kSecondsPerYear = 365.25 * 24 * 3600;
 constexpr double kRampWidth = 0.05;       // V, rounding of the reverse-voltage ramp at zero bias
 constexpr double kExpLimitCurrent = 1e4;  // A, where the forward exponential turns linear
-// The laws are evaluated within this temperature range. Beyond it the plate has long failed
-// (selenium melts near 490 K); the clamp keeps Newton iterates and runaways finite.
-constexpr double kLawTmin = 200.0, kLawTmax = 700.0;
+constexpr double kLawTmin = kPlateLawTmin, kLawTmax = kPlateLawTmax;
 // exp(-40) = 4e-18 is lost to rounding next to 1: the forward exponential is not evaluated
 // below that.
 constexpr double kNegligibleExponent = 40.0;

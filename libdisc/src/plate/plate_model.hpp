@@ -12,6 +12,10 @@
 
 namespace disc::detail {
 
+/// The laws are evaluated within this temperature range (K). Beyond it the plate has long failed
+/// (selenium melts near 490 K); the clamp keeps Newton iterates and runaways finite.
+inline constexpr double kPlateLawTmin = 200.0, kPlateLawTmax = 700.0;
+
 /// Per-plate constants after area scaling, spread and ageing.
 struct PlateConstants {
   double is0 = 0;  // A, saturation current at t0

@@ -46,7 +46,7 @@ class Diode : public DeviceBase<Diode> {
   /// Depletion and heat charges without the junction law when there is no transit time.
   void evaluateCharges(const EvalContext& ctx, Stamp& s) const override;
   int limitCells() const override { return 1; }
-  void junctionPairs(std::vector<std::pair<int, int>>& out) const override;
+  void junctionPairs(std::vector<JunctionPair>& out) const override;
   std::vector<std::string> probes() const override { return {"i", "p", "vj", "temp"}; }
   std::string probeUnit(int k) const override;
   double probe(int k, const EvalContext& ctx) const override;

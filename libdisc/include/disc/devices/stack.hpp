@@ -72,6 +72,7 @@ class Stack : public DeviceBase<Stack> {
   void evaluateCharges(const EvalContext& ctx, Stamp& s) const override;
   void initialState(double* x) const override;
   int limitCells() const override;
+  void junctionPairs(std::vector<JunctionPair>& out) const override;
   std::vector<std::string> probes() const override;
   std::string probeUnit(int k) const override;
   double probe(int k, const EvalContext& ctx) const override;
@@ -84,7 +85,7 @@ class Stack : public DeviceBase<Stack> {
   StackOptions opt_;
   double ambient_ = 298.15;
   std::vector<Plate> plates_;
-  int a_ = 0, k_ = 0;
+  int a_ = 0, k_ = 0, ground_ = 0;
   void build();
   double scale() const;
   const Plate& plateOf(int number) const;  // 1-based plate number
