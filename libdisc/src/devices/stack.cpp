@@ -223,9 +223,11 @@ void Stack::bind(const Binding& b) {
 
 void Stack::junctionPairs(std::vector<JunctionPair>& out) const {
   // Each barrier voltage is an unknown of its own; the scale is n kT/q at the laws' lowest
-  // temperature, or the soft-breakdown slope where that is smaller.
+  // temperature, or the rounding of the reverse-voltage ramp or the soft-breakdown slope where
+  // those are smaller.
   for (const Plate& p : plates_) {
-    double scale = p.k.n * constants::thermalVoltage(detail::kPlateLawTmin);
+    double scale =
+        std::min(p.k.n * constants::thermalVoltage(detail::kPlateLawTmin), detail::kPlateRampWidth);
     if (p.k.bdI0 > 0.0) scale = std::min(scale, p.k.bdSlope);
     out.push_back({p.j, ground_, scale});
   }

@@ -168,23 +168,13 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
     std::fill(C.begin(), C.end(), 0.0);
   }
   Stamp s{i.data(), q.data(), G.data(), C.data(), jacobian};
-  // Large circuits outgrow the core's cache: fetch the device four places ahead while this one
-  // is evaluated (the ladder benchmark of 10000 diodes spends half its evaluation time waiting
-  // for device data otherwise).
-  const std::size_t count = devices_.size();
-  for (std::size_t k = 0; k < count; ++k) {
-    if (k + 4 < count) {
-      const char* next = reinterpret_cast<const char*>(devices_[k + 4]);
-      for (int line = 0; line < 6; ++line) __builtin_prefetch(next + 64 * line);
-    }
-    devices_[k]->evaluate(ctx, s);
-  }
+  forEachDevice([&](const Device* d) { d->evaluate(ctx, s); });
 }
 
 void System::evaluateCharges(const EvalContext& ctx) {
   std::fill(q.begin(), q.end(), 0.0);
   Stamp s{i.data(), q.data(), G.data(), C.data(), false};
-  for (const Device* d : devices_) d->evaluateCharges(ctx, s);
+  forEachDevice([&](const Device* d) { d->evaluateCharges(ctx, s); });
 }
 
 void System::junctionMeasures(const EvalContext& ctx, const double* dx, double& step,

@@ -24,7 +24,7 @@ namespace disc::detail {
 namespace {
 
 constexpr double kSecondsPerYear = 365.25 * 24 * 3600;
-constexpr double kRampWidth = 0.05;       // V, rounding of the reverse-voltage ramp at zero bias
+constexpr double kRampWidth = kPlateRampWidth;
 constexpr double kExpLimitCurrent = 1e4;  // A, where the forward exponential turns linear
 constexpr double kLawTmin = kPlateLawTmin, kLawTmax = kPlateLawTmax;
 // exp(-40) = 4e-18 is lost to rounding next to 1: the forward exponential is not evaluated

@@ -15,6 +15,8 @@ namespace disc::detail {
 /// The laws are evaluated within this temperature range (K). Beyond it the plate has long failed
 /// (selenium melts near 490 K); the clamp keeps Newton iterates and runaways finite.
 inline constexpr double kPlateLawTmin = 200.0, kPlateLawTmax = 700.0;
+/// Rounding of the reverse-voltage ramp at zero bias (V).
+inline constexpr double kPlateRampWidth = 0.05;
 
 /// Per-plate constants after area scaling, spread and ageing.
 struct PlateConstants {
