@@ -24,9 +24,7 @@ namespace disc::detail {
 namespace {
 
 constexpr double kSecondsPerYear = 365.25 * 24 * 3600;
-constexpr double kRampWidth = kPlateRampWidth;
 constexpr double kExpLimitCurrent = 1e4;  // A, where the forward exponential turns linear
-constexpr double kLawTmin = kPlateLawTmin, kLawTmax = kPlateLawTmax;
 // exp(-40) = 4e-18 is lost to rounding next to 1: the forward exponential is not evaluated
 // below that.
 constexpr double kNegligibleExponent = 40.0;
@@ -112,7 +110,7 @@ void arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c
 
 void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcrit,
                      ArrheniusCache* cache) {
-  t = std::clamp(t, kLawTmin, kLawTmax);
+  t = std::clamp(t, kPlateLawTmin, kPlateLawTmax);
   if (cache && cache->limitScaleSet && std::abs(t - cache->temperature) <= kCacheKelvin) {
     nvt = cache->limitNvt;
     vcrit = cache->limitVcrit;
@@ -134,8 +132,8 @@ void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcr
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
                    double theta, double f, PlateState& s, ArrheniusCache* cache) {
   const double tPlate = ambient + theta;
-  const bool clamped = tPlate < kLawTmin || tPlate > kLawTmax;
-  const double T = std::clamp(tPlate, kLawTmin, kLawTmax);
+  const bool clamped = tPlate < kPlateLawTmin || tPlate > kPlateLawTmax;
+  const double T = std::clamp(tPlate, kPlateLawTmin, kPlateLawTmax);
   const double invT = 1.0 / T, dInv = invT - 1.0 / k.t0;  // d(dInv)/dT = -1/T^2
   double eIs, eRs, eG, eRate;
   arrhenius(k, T, dInv, cache, eIs, eRs, eG, eRate);
@@ -151,7 +149,7 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
 
   // Image-force enhancement of the reverse saturation current, scaled by deformation.
   double vr, dVrDuj;
-  smoothRamp(-uj, kRampWidth, vr, dVrDuj);
+  smoothRamp(-uj, kPlateRampWidth, vr, dVrDuj);
   dVrDuj = -dVrDuj;
   const double root4 = std::sqrt(std::sqrt(k.vbi + vr));
   const double x = root4 - k.vbi4;
