@@ -102,7 +102,6 @@ def python_overhead(build):
     """The same 1 s bridge run from Python and from C++, and the cost of result[...]."""
     sys.path.insert(0, os.path.join(build, "python"))
     import disc
-    import numpy as np
 
     print("\n## Calling from Python\n")
     c = disc.reference_circuit("bridge")
