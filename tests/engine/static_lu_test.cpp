@@ -3,6 +3,7 @@
 #include <Eigen/SparseCore>
 #include <algorithm>
 #include <catch2/catch.hpp>
+#include <cmath>
 #include <numeric>
 #include <random>
 
@@ -153,4 +154,66 @@ TEST_CASE("Static-pivot LU of a tridiagonal matrix has no fill", "[engine][lu]")
   Eigen::VectorXd b = Eigen::VectorXd::Ones(n), x = b;
   lu.solve(x.data());
   CHECK((Eigen::MatrixXd(a) * x - b).norm() <= 1e-13 * b.norm());
+}
+
+TEST_CASE("Static-pivot LU reports how far elimination cancelled a pivot", "[engine][lu]") {
+  // Hand values. [[1, 1], [1, 1 + d]] with d = 2^-20 (exact in binary): the second pivot is
+  // (1 + d) - 1 * 1 = d, made of magnitudes (1 + d) + 1, so it cancelled by (2 + d) / d =
+  // 2^21 + 1 (G. H. Golub and C. F. Van Loan, Matrix Computations, on cancellation in Gaussian
+  // elimination; from memory).
+  const double d = std::ldexp(1.0, -20);
+  Eigen::SparseMatrix<double> a(2, 2);
+  std::vector<Eigen::Triplet<double>> t = {{0, 0, 1.0}, {0, 1, 1.0}, {1, 0, 1.0}, {1, 1, 1.0 + d}};
+  a.setFromTriplets(t.begin(), t.end());
+  a.makeCompressed();
+  const std::vector<int> natural = {0, 1};
+  StaticLu lu;
+  REQUIRE(lu.build(2, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
+  REQUIRE(lu.factor(a.valuePtr()));
+  CHECK(lu.pivotCancellation() == std::ldexp(1.0, 21) + 1.0);
+  // A voltage source's branch row has an empty diagonal: its pivot [[g, 1], [1, 0]] -> -1/g is
+  // made by elimination alone, from one product, and has cancelled nothing.
+  const double g = 0.25;
+  t = {{0, 0, g}, {0, 1, 1.0}, {1, 0, 1.0}, {1, 1, 0.0}};
+  a.setFromTriplets(t.begin(), t.end());
+  a.makeCompressed();
+  REQUIRE(lu.build(2, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
+  REQUIRE(lu.factor(a.valuePtr()));
+  CHECK(lu.pivotCancellation() == 1.0);
+}
+
+TEST_CASE("A chain of reverse-biased junctions at a long step cancels its pivots", "[engine][lu]") {
+  // Nodal matrix of a series chain whose links alternate a series resistance (25 S) and a
+  // reverse-biased junction (leakage plus its capacitance over a 1 ms step, 2e-9 S), grounded at
+  // the first node through the source's 25 S: eliminating across each strong link leaves the
+  // weak link's conductance as the difference of numbers near 25, about 1e10 times smaller
+  // (the weak mode a solve loses to round-off; the engine then checks the solve by iterative
+  // refinement). With equal links g the pivots are g (k + 2) / (k + 1) and, at the open end,
+  // g - g (n - 1) / n = g / n, made of g (2n - 1) / n: a cancellation of 2n - 1 (a hand value of
+  // the same recurrence), the chain's length and nothing more.
+  const int n = 400;
+  auto chain = [n](double strong, double weak) {
+    std::vector<Eigen::Triplet<double>> t;
+    std::vector<double> diag(static_cast<std::size_t>(n), 0.0);
+    diag[0] = strong;
+    for (int k = 0; k + 1 < n; ++k) {
+      const double link = k % 2 == 0 ? strong : weak;
+      t.emplace_back(k, k + 1, -link);
+      t.emplace_back(k + 1, k, -link);
+      diag[static_cast<std::size_t>(k)] += link;
+      diag[static_cast<std::size_t>(k) + 1] += link;
+    }
+    for (int k = 0; k < n; ++k) t.emplace_back(k, k, diag[static_cast<std::size_t>(k)]);
+    Eigen::SparseMatrix<double> a(n, n);
+    a.setFromTriplets(t.begin(), t.end());
+    a.makeCompressed();
+    std::vector<int> natural(static_cast<std::size_t>(n));
+    std::iota(natural.begin(), natural.end(), 0);
+    StaticLu lu;
+    REQUIRE(lu.build(n, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
+    REQUIRE(lu.factor(a.valuePtr()));
+    return lu.pivotCancellation();
+  };
+  CHECK(chain(25.0, 2e-9) > 1e9);
+  CHECK(chain(25.0, 25.0) == Approx(2 * n - 1).epsilon(1e-9));
 }

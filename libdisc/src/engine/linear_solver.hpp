@@ -3,6 +3,7 @@
 // (StaticLu) reuses KLU's pivot order (private).
 #pragma once
 
+#include <cmath>
 #include <vector>
 
 #include <Eigen/KLUSupport>
@@ -42,6 +43,9 @@ class LinearSolver {
   void factor(System& sys, double a0, double gmin);
   /// Solves J dx = rhs in place (size n).
   void solve(double* rhs, int n);
+  /// How far elimination cancelled the present factors' pivots (StaticLu::pivotCancellation);
+  /// infinite for KLU's own factors, which do not report it.
+  double pivotCancellation() const { return useProgram_ ? program_.pivotCancellation() : HUGE_VAL; }
   /// Factorisations with a pivot search so far (the others reuse the pivot order).
   long fullFactorizations() const { return full_; }
   /// The integration coefficient a0 of the Jacobian G + a0 C last factored (0 for DC; negative

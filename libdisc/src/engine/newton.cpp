@@ -82,6 +82,12 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
   // of at most kQuadraticReach tolerances (a guard against a factorisation gone bad).
   constexpr double kQuadraticBelow = 0.2, kQuadraticReach = 1e3;
   constexpr double kRefinementBelow = 0.02;  // the solve's own error, in tolerances
+  // Factors whose pivots cancelled by at most this factor solve to about 1e-11 relative
+  // (16 - 5 digits): on an update of at most kQuadraticReach tolerances an error near 1e-8
+  // tolerances, far inside kRefinementBelow, so the refinement solve is skipped. The lost weak
+  // mode of a long reverse-biased junction chain cancels by 1e8 and more; the transformer
+  // bridge's factors reach 1e8 with refinement errors still below 1e-6 tolerances.
+  constexpr double kTrustedCancellation = 1e5;
   // Per unknown, 1 / (2 S) for the smallest scale S over which the device laws bend in it,
   // beside the junctions, which declare their own (Device::junctionPairs): temperatures
   // kT^2/Ea >= 2 K (activation energies up to 1.5 eV at 200 K and above), slow states 0.1;
@@ -130,8 +136,10 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
       factored = true;
       ++stats.factorizations;
     }
-    // The right-hand side is kept for the refinement check of an exact step (below).
-    if (settings.acceptQuadratic && !chord) rhs.assign(dx.begin(), dx.end());
+    // The right-hand side is kept for the refinement check of an exact step (below), unless
+    // the factors' pivots vouch for the solve.
+    const bool solveVouched = !chord && ls.pivotCancellation() <= kTrustedCancellation;
+    if (settings.acceptQuadratic && !chord && !solveVouched) rhs.assign(dx.begin(), dx.end());
     ls.solve(dx.data(), n);
     dx[static_cast<std::size_t>(n)] = 0.0;
     ++stats.newtonIterations;
@@ -190,11 +198,14 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
                                   quadratic <= kQuadraticBelow &&
                                   junctionRemainder <= kQuadraticBelow;
     if (it == 0) out.firstUpdateQuadratic = secondOrderSmall;
-    if (!small && settings.acceptQuadratic && !chord && secondOrderSmall) {
+    if (!small && settings.acceptQuadratic && !chord && secondOrderSmall && solveVouched) {
+      small = true;
+    } else if (!small && settings.acceptQuadratic && !chord && secondOrderSmall) {
       // The quadratic bound holds for the exact Newton update; a factorisation that lost a weak
       // mode to round-off (a long chain of junctions in reverse bias at a long step) gives a
-      // different one. One step of iterative refinement measures the solve's own error: the
-      // residual of the linear system, solved again, must be far within tolerance.
+      // different one. Where the pivots do not vouch for the solve, one step of iterative
+      // refinement measures its error: the residual of the linear system, solved again, must
+      // be far within tolerance.
       sys.jacobianTimes(a0, settings.gmin, dx.data(), f.data());
       for (int k = 0; k < n; ++k) {
         const auto uk = static_cast<std::size_t>(k);

@@ -25,6 +25,9 @@ void StaticLu::clear() {
   upperSolve_.clear();
   lu_.clear();
   invPivot_.clear();
+  pivotTerms_.clear();
+  pivotMass_.clear();
+  pivotCancellation_ = HUGE_VAL;
 }
 
 bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, const int* q) {
@@ -47,6 +50,13 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
   for (std::size_t e = 0; e < loaded.size(); ++e)
     if (!loaded[e]) fill_.push_back(static_cast<int>(e));
   invPivot_.assign(static_cast<std::size_t>(n), 0.0);
+  pivotMass_.assign(static_cast<std::size_t>(n), 0.0);
+  std::vector<int> pivotOf(row_.size(), -1);
+  for (int k = 0; k < n; ++k)
+    pivotOf[static_cast<std::size_t>(diag_[static_cast<std::size_t>(k)])] = k;
+  for (const Op& o : ops_)
+    if (const int k = pivotOf[static_cast<std::size_t>(o.dst)]; k >= 0)
+      pivotTerms_.push_back({k, o.l, o.u});
   work_.assign(static_cast<std::size_t>(n), 0.0);
   return true;
 }
@@ -187,6 +197,8 @@ bool StaticLu::eliminate() {
   const int* pivot = pivots_.data();
   const Scale* scale = scales_.data();
   const int* diag = diag_.data();
+  double* mass = pivotMass_.data();
+  for (int k = 0; k < n_; ++k) mass[k] = std::abs(lu[diag[k]]);
   for (const LevelEnd& end : levelEnd_) {
     for (const Op* last = ops_.data() + end.ops; op != last; ++op)
       lu[op->dst] -= lu[op->l] * lu[op->u];
@@ -195,10 +207,12 @@ bool StaticLu::eliminate() {
     for (const Scale* last = scales_.data() + end.scales; scale != last; ++scale)
       lu[scale->entry] *= inv[scale->column];
   }
+  // What went into each pivot (before U is scaled: lu[u] is still U(j, k) itself).
+  for (const PivotTerm& t : pivotTerms_) mass[t.column] += std::abs(lu[t.l] * lu[t.u]);
   // U's rows scaled to a unit diagonal: the solve then has no per-column division step.
   for (const SolveOp& u : upperSolve_) lu[u.entry] *= inv[u.dst];
   // Pivot magnitudes in a separate pass, off the elimination's dependency chain.
-  double smallest = HUGE_VAL, largest = 0.0;
+  double smallest = HUGE_VAL, largest = 0.0, cancellation = 0.0;
   bool regular = true;
   for (int k = 0; k < n_; ++k) {
     const double mag = std::abs(inv[k]);  // 1 / |pivot|
@@ -206,12 +220,16 @@ bool StaticLu::eliminate() {
     regular = regular && mag > 0.0 && mag < HUGE_VAL;
     smallest = std::min(smallest, mag);
     largest = std::max(largest, mag);
+    cancellation = std::max(cancellation, mass[k] * mag);
   }
   if (!regular) {
     pivotRatio_ = 0.0;
+    pivotCancellation_ = HUGE_VAL;
     return false;
   }
   pivotRatio_ = smallest / largest;  // min |pivot| / max |pivot|
+  pivotCancellation_ = cancellation;
+
   return true;
 }
 

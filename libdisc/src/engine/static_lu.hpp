@@ -1,6 +1,7 @@
 // Sparse LU with a fixed pivot sequence, compiled into a flat list of operations (private).
 #pragma once
 
+#include <cmath>
 #include <vector>
 
 namespace disc::detail {
@@ -30,6 +31,13 @@ class StaticLu {
   bool factor(const double* g, const double* c, double a0, const std::vector<int>& shiftSlots,
               double shift);
   double pivotRatio() const { return pivotRatio_; }
+  /// The largest factor by which elimination cancelled a pivot: the sum of the magnitudes that
+  /// made it (the entry as loaded and every product subtracted from it) over its magnitude as
+  /// factored. A pivot that cancelled by a factor c carries only about 16 - log10(c) correct
+  /// digits; the weak mode of a long chain of reverse-biased junctions at a long time step
+  /// shows here as a factor of 1e8 and more. Small values vouch for the solve's accuracy
+  /// without a check by iterative refinement.
+  double pivotCancellation() const { return pivotCancellation_; }
 
   /// Solves A x = b in place with the last factors (L unit lower, U scaled to unit diagonal, D
   /// the pivots).
@@ -60,6 +68,9 @@ class StaticLu {
   struct SolveOp {
     int dst, entry, src;  // y[dst] -= lu[entry] * y[src]
   };
+  struct PivotTerm {
+    int column, l, u;  // |lu[l] * lu[u]| (U unscaled) entered pivot `column`
+  };
   int n_ = 0;
   std::vector<int> perm_, qperm_;  // p and q of build()
   std::vector<int> colStart_;      // per column: U entries, then the diagonal, then L entries
@@ -75,8 +86,11 @@ class StaticLu {
   std::vector<SolveOp> upperSolve_;  // U off the diagonal by columns in decreasing order
   std::vector<double> lu_;
   std::vector<double> invPivot_;
+  std::vector<PivotTerm> pivotTerms_;  // the operations whose destination is a pivot
+  std::vector<double> pivotMass_;      // per pivot: |entry as loaded| + sum of |products|
   mutable std::vector<double> work_;
   double pivotRatio_ = 0.0;
+  double pivotCancellation_ = HUGE_VAL;
 };
 
 }  // namespace disc::detail
