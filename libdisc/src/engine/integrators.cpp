@@ -120,7 +120,8 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   double t = 0.0, hPrev = 0.0;
   double h = o.initialStep > 0.0 ? o.initialStep : std::min(hmax, o.stop) * 1e-3;
   bool restart = true;
-  double errAccepted = 0.0, hAccepted = 0.0;  // the last accepted step's error and size
+  double errAccepted = 0.0, hAccepted = 0.0;        // the last accepted step's error and size
+  double acceptedFactor = 0.0, acceptedExpo = 0.0;  // its errAccepted^-acceptedExpo
   std::size_t nextBreak = 0;
 
   while (t < o.stop) {
@@ -152,9 +153,13 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       const double tau = t + h;
       std::array<double, 4> w{};
       for (std::size_t a = 0; a < 4; ++a) {
-        w[a] = 1.0;
+        double num = 1.0, den = 1.0;  // one division per weight, not three
         for (std::size_t b = 0; b < 4; ++b)
-          if (b != a) w[a] *= (tau - xTimes[b]) / (xTimes[a] - xTimes[b]);
+          if (b != a) {
+            num *= tau - xTimes[b];
+            den *= xTimes[a] - xTimes[b];
+          }
+        w[a] = num / den;
       }
       for (int k = 0; k < n; ++k) {
         const auto uk = static_cast<std::size_t>(k);
@@ -288,7 +293,9 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     if (t >= o.recordFrom) rec.record(ctx);
     reportProgress(o, t);
 
-    double grow = errNorm > 0.0 ? 0.9 * std::pow(errNorm, -expo) : 2.0;
+    // errNorm^-expo once per step: the predictive rule below reuses the last accepted one.
+    const double errFactor = errNorm > 0.0 ? std::pow(errNorm, -expo) : 0.0;
+    double grow = errNorm > 0.0 ? 0.9 * errFactor : 2.0;
     // Gustafsson's predictive controller (E. Hairer and G. Wanner, Solving Ordinary
     // Differential Equations II, section IV.8): when the error grows from step to step, as it
     // does while a junction approaches switching, it slows the growth the plain rule would
@@ -296,9 +303,14 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     // time. The smaller of the two factors is taken.
     // Only between steps of the same formula: an error estimate after a backward-Euler restart
     // is of another order and says nothing about the trend.
-    if (errAccepted > 0.0 && errNorm > 0.0 && hAccepted > 0.0 && f != Formula::Euler)
-      grow = std::min(grow, grow * (hPrev / hAccepted) * std::pow(errAccepted / errNorm, expo));
+    // (errAccepted / errNorm)^expo = errFactor / acceptedFactor, both of exponent expo: a step
+    // of the same formula after a step of the same order.
+    if (errAccepted > 0.0 && errNorm > 0.0 && hAccepted > 0.0 && f != Formula::Euler &&
+        acceptedExpo == expo)
+      grow = std::min(grow, grow * (hPrev / hAccepted) * (errFactor / acceptedFactor));
     errAccepted = f != Formula::Euler ? errNorm : 0.0;
+    acceptedFactor = errFactor;
+    acceptedExpo = expo;
     hAccepted = hPrev;
     h *= std::clamp(grow, 0.3, 2.0);
     restart = false;
