@@ -146,6 +146,12 @@ class Device {
   /// than its currents overrides this (default: evaluate()).
   virtual void evaluateCharges(const EvalContext& ctx, Stamp& s) const { evaluate(ctx, s); }
 
+  /// True when what evaluate() adds is exactly i = G x and q = C x with G and C constant (no
+  /// source term, no dependence on time, temperature or history): resistors, capacitors,
+  /// inductors, couplings and transformers. The engine then stamps the device once per
+  /// analysis and forms its currents and charges from that stamp, without calling it.
+  virtual bool isLinear() const { return false; }
+
   /// Terminal pairs that conduct at DC (for the floating-node check before simulation).
   virtual std::vector<std::pair<int, int>> dcPaths() const;
   /// True when the device forces a voltage between its first two terminals (loop check).

@@ -131,6 +131,38 @@ System::System(Circuit& circuit) : circuit_(circuit) {
   C.assign(slots, 0.0);
   i.assign(static_cast<std::size_t>(n_) + 1, 0.0);
   q.assign(static_cast<std::size_t>(n_) + 1, 0.0);
+  stampLinearDevices();
+}
+
+void System::stampLinearDevices() {
+  // A linear device's stamp does not depend on x: taken once at x = 0 (the currents and
+  // charges it adds there are zero, and ignored).
+  const std::size_t slots = G.size();
+  linearG_.assign(slots, 0.0);
+  linearC_.assign(slots, 0.0);
+  std::vector<double> zeros(static_cast<std::size_t>(n_) + 1, 0.0), scratchI = zeros,
+                                                                    scratchQ = zeros;
+  EvalContext ctx;
+  ctx.x = zeros.data();
+  ctx.xdot = zeros.data();
+  Stamp s{scratchI.data(), scratchQ.data(), linearG_.data(), linearC_.data(), true};
+  evaluated_.clear();
+  for (Device* d : devices_) {
+    if (d->isLinear())
+      d->evaluate(ctx, s);
+    else
+      evaluated_.push_back(d);
+  }
+  linearG_.back() = 0.0;  // the ground discard slot
+  linearC_.back() = 0.0;
+  const int* outer = jac_.outerIndexPtr();
+  const int* inner = jac_.innerIndexPtr();
+  for (int col = 0; col < n_; ++col)
+    for (int k = outer[col]; k < outer[col + 1]; ++k) {
+      const auto slot = static_cast<std::size_t>(k);
+      if (linearG_[slot] != 0.0) linearCurrents_.push_back({inner[k], col, linearG_[slot]});
+      if (linearC_[slot] != 0.0) linearCharges_.push_back({inner[k], col, linearC_[slot]});
+    }
 }
 
 std::string System::describe(int k) const {
@@ -164,15 +196,21 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
   std::fill(i.begin(), i.end(), 0.0);
   std::fill(q.begin(), q.end(), 0.0);
   if (jacobian) {
-    std::fill(G.begin(), G.end(), 0.0);
-    std::fill(C.begin(), C.end(), 0.0);
+    std::copy(linearG_.begin(), linearG_.end(), G.begin());
+    std::copy(linearC_.begin(), linearC_.end(), C.begin());
   }
+  for (const LinearTerm& t : linearCurrents_)
+    i[static_cast<std::size_t>(t.row)] += t.value * ctx.x[t.col];
+  for (const LinearTerm& t : linearCharges_)
+    q[static_cast<std::size_t>(t.row)] += t.value * ctx.x[t.col];
   Stamp s{i.data(), q.data(), G.data(), C.data(), jacobian};
   forEachDevice([&](const Device* d) { d->evaluate(ctx, s); });
 }
 
 void System::evaluateCharges(const EvalContext& ctx) {
   std::fill(q.begin(), q.end(), 0.0);
+  for (const LinearTerm& t : linearCharges_)
+    q[static_cast<std::size_t>(t.row)] += t.value * ctx.x[t.col];
   Stamp s{i.data(), q.data(), G.data(), C.data(), false};
   forEachDevice([&](const Device* d) { d->evaluateCharges(ctx, s); });
 }

@@ -74,23 +74,34 @@ class System {
   std::vector<double> i, q, G, C;
 
  private:
-  /// Calls f for every device in order. Large circuits outgrow the core's cache: the device
-  /// four places ahead is fetched while this one is evaluated (the ladder of 10000 diodes spent
-  /// half its evaluation time waiting for device data otherwise).
+  /// Calls f for every device that is not linear (Device::isLinear), in order. Large circuits
+  /// outgrow the core's cache: the device four places ahead is fetched while this one is evaluated
+  /// (the ladder of 10000 diodes spent half its evaluation time waiting for device data otherwise).
   template <class F>
   void forEachDevice(F&& f) const {
-    const std::size_t count = devices_.size();
+    const std::size_t count = evaluated_.size();
     for (std::size_t k = 0; k < count; ++k) {
       if (k + 4 < count) {
-        const char* next = reinterpret_cast<const char*>(devices_[k + 4]);
+        const char* next = reinterpret_cast<const char*>(evaluated_[k + 4]);
         for (int line = 0; line < 6; ++line) __builtin_prefetch(next + 64 * line);
       }
-      f(devices_[k]);
+      f(evaluated_[k]);
     }
   }
+  /// Stamps the linear devices once (linearG_, linearC_ and their terms).
+  void stampLinearDevices();
+  /// One nonzero entry of the linear devices' G or C.
+  struct LinearTerm {
+    int row, col;
+    double value;
+  };
 
   Circuit& circuit_;
   std::vector<Device*> devices_;
+  std::vector<Device*> evaluated_;              // the devices that are not linear
+  std::vector<double> linearG_, linearC_;       // the linear devices' G and C, per slot
+  std::vector<LinearTerm> linearCurrents_;      // nonzeros of linearG_: i += G x
+  std::vector<LinearTerm> linearCharges_;       // nonzeros of linearC_: q += C x
   std::vector<int> junctionPos_, junctionNeg_;  // Device::junctionPairs of all devices
   std::vector<double> junctionHalfCurvature_;   // 1 / (2 scale) of each
   int n_ = 0;

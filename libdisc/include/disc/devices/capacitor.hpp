@@ -17,6 +17,7 @@ class Capacitor : public DeviceBase<Capacitor> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  bool isLinear() const override { return true; }
   std::vector<std::pair<int, int>> dcPaths() const override { return {}; }
   std::vector<std::string> probes() const override { return {"i", "p", "energy"}; }
   std::string probeUnit(int k) const override;

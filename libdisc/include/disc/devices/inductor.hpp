@@ -23,6 +23,7 @@ class Inductor : public DeviceBase<Inductor> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  bool isLinear() const override { return true; }
   bool definesVoltage() const override { return true; }
   std::vector<std::string> probes() const override { return {"i", "p", "energy"}; }
   std::string probeUnit(int k) const override;
@@ -47,6 +48,7 @@ class Coupling : public DeviceBase<Coupling> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  bool isLinear() const override { return true; }
   std::vector<std::pair<int, int>> dcPaths() const override { return {}; }
   std::vector<std::string> probes() const override { return {"energy"}; }
   std::string probeUnit(int) const override { return "J"; }

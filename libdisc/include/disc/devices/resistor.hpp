@@ -17,6 +17,7 @@ class Resistor : public DeviceBase<Resistor> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  bool isLinear() const override { return true; }
   void evaluateCharges(const EvalContext&, Stamp&) const override {}  // no charge
   double probe(int k, const EvalContext& ctx) const override;
 

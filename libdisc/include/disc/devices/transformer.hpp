@@ -32,6 +32,7 @@ class Transformer : public DeviceBase<Transformer> {
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
   void evaluate(const EvalContext& ctx, Stamp& s) const override;
+  bool isLinear() const override { return true; }
   std::vector<std::pair<int, int>> dcPaths() const override { return {{0, 1}, {2, 3}}; }
   std::vector<std::string> probes() const override { return {"i1", "i2", "p", "energy", "loss"}; }
   std::string probeUnit(int k) const override;
