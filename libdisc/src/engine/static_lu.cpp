@@ -39,7 +39,11 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
     clear();
     return false;
   }
+  row_.shrink_to_fit();  // built entry by entry; a long run should not keep the growth slack
+  ops_.reserve(columnOps.size());
   scheduleByLevel(columnOps, opsEnd, level);
+  pivotTerms_.shrink_to_fit();
+  scales_.shrink_to_fit();
   buildSolveStreams();
   n_ = n;
   perm_.assign(p, p + n);
@@ -51,12 +55,6 @@ bool StaticLu::build(int n, const int* colPtr, const int* rowIdx, const int* p, 
     if (!loaded[e]) fill_.push_back(static_cast<int>(e));
   invPivot_.assign(static_cast<std::size_t>(n), 0.0);
   pivotMass_.assign(static_cast<std::size_t>(n), 0.0);
-  std::vector<int> pivotOf(row_.size(), -1);
-  for (int k = 0; k < n; ++k)
-    pivotOf[static_cast<std::size_t>(diag_[static_cast<std::size_t>(k)])] = k;
-  for (const Op& o : ops_)
-    if (const int k = pivotOf[static_cast<std::size_t>(o.dst)]; k >= 0)
-      pivotTerms_.push_back({k, o.l, o.u});
   work_.assign(static_cast<std::size_t>(n), 0.0);
   return true;
 }
@@ -144,8 +142,11 @@ void StaticLu::scheduleByLevel(const std::vector<Op>& columnOps, const std::vect
   for (const auto& cols : byLevel) {
     for (int k : cols)
       for (int o = k > 0 ? opsEnd[static_cast<std::size_t>(k) - 1] : 0;
-           o < opsEnd[static_cast<std::size_t>(k)]; ++o)
-        ops_.push_back(columnOps[static_cast<std::size_t>(o)]);
+           o < opsEnd[static_cast<std::size_t>(k)]; ++o) {
+        const Op& op = columnOps[static_cast<std::size_t>(o)];
+        ops_.push_back(op);
+        if (op.dst == diag_[static_cast<std::size_t>(k)]) pivotTerms_.push_back({k, op.l, op.u});
+      }
     for (int k : cols) {
       pivots_.push_back(k);
       for (int e = diag_[static_cast<std::size_t>(k)] + 1;
@@ -161,6 +162,8 @@ void StaticLu::buildSolveStreams() {
   // L by columns in increasing order, U (rows scaled to a unit diagonal after each
   // factorisation) by columns in decreasing order.
   const int n = static_cast<int>(diag_.size());
+  lower_.reserve(scales_.size());  // one solve operation per L entry
+  upperSolve_.reserve(row_.size() - scales_.size() - diag_.size());
   for (int k = 0; k < n; ++k)
     for (int e = diag_[static_cast<std::size_t>(k)] + 1;
          e < colStart_[static_cast<std::size_t>(k) + 1]; ++e)

@@ -136,16 +136,16 @@ System::System(Circuit& circuit) : circuit_(circuit) {
 
 void System::stampLinearDevices() {
   // A linear device's stamp does not depend on x: taken once at x = 0 (the currents and
-  // charges it adds there are zero, and ignored).
-  const std::size_t slots = G.size();
-  linearG_.assign(slots, 0.0);
-  linearC_.assign(slots, 0.0);
-  std::vector<double> zeros(static_cast<std::size_t>(n_) + 1, 0.0), scratchI = zeros,
-                                                                    scratchQ = zeros;
+  // charges it adds there are zero, and ignored), into G and C, which every evaluation
+  // overwrites. Kept as lists of nonzeros, not as slot arrays: a large circuit of nonlinear
+  // devices should not pay two more arrays per slot.
+  std::fill(G.begin(), G.end(), 0.0);
+  std::fill(C.begin(), C.end(), 0.0);
+  const std::vector<double> zeros(static_cast<std::size_t>(n_) + 1, 0.0);
   EvalContext ctx;
   ctx.x = zeros.data();
   ctx.xdot = zeros.data();
-  Stamp s{scratchI.data(), scratchQ.data(), linearG_.data(), linearC_.data(), true};
+  Stamp s{i.data(), q.data(), G.data(), C.data(), true};
   evaluated_.clear();
   for (Device* d : devices_) {
     if (d->isLinear())
@@ -153,15 +153,15 @@ void System::stampLinearDevices() {
     else
       evaluated_.push_back(d);
   }
-  linearG_.back() = 0.0;  // the ground discard slot
-  linearC_.back() = 0.0;
+  linearCurrents_.clear();
+  linearCharges_.clear();
   const int* outer = jac_.outerIndexPtr();
   const int* inner = jac_.innerIndexPtr();
   for (int col = 0; col < n_; ++col)
     for (int k = outer[col]; k < outer[col + 1]; ++k) {
       const auto slot = static_cast<std::size_t>(k);
-      if (linearG_[slot] != 0.0) linearCurrents_.push_back({inner[k], col, linearG_[slot]});
-      if (linearC_[slot] != 0.0) linearCharges_.push_back({inner[k], col, linearC_[slot]});
+      if (G[slot] != 0.0) linearCurrents_.push_back({k, inner[k], col, G[slot]});
+      if (C[slot] != 0.0) linearCharges_.push_back({k, inner[k], col, C[slot]});
     }
 }
 
@@ -196,8 +196,10 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
   std::fill(i.begin(), i.end(), 0.0);
   std::fill(q.begin(), q.end(), 0.0);
   if (jacobian) {
-    std::copy(linearG_.begin(), linearG_.end(), G.begin());
-    std::copy(linearC_.begin(), linearC_.end(), C.begin());
+    std::fill(G.begin(), G.end(), 0.0);
+    std::fill(C.begin(), C.end(), 0.0);
+    for (const LinearTerm& t : linearCurrents_) G[static_cast<std::size_t>(t.slot)] = t.value;
+    for (const LinearTerm& t : linearCharges_) C[static_cast<std::size_t>(t.slot)] = t.value;
   }
   for (const LinearTerm& t : linearCurrents_)
     i[static_cast<std::size_t>(t.row)] += t.value * ctx.x[t.col];

@@ -88,20 +88,19 @@ class System {
       f(evaluated_[k]);
     }
   }
-  /// Stamps the linear devices once (linearG_, linearC_ and their terms).
+  /// Stamps the linear devices once, into linearCurrents_ and linearCharges_.
   void stampLinearDevices();
-  /// One nonzero entry of the linear devices' G or C.
+  /// One nonzero entry of the linear devices' G or C: its slot, row and column.
   struct LinearTerm {
-    int row, col;
+    int slot, row, col;
     double value;
   };
 
   Circuit& circuit_;
   std::vector<Device*> devices_;
   std::vector<Device*> evaluated_;              // the devices that are not linear
-  std::vector<double> linearG_, linearC_;       // the linear devices' G and C, per slot
-  std::vector<LinearTerm> linearCurrents_;      // nonzeros of linearG_: i += G x
-  std::vector<LinearTerm> linearCharges_;       // nonzeros of linearC_: q += C x
+  std::vector<LinearTerm> linearCurrents_;      // the linear devices' G (i += G x)
+  std::vector<LinearTerm> linearCharges_;       // their C (q += C x)
   std::vector<int> junctionPos_, junctionNeg_;  // Device::junctionPairs of all devices
   std::vector<double> junctionHalfCurvature_;   // 1 / (2 scale) of each
   int n_ = 0;
