@@ -51,6 +51,20 @@ Shuffled shuffledDominant(int n, double density, unsigned seed) {
   return s;
 }
 
+// An n x n matrix from triplets, compressed, and the natural order 0..n-1 as pivot order.
+Eigen::SparseMatrix<double> compressed(int n, const std::vector<Eigen::Triplet<double>>& t) {
+  Eigen::SparseMatrix<double> a(n, n);
+  a.setFromTriplets(t.begin(), t.end());
+  a.makeCompressed();
+  return a;
+}
+
+std::vector<int> naturalOrder(int n) {
+  std::vector<int> natural(static_cast<std::size_t>(n));
+  std::iota(natural.begin(), natural.end(), 0);
+  return natural;
+}
+
 }  // namespace
 
 TEST_CASE("Static-pivot LU solves like a dense LU", "[engine][lu]") {
@@ -141,11 +155,8 @@ TEST_CASE("Static-pivot LU of a tridiagonal matrix has no fill", "[engine][lu]")
     if (k > 0) t.emplace_back(k, k - 1, -1.0);
     if (k + 1 < n) t.emplace_back(k, k + 1, -1.5);
   }
-  Eigen::SparseMatrix<double> a(n, n);
-  a.setFromTriplets(t.begin(), t.end());
-  a.makeCompressed();
-  std::vector<int> natural(static_cast<std::size_t>(n));
-  std::iota(natural.begin(), natural.end(), 0);
+  const Eigen::SparseMatrix<double> a = compressed(n, t);
+  const std::vector<int> natural = naturalOrder(n);
   StaticLu lu;
   REQUIRE(lu.build(n, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
   CHECK(lu.factorEntries() == static_cast<std::size_t>(a.nonZeros()));
@@ -162,11 +173,9 @@ TEST_CASE("Static-pivot LU reports how far elimination cancelled a pivot", "[eng
   // 2^21 + 1 (G. H. Golub and C. F. Van Loan, Matrix Computations, on cancellation in Gaussian
   // elimination; from memory).
   const double d = std::ldexp(1.0, -20);
-  Eigen::SparseMatrix<double> a(2, 2);
-  std::vector<Eigen::Triplet<double>> t = {{0, 0, 1.0}, {0, 1, 1.0}, {1, 0, 1.0}, {1, 1, 1.0 + d}};
-  a.setFromTriplets(t.begin(), t.end());
-  a.makeCompressed();
-  const std::vector<int> natural = {0, 1};
+  Eigen::SparseMatrix<double> a =
+      compressed(2, {{0, 0, 1.0}, {0, 1, 1.0}, {1, 0, 1.0}, {1, 1, 1.0 + d}});
+  const std::vector<int> natural = naturalOrder(2);
   StaticLu lu;
   REQUIRE(lu.build(2, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
   REQUIRE(lu.factor(a.valuePtr()));
@@ -174,9 +183,7 @@ TEST_CASE("Static-pivot LU reports how far elimination cancelled a pivot", "[eng
   // A voltage source's branch row has an empty diagonal: its pivot [[g, 1], [1, 0]] -> -1/g is
   // made by elimination alone, from one product, and has cancelled nothing.
   const double g = 0.25;
-  t = {{0, 0, g}, {0, 1, 1.0}, {1, 0, 1.0}, {1, 1, 0.0}};
-  a.setFromTriplets(t.begin(), t.end());
-  a.makeCompressed();
+  a = compressed(2, {{0, 0, g}, {0, 1, 1.0}, {1, 0, 1.0}, {1, 1, 0.0}});
   REQUIRE(lu.build(2, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
   REQUIRE(lu.factor(a.valuePtr()));
   CHECK(lu.pivotCancellation() == 1.0);
@@ -204,11 +211,8 @@ TEST_CASE("A chain of reverse-biased junctions at a long step cancels its pivots
       diag[static_cast<std::size_t>(k) + 1] += link;
     }
     for (int k = 0; k < n; ++k) t.emplace_back(k, k, diag[static_cast<std::size_t>(k)]);
-    Eigen::SparseMatrix<double> a(n, n);
-    a.setFromTriplets(t.begin(), t.end());
-    a.makeCompressed();
-    std::vector<int> natural(static_cast<std::size_t>(n));
-    std::iota(natural.begin(), natural.end(), 0);
+    const Eigen::SparseMatrix<double> a = compressed(n, t);
+    const std::vector<int> natural = naturalOrder(n);
     StaticLu lu;
     REQUIRE(lu.build(n, a.outerIndexPtr(), a.innerIndexPtr(), natural.data(), natural.data()));
     REQUIRE(lu.factor(a.valuePtr()));

@@ -232,7 +232,6 @@ bool StaticLu::eliminate() {
   }
   pivotRatio_ = smallest / largest;  // min |pivot| / max |pivot|
   pivotCancellation_ = cancellation;
-
   return true;
 }
 
