@@ -91,6 +91,8 @@ void SeleniumBridgeOneSecond(benchmark::State& st) {
 BENCHMARK(SeleniumBridgeOneSecond)
     ->Args({0, 5})
     ->Args({1, 5})
+    ->Args({0, 7})
+    ->Args({1, 7})
     ->Args({0, 10})
     ->Args({1, 10})
     ->Unit(benchmark::kMillisecond);
