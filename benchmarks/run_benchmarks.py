@@ -114,11 +114,15 @@ def python_overhead(build):
     py, cpp = min(walls), min(inner)
     print(f"1 s bridge, trap: {py * 1e3:.1f} ms from Python, {cpp * 1e3:.1f} ms inside the C++ "
           f"run: overhead {100 * (py - cpp) / cpp:.2f} %")
+    # Best of three loops: the first pays one-time costs of the interpreter and NumPy (0.8 us
+    # per access against 0.3 us after).
     n = 100000
-    t0 = time.perf_counter()
-    for _ in range(n):
-        r["v:out"]
-    per = (time.perf_counter() - t0) / n
+    per = float("inf")
+    for _ in range(3):
+        t0 = time.perf_counter()
+        for _ in range(n):
+            r["v:out"]
+        per = min(per, (time.perf_counter() - t0) / n)
     print(f"result['v:out'] ({len(r['v:out'])} points): {per * 1e6:.2f} us per access, no copy "
           f"(base is the result: {r['v:out'].base is not None})")
 
