@@ -198,28 +198,29 @@ NewtonOutcome solveNewton(System& sys, LinearSolver& ls, std::vector<double>& x,
                                   quadratic <= kQuadraticBelow &&
                                   junctionRemainder <= kQuadraticBelow;
     if (it == 0) out.firstUpdateQuadratic = secondOrderSmall;
-    if (!small && settings.acceptQuadratic && !chord && secondOrderSmall && solveVouched) {
-      small = true;
-    } else if (!small && settings.acceptQuadratic && !chord && secondOrderSmall) {
+    if (!small && settings.acceptQuadratic && !chord && secondOrderSmall) {
       // The quadratic bound holds for the exact Newton update; a factorisation that lost a weak
       // mode to round-off (a long chain of junctions in reverse bias at a long step) gives a
       // different one. Where the pivots do not vouch for the solve, one step of iterative
       // refinement measures its error: the residual of the linear system, solved again, must
       // be far within tolerance.
-      sys.jacobianTimes(a0, settings.gmin, dx.data(), f.data());
-      for (int k = 0; k < n; ++k) {
-        const auto uk = static_cast<std::size_t>(k);
-        f[uk] = rhs[uk] - f[uk];
+      small = solveVouched;
+      if (!small) {
+        sys.jacobianTimes(a0, settings.gmin, dx.data(), f.data());
+        for (int k = 0; k < n; ++k) {
+          const auto uk = static_cast<std::size_t>(k);
+          f[uk] = rhs[uk] - f[uk];
+        }
+        f[static_cast<std::size_t>(n)] = 0.0;
+        ls.solve(f.data(), n);
+        double refinement = 0.0;
+        for (int k = 0; k < n; ++k) {
+          const auto uk = static_cast<std::size_t>(k);
+          refinement = std::max(refinement,
+                                std::abs(f[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
+        }
+        small = refinement <= kRefinementBelow;
       }
-      f[static_cast<std::size_t>(n)] = 0.0;
-      ls.solve(f.data(), n);
-      double refinement = 0.0;
-      for (int k = 0; k < n; ++k) {
-        const auto uk = static_cast<std::size_t>(k);
-        refinement = std::max(refinement,
-                              std::abs(f[uk]) / (settings.reltol * std::abs(x[uk]) + abstol[uk]));
-      }
-      small = refinement <= kRefinementBelow;
     }
     // Or converging fast enough that the iterate just formed is within tolerance: with the
     // contraction rate rho of the last two updates, the remaining error is about
