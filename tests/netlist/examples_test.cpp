@@ -177,5 +177,5 @@ TEST_CASE("Every example netlist runs with either integrator at two tolerances",
       }
     }
   }
-  CHECK(runs >= 24);  // the seven bundled supplies, four ways each
+  CHECK(runs >= 28);  // the seven bundled supplies, four ways each
 }
