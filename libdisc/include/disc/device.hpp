@@ -30,6 +30,10 @@ enum class UnknownKind { Voltage, Current, Temperature, State };
 struct UnknownSpec {
   std::string suffix;
   UnknownKind kind;
+  /// True for a state that moves far slower than the mains period (a plate's temperature, its
+  /// forming state, a valve's warm-up): the periodic steady state holds it fixed and the
+  /// slow-state envelope integrates it on period averages of its own equation.
+  bool slow = false;
 };
 
 /// Reserves Jacobian entries during set-up. The engine writes the final value-array slot of each
@@ -64,6 +68,10 @@ struct EvalContext {
   const double* x = nullptr;     ///< unknowns; x[ground] == 0
   const double* xdot = nullptr;  ///< time derivatives of x (zero in DC analyses)
   double time = 0.0;             ///< s
+  /// s, the clock of slow excitations (a variac schedule, a warm-up): NaN follows `time`; the
+  /// periodic steady state sets it to the envelope's time and holds it over the period.
+  double slowTime = std::numeric_limits<double>::quiet_NaN();
+  double slowClock() const { return std::isnan(slowTime) ? time : slowTime; }
   double sourceScale = 1.0;      ///< 0..1, scales independent sources (source stepping)
   bool dc = false;               ///< true in operating-point analyses
   /// Newton limiting memory, one cell per limitCells() of each device (nullptr: no limiting).

@@ -91,7 +91,7 @@ Diode::Scale Diode::scaleAt(double t) const {
 std::vector<UnknownSpec> Diode::internalUnknowns() const {
   std::vector<UnknownSpec> u;
   if (p_.rs > 0.0) u.push_back({"j", UnknownKind::Voltage});
-  if (p_.rth > 0.0) u.push_back({"temp", UnknownKind::Temperature});
+  if (p_.rth > 0.0) u.push_back({"temp", UnknownKind::Temperature, true});
   return u;
 }
 

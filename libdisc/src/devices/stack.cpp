@@ -192,8 +192,8 @@ std::vector<UnknownSpec> Stack::internalUnknowns() const {
     if (p.pos > 0) u.push_back({"node" + id, UnknownKind::Voltage});
     u.push_back({"j" + id, UnknownKind::Voltage});
     u.push_back({"trap" + id, UnknownKind::Voltage});
-    u.push_back({"temp" + id, UnknownKind::Temperature});
-    u.push_back({"form" + id, UnknownKind::State});
+    u.push_back({"temp" + id, UnknownKind::Temperature, true});
+    u.push_back({"form" + id, UnknownKind::State, true});
   }
   return u;
 }
