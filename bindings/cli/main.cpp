@@ -315,7 +315,8 @@ int main(int argc, char** argv) {
   replace->add_option("--stack", rp.options.stacks, "Stack to replace (repeat for several)")
       ->required();
   replace->add_option("--diode", rp.options.diode,
-                      "Silicon diode parameters in netlist words, e.g. \"is=5n n=1.8 rs=0.05\"");
+                      "Silicon diode parameters in netlist words, e.g. \"saturation-current=5n "
+                      "ideality=1.8 series-resistance=0.05\"");
   replace->add_option("--loads", rp.loads, "Load fractions of the comparison table")
       ->delimiter(',')
       ->check(CLI::Range(0.01, 3.0));

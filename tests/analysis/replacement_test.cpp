@@ -40,7 +40,10 @@ bool inSeries(double value, disc::ESeries series) {
 TEST_CASE("replace: the field notes' dropping-resistor example (check 13)", "[analysis][replace]") {
   disc::ReplaceOptions o;
   o.stacks = {"SR1"};
-  o.diode = "is=1.5e-14 n=1 rs=0 cj0=0";  // 0.8 V near 0.5 A
+  o.diode =
+      "saturation-current=1.5e-14 ideality=1 series-resistance=0 junction-capacitance=0";  // 0.8 V
+                                                                                           // near
+                                                                                           // 0.5 A
   o.loadFractions = {1.0};
   const auto d = disc::designReplacement(kFieldNotesExample, "field-notes-7.disc", o);
   // Selenium 144.2 V, silicon 152.3 V (field notes section 7, derived).
@@ -137,7 +140,8 @@ TEST_CASE("replace: the silicon variant runs across dropping resistors and toler
   std::string text = kFieldNotesExample;
   const std::string stack = "stack SR1 a out type=knee05 plates=5\n";
   text.replace(text.find(stack), stack.size(),
-               "diode D1 a x is=1.5e-14 n=1 rs=0 cj0=0\nresistor RD x out {R}\n");
+               "diode D1 a x saturation-current=1.5e-14 ideality=1 series-resistance=0 "
+               "junction-capacitance=0\nresistor RD x out {R}\n");
   text.replace(text.find("run transient stop=6s"), 21, "run transient stop=2s reltol={T}");
   for (const char* r : {"0.1ohm", "5ohm", "12.67ohm", "20ohm"}) {
     for (const char* tol : {"1e-3", "3e-4", "1e-5"}) {

@@ -55,11 +55,11 @@ TEST_CASE("Diode Jacobian in reverse, forward, breakdown and high-injection regi
     for (double rs : {0.0, 0.5}) {
       for (double rth : {0.0, 40.0}) {
         DiodeParams p;
-        p.rs = rs;
-        p.rth = rth;
-        p.tt = tt;
-        p.cj0 = 5e-12;
-        p.bv = 50.0;
+        p.seriesResistance = rs;
+        p.thermalResistance = rth;
+        p.transitTime = tt;
+        p.junctionCapacitance = 5e-12;
+        p.breakdownVoltage = 50.0;
         for (double bias : {-10.0, 0.3, 0.6, -50.5}) {
           Circuit c;
           c.emplace<Diode>("D1", c.node("a"), kGround, p);

@@ -81,7 +81,7 @@ TEST_CASE("Junctions between two nodes are measured from the devices' declared p
   const NodeId a = c.node("a"), m = c.node("m"), k = c.node("k");
   c.emplace<VoltageSource>("V1", a, kGround, Waveform::dc(1000.0));
   DiodeParams d;
-  d.rs = 1.0;
+  d.seriesResistance = 1.0;
   c.emplace<Diode>("D1", a, m, d);
   c.emplace<Diode>("D2", m, k, d);
   c.emplace<Resistor>("R1", k, kGround, 1000.0);
@@ -119,7 +119,7 @@ TEST_CASE("Junctions between two nodes are measured from the devices' declared p
   // The second-order remainder of the larger movement, dv^2 / (2 n kT/q) in tolerances, with
   // the scale the diode declares: n kT/q at three quarters of its temperature (the circuit's
   // ambient here).
-  const double nvt = d.n * constants::thermalVoltage(0.75 * c.ambient());
+  const double nvt = d.ideality * constants::thermalVoltage(0.75 * c.ambient());
   CHECK(remainder == Approx(d2 * 0.005 / (2 * nvt)).epsilon(1e-9));
   CHECK(d2 > d1);
 }

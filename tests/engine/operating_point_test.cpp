@@ -20,9 +20,9 @@ TEST_CASE("Resistive divider (Ohm's and Kirchhoff's laws)", "[engine][op]") {
 TEST_CASE("Diode and resistor: the Shockley law solved independently by bisection",
           "[engine][op]") {
   DiodeParams p;
-  p.rs = 0.0;
+  p.seriesResistance = 0.0;
   p.temperature = 300.0;
-  p.tnom = 300.0;
+  p.referenceTemperature = 300.0;
   Circuit c;
   c.emplace<VoltageSource>("V1", c.node("in"), kGround, Waveform::dc(5.0));
   c.emplace<Resistor>("R1", c.node("in"), c.node("a"), 100.0);
@@ -32,13 +32,13 @@ TEST_CASE("Diode and resistor: the Shockley law solved independently by bisectio
   const Result r = operatingPoint(c, o);
   // Shockley: I = Is (exp(V / (n kT/q)) - 1) (S. M. Sze and K. K. Ng, Physics of Semiconductor
   // Devices, 3rd ed.), plus the 1 pS junction shunt and breakdown term of the model.
-  const double nvt = p.n * constants::thermalVoltage(300.0);
+  const double nvt = p.ideality * constants::thermalVoltage(300.0);
   double lo = 0.0, hi = 5.0;
   for (int k = 0; k < 200; ++k) {
     const double v = 0.5 * (lo + hi);
     // 1 pS junction shunt plus the 1 pS node-to-gnd conductance of the operating point.
-    const double id =
-        p.is * (std::exp(v / nvt) - 1.0) + 2e-12 * v - p.ibv * std::exp(-(v + p.bv) / nvt);
+    const double id = p.saturationCurrent * (std::exp(v / nvt) - 1.0) + 2e-12 * v -
+                      p.breakdownCurrent * std::exp(-(v + p.breakdownVoltage) / nvt);
     ((5.0 - v) / 100.0 > id ? lo : hi) = v;
   }
   CHECK(r["v:a"][0] == Approx(0.5 * (lo + hi)).epsilon(1e-6));

@@ -137,3 +137,60 @@ TEST_CASE("run transient takes an absolute tolerance", "[netlist][parser]") {
   CHECK(nl.analyses[0].transient.tol.current == 1e-9);
   expectError(kOk + "run transient stop=1ms abstol=0\n", 3, 31, "abstol must lie above 0");
 }
+
+TEST_CASE("The silicon diode's parameters have descriptive names", "[netlist][parser][diode]") {
+  // Each name with a value in its unit (values chosen to differ from the defaults).
+  const Netlist nl = parseNetlist(
+      kOk +
+      "diode D1 a k saturation-current=5nA ideality=1.8 series-resistance=50mohm "
+      "junction-capacitance=33pF built-in-potential=0.65V grading-exponent=0.33 "
+      "transit-time=2us breakdown-voltage=600V breakdown-current=10uA thermal-resistance=50 "
+      "heat-capacity=0.2 temperature=40degC\nresistor RK k gnd 1k\n");
+  const auto& d = static_cast<const Diode&>(*nl.circuit.find("D1"));
+  const DiodeParams& p = d.params();
+  CHECK(p.saturationCurrent == Approx(5e-9));
+  CHECK(p.ideality == Approx(1.8));
+  CHECK(p.seriesResistance == Approx(0.05));
+  CHECK(p.junctionCapacitance == Approx(33e-12));
+  CHECK(p.builtInPotential == Approx(0.65));
+  CHECK(p.gradingExponent == Approx(0.33));
+  CHECK(p.transitTime == Approx(2e-6));
+  CHECK(p.breakdownVoltage == Approx(600.0));
+  CHECK(p.breakdownCurrent == Approx(10e-6));
+  CHECK(p.thermalResistance == Approx(50.0));
+  CHECK(p.heatCapacity == Approx(0.2));
+  CHECK(p.temperature == Approx(313.15));
+  // The parser's names are the parameter table's: each reads back what the statement set.
+  CHECK(d.parameterNames() ==
+        std::vector<std::string>{"saturation-current", "ideality", "series-resistance",
+                                 "junction-capacitance", "built-in-potential", "grading-exponent",
+                                 "transit-time", "breakdown-voltage", "breakdown-current",
+                                 "thermal-resistance", "heat-capacity", "temperature"});
+  CHECK(d.parameter("series-resistance") == Approx(0.05));
+
+  // Units are checked against each parameter's own unit; ranges by the device.
+  expectError(kOk + "diode D1 a gnd saturation-current=5nV\n", 3, 35,
+              "is a voltage, but this parameter is a current");
+  expectError(kOk + "diode D1 a gnd grading-exponent=1.5\n", 3, 16, "grading exponent");
+  expectError(kOk + "diode D1 a gnd saturaton-current=5n\n", 3, 16,
+              "did you mean 'saturation-current'");
+}
+
+TEST_CASE("The diode's retired short names are errors naming the new word",
+          "[netlist][parser][diode]") {
+  const std::vector<std::pair<std::string, std::string>> retired = {
+      {"is", "saturation-current"}, {"n", "ideality"},
+      {"rs", "series-resistance"},  {"cj0", "junction-capacitance"},
+      {"vj", "built-in-potential"}, {"m", "grading-exponent"},
+      {"tt", "transit-time"},       {"bv", "breakdown-voltage"},
+      {"ibv", "breakdown-current"}, {"rth", "thermal-resistance"},
+      {"cth", "heat-capacity"}};
+  for (const auto& [old, now] : retired) {
+    const std::string hint = "'" + old + "' is now called '" + now + "'";
+    expectError(kOk + "diode D1 a gnd " + old + "=1\n", 3, 16, hint);
+    // The same hint from the parameter table, for sweeps (and the Python module's attributes).
+    Diode d("D9", 0, kGround);
+    CHECK_THROWS_WITH(d.setParameter(old, 1.0), Contains(hint));
+    CHECK_THROWS_WITH(d.parameter(old), Contains(hint));
+  }
+}

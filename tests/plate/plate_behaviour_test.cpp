@@ -309,9 +309,10 @@ TEST_CASE("Paralleled selenium arms share current far better than silicon diodes
   };
   auto silicon = [&](double rth) {
     DiodeParams d1;
-    d1.rth = rth;
+    d1.thermalResistance = rth;
     DiodeParams d2 = d1;
-    d2.is = d1.is * std::exp(-0.05 / (d1.n * constants::thermalVoltage(298.15)));
+    d2.saturationCurrent =
+        d1.saturationCurrent * std::exp(-0.05 / (d1.ideality * constants::thermalVoltage(298.15)));
     return imbalance(2.0, [&](Circuit& c) {
       c.emplace<Diode>("X1", c.node("a"), kGround, d1);
       c.emplace<Diode>("X2", c.node("a"), kGround, d2);

@@ -102,6 +102,29 @@ def test_parameters_by_name_drive_a_sweep_without_reparsing():
     assert "stored_years" in c["SR1"].parameters
 
 
+def test_diode_keywords_are_the_netlist_names():
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", dc=1.0)
+    d = c.diode("D1", "a", "k", saturation_current="5n", ideality=1.8, series_resistance=0.05,
+                junction_capacitance="33p", built_in_potential=0.65, grading_exponent=0.33,
+                transit_time=2e-6, breakdown_voltage=600, breakdown_current=1e-5,
+                thermal_resistance=50, heat_capacity=0.2, temperature=313.15)
+    c.resistor("RK", "k", "gnd", 1000)
+    assert d.parameters == ["saturation_current", "ideality", "series_resistance",
+                            "junction_capacitance", "built_in_potential", "grading_exponent",
+                            "transit_time", "breakdown_voltage", "breakdown_current",
+                            "thermal_resistance", "heat_capacity", "temperature"]
+    assert d.saturation_current == pytest.approx(5e-9)
+    assert d.junction_capacitance == pytest.approx(33e-12)
+    d.series_resistance = 0.1
+    assert d.series_resistance == pytest.approx(0.1)
+    # The retired short names are errors that name the new word.
+    with pytest.raises(ValueError, match="'n' is now called 'ideality'"):
+        d.n = 2.0
+    with pytest.raises(ValueError, match="'is' is now called 'saturation-current'"):
+        c.statement("diode D2 a k is=5n")
+
+
 def test_clone_is_independent():
     a = small_supply()
     b = a.clone()

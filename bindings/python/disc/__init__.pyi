@@ -82,7 +82,13 @@ class Circuit:
                 offset: Value | None = ..., points: str | Sequence[tuple[float, float]] | None = ...,
                 on: Value | None = ..., off: Value | None = ...) -> Element: ...
     def battery(self, name: str, p: str, n: str, emf: Value, resistance: Value | None = ...) -> Element: ...
-    def diode(self, name: str, anode: str, cathode: str, **params: Value) -> Element: ...
+    def diode(self, name: str, anode: str, cathode: str, saturation_current: Value | None = ...,
+              ideality: Value | None = ..., series_resistance: Value | None = ...,
+              junction_capacitance: Value | None = ..., built_in_potential: Value | None = ...,
+              grading_exponent: Value | None = ..., transit_time: Value | None = ...,
+              breakdown_voltage: Value | None = ..., breakdown_current: Value | None = ...,
+              thermal_resistance: Value | None = ..., heat_capacity: Value | None = ...,
+              temperature: Value | None = ...) -> Element: ...
     def stack(self, name: str, anode: str, cathode: str, type: str, plates: int | None = ...,
               parallel: int | None = ..., mode: str | None = ..., spread: float | None = ...,
               seed: int | None = ..., forming: float | None = ..., stored_years: float | None = ...,

@@ -169,9 +169,23 @@ class Circuit:
         """Battery: EMF in V behind its internal resistance in ohm."""
         return self._add("battery", name, (p, n), emf=emf, resistance=resistance)
 
-    def diode(self, name, anode, cathode, **params):
-        """Silicon diode; parameters is, n, rs, cj0, vj, m, tt, bv, ibv, rth, cth, temperature."""
-        return self._add("diode", name, (anode, cathode), **params)
+    def diode(self, name, anode, cathode, saturation_current=None, ideality=None,
+              series_resistance=None, junction_capacitance=None, built_in_potential=None,
+              grading_exponent=None, transit_time=None, breakdown_voltage=None,
+              breakdown_current=None, thermal_resistance=None, heat_capacity=None,
+              temperature=None):
+        """Silicon diode: saturation current (A), ideality, series resistance (ohm), zero-bias
+        junction capacitance (F), built-in potential (V), grading exponent, transit time (s),
+        reverse breakdown voltage (V) and the current there (A), junction-to-ambient thermal
+        resistance (K/W) and heat capacity (J/K), temperature (K; default the ambient)."""
+        return self._add("diode", name, (anode, cathode), saturation_current=saturation_current,
+                         ideality=ideality, series_resistance=series_resistance,
+                         junction_capacitance=junction_capacitance,
+                         built_in_potential=built_in_potential, grading_exponent=grading_exponent,
+                         transit_time=transit_time, breakdown_voltage=breakdown_voltage,
+                         breakdown_current=breakdown_current,
+                         thermal_resistance=thermal_resistance, heat_capacity=heat_capacity,
+                         temperature=temperature)
 
     def stack(self, name, anode, cathode, type, plates=None, parallel=None, mode=None,
               spread=None, seed=None, forming=None, stored_years=None, hours=None,

@@ -72,8 +72,8 @@ struct EvalContext {
   /// periodic steady state sets it to the envelope's time and holds it over the period.
   double slowTime = std::numeric_limits<double>::quiet_NaN();
   double slowClock() const { return std::isnan(slowTime) ? time : slowTime; }
-  double sourceScale = 1.0;      ///< 0..1, scales independent sources (source stepping)
-  bool dc = false;               ///< true in operating-point analyses
+  double sourceScale = 1.0;  ///< 0..1, scales independent sources (source stepping)
+  bool dc = false;           ///< true in operating-point analyses
   /// Newton limiting memory, one cell per limitCells() of each device (nullptr: no limiting).
   /// A NaN cell means "no previous iterate". A device reports through reportJunction() whether
   /// it limited its junction: Newton cannot accept an iterate whose devices were linearised
@@ -117,11 +117,23 @@ struct JunctionPair {
 };
 
 /// A device parameter readable and settable by its netlist name (for sweeps without re-parsing).
+/// A device's table of these is the one source of its names: the netlist parser, setParameter
+/// and the Python module read it.
 struct DeviceParameter {
   std::string name;
   std::function<double(const Device&)> get;
   std::function<void(Device&, double)> set;  ///< validates like the constructor
+  /// SI unit symbol of the value ("A", "ohm", "F", "V", "s", "K", "K/W", ...; "" for a ratio);
+  /// the netlist accepts a value with this unit and its prefixes.
+  std::string unit;
+  /// Earlier names of the parameter: giving one is an error whose hint names this entry.
+  std::vector<std::string> retired;
 };
+
+/// ": 'is' is now called 'saturation-current' (in A)" when `name` is a retired name of an entry
+/// of `table`, else "" (for error messages).
+std::string retiredParameterHint(const std::vector<DeviceParameter>& table,
+                                 const std::string& name);
 
 /// Base of every circuit element.
 class Device {
@@ -190,7 +202,10 @@ class Device {
   /// Parameters by netlist name (e.g. "resistance", "plates"); empty for devices without any.
   virtual const std::vector<DeviceParameter>& parameterTable() const;
   std::vector<std::string> parameterNames() const;
-  /// Throws InputError naming the device and suggesting a parameter for a misspelt name.
+  /// The table entry of a name, or nullptr.
+  const DeviceParameter* findParameter(const std::string& name) const;
+  /// Throws InputError naming the device and suggesting a parameter for a misspelt name (or
+  /// the new name for a retired one).
   double parameter(const std::string& name) const;
   void setParameter(const std::string& name, double value);
 
@@ -213,16 +228,19 @@ class Device {
 
 /// A DeviceParameter from a getter and a setter of device type D.
 template <class D, class G, class S>
-DeviceParameter parameterOf(std::string name, G getter, S setter) {
+DeviceParameter parameterOf(std::string name, G getter, S setter, std::string unit = {},
+                            std::vector<std::string> retired = {}) {
   return {std::move(name),
           [getter](const Device& d) { return (static_cast<const D&>(d).*getter)(); },
-          [setter](Device& d, double v) { (static_cast<D&>(d).*setter)(v); }};
+          [setter](Device& d, double v) { (static_cast<D&>(d).*setter)(v); }, std::move(unit),
+          std::move(retired)};
 }
 
 /// A DeviceParameter for a field of a device's parameter struct P, read through params() and
 /// written through setParams() (so the device validates and re-derives).
 template <class D, class P>
-DeviceParameter paramsField(std::string name, double P::*member) {
+DeviceParameter paramsField(std::string name, double P::*member, std::string unit = {},
+                            std::vector<std::string> retired = {}) {
   return {std::move(name),
           [member](const Device& d) { return static_cast<const D&>(d).params().*member; },
           [member](Device& d, double v) {
@@ -230,7 +248,8 @@ DeviceParameter paramsField(std::string name, double P::*member) {
             P p = dev.params();
             p.*member = v;
             dev.setParams(p);
-          }};
+          },
+          std::move(unit), std::move(retired)};
 }
 
 /// CRTP helper giving a device its clone().

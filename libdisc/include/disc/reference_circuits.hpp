@@ -32,7 +32,7 @@ struct HalfWaveRc {
   double load = 500.0;          ///< ohm
   double capacitance = 100e-6;  ///< F
   DiodeParams diode = stiffDiode();
-  /// A nearly ideal rectifier: 0.05 emission coefficient gives about 36 mV at 1 A.
+  /// A nearly ideal rectifier: an ideality of 0.05 gives about 36 mV at 1 A.
   static DiodeParams stiffDiode();
 };
 Circuit halfWaveRc(const HalfWaveRc& spec = {});
@@ -41,11 +41,11 @@ Circuit halfWaveRc(const HalfWaveRc& spec = {});
 /// behind a winding resistance, with small capacitances from the bridge inputs to gnd so the
 /// problem is an ODE that an independent solver can integrate. Nodes: s, a, b, out.
 struct ShockleyBridge {
-  double amplitude = 20.0;  ///< V
-  double frequency = 50.0;  ///< Hz
-  double winding = 1.0;     ///< ohm
-  double is = 1e-9;         ///< A
-  double n = 1.5;
+  double amplitude = 20.0;          ///< V
+  double frequency = 50.0;          ///< Hz
+  double winding = 1.0;             ///< ohm
+  double saturationCurrent = 1e-9;  ///< A
+  double ideality = 1.5;
   double inputCapacitance = 10e-9;  ///< F, a and b to gnd
   double reservoir = 1000e-6;       ///< F
   double load = 50.0;               ///< ohm

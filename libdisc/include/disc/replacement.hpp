@@ -12,7 +12,8 @@ namespace disc {
 
 struct ReplaceOptions {
   std::vector<std::string> stacks;  ///< the stacks to replace (one diode and resistor each)
-  /// The silicon diode's parameters in the netlist's words ("is=5n n=1.8 rs=0.05 bv=1500");
+  /// The silicon diode's parameters in the netlist's words ("saturation-current=5n ideality=1.8
+  /// series-resistance=0.05 breakdown-voltage=1500");
   /// empty: the library's general-purpose 1 A rectifier diode (DiodeParams defaults).
   std::string diode;
   double tolerance = 0.001;  ///< the resistor's output matches the original within this fraction

@@ -44,12 +44,12 @@ Circuit bridgeSupply(const BridgeSupply& s) {
 
 DiodeParams HalfWaveRc::stiffDiode() {
   DiodeParams d;
-  d.is = 1e-12;
-  d.n = 0.05;
-  d.rs = 0.0;
-  d.cj0 = 0.0;
-  d.tt = 0.0;
-  d.bv = 0.0;
+  d.saturationCurrent = 1e-12;
+  d.ideality = 0.05;
+  d.seriesResistance = 0.0;
+  d.junctionCapacitance = 0.0;
+  d.transitTime = 0.0;
+  d.breakdownVoltage = 0.0;
   return d;
 }
 
@@ -67,14 +67,15 @@ Circuit shockleyBridge(const ShockleyBridge& s) {
   Circuit c;
   const NodeId src = c.node("s"), a = c.node("a"), b = c.node("b"), out = c.node("out");
   DiodeParams d;
-  d.is = s.is;
-  d.n = s.n;
-  d.rs = 0.0;
-  d.cj0 = 0.0;
-  d.tt = 0.0;
-  d.bv = 0.0;
+  d.saturationCurrent = s.saturationCurrent;
+  d.ideality = s.ideality;
+  d.seriesResistance = 0.0;
+  d.junctionCapacitance = 0.0;
+  d.transitTime = 0.0;
+  d.breakdownVoltage = 0.0;
   d.temperature = 300.0;
-  d.tnom = 300.0;  // Is given at the operating temperature, as the independent model has it
+  d.referenceTemperature =
+      300.0;  // Is given at the operating temperature, as the independent model has it
   c.emplace<VoltageSource>("VS", src, b, Waveform::sine(s.amplitude, s.frequency));
   c.emplace<Resistor>("RW", src, a, s.winding);
   c.emplace<Diode>("D1", a, out, d);
@@ -126,7 +127,7 @@ Circuit diodeLadder(int count) {
   NodeId prev = c.node("n0");
   c.emplace<VoltageSource>("V1", prev, kGround, Waveform::sine(1.5 * count, 50.0));
   DiodeParams d;
-  d.rs = 0.05;
+  d.seriesResistance = 0.05;
   for (int k = 1; k <= count; ++k) {
     const NodeId next = c.node(fmt::format("n{}", k));
     c.emplace<Diode>(fmt::format("D{}", k), prev, next, d);

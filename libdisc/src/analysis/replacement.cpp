@@ -272,7 +272,8 @@ class Designer {
   /// at the circuit's ambient).
   double siliconDrop(double amps) const {
     const double vt = constants::thermalVoltage(siliconKelvin_);
-    return silicon_.n * vt * std::log1p(amps / silicon_.is) + amps * silicon_.rs;
+    return silicon_.ideality * vt * std::log1p(amps / silicon_.saturationCurrent) +
+           amps * silicon_.seriesResistance;
   }
 
   std::string diodeWords() const { return o_.diode.empty() ? "" : " " + o_.diode; }

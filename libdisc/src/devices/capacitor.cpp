@@ -16,8 +16,8 @@ void Capacitor::setCapacitance(double farad) {
 }
 
 const std::vector<DeviceParameter>& Capacitor::parameterTable() const {
-  static const std::vector<DeviceParameter> t = {
-      parameterOf<Capacitor>("capacitance", &Capacitor::capacitance, &Capacitor::setCapacitance)};
+  static const std::vector<DeviceParameter> t = {parameterOf<Capacitor>(
+      "capacitance", &Capacitor::capacitance, &Capacitor::setCapacitance, "F")};
   return t;
 }
 

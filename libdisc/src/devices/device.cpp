@@ -2,6 +2,7 @@
 #include "disc/device.hpp"
 
 #include <fmt/format.h>
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -30,12 +31,27 @@ std::vector<std::string> Device::parameterNames() const {
   return names;
 }
 
+const DeviceParameter* Device::findParameter(const std::string& name) const {
+  for (const auto& p : parameterTable())
+    if (p.name == name) return &p;
+  return nullptr;
+}
+
+std::string retiredParameterHint(const std::vector<DeviceParameter>& table,
+                                 const std::string& name) {
+  for (const auto& p : table)
+    if (std::find(p.retired.begin(), p.retired.end(), name) != p.retired.end())
+      return fmt::format(": '{}' is now called '{}'{}", name, p.name,
+                         p.unit.empty() ? "" : fmt::format(" (in {})", p.unit));
+  return "";
+}
+
 namespace {
 const DeviceParameter& lookup(const Device& d, const std::string& name) {
-  for (const auto& p : d.parameterTable())
-    if (p.name == name) return p;
-  throw InputError(fmt::format("{} '{}' has no parameter '{}'{}", d.kind(), d.name(), name,
-                               detail::didYouMean(name, d.parameterNames())));
+  if (const DeviceParameter* p = d.findParameter(name)) return *p;
+  std::string hint = retiredParameterHint(d.parameterTable(), name);
+  if (hint.empty()) hint = detail::didYouMean(name, d.parameterNames());
+  throw InputError(fmt::format("{} '{}' has no parameter '{}'{}", d.kind(), d.name(), name, hint));
 }
 }  // namespace
 

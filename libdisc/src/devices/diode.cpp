@@ -1,5 +1,6 @@
-// Junction diode. Static law: Shockley with emission coefficient plus exponential breakdown;
-// charge: depletion (linearised above fc*vj, the usual device-model treatment) plus diffusion.
+// Junction diode. Static law: Shockley with ideality factor plus exponential breakdown;
+// charge: depletion (continued linearly above depletionKnee times the built-in potential, the
+// usual device-model treatment) plus diffusion.
 #include "disc/devices/diode.hpp"
 
 #include <algorithm>
@@ -22,20 +23,22 @@ constexpr double kExpLimitCurrent = 1e6;
 }  // namespace
 
 void DiodeParams::validate() const {
-  detail::requirePositive("diode", "saturation current", is, "A");
-  detail::requirePositive("diode", "emission coefficient", n, "");
-  detail::requireNonNegative("diode", "series resistance", rs, "ohm");
-  detail::requireNonNegative("diode", "junction capacitance", cj0, "F");
-  detail::requirePositive("diode", "junction potential", vj, "V");
-  if (!(m > 0.0 && m < 1.0)) throw InputError("diode: grading coefficient must lie in (0, 1)");
-  if (!(fc > 0.0 && fc < 1.0)) throw InputError("diode: fc must lie in (0, 1)");
-  detail::requireNonNegative("diode", "transit time", tt, "s");
-  detail::requireNonNegative("diode", "breakdown voltage", bv, "V");
-  detail::requirePositive("diode", "breakdown current", ibv, "A");
-  detail::requirePositive("diode", "band gap", eg, "eV");
-  detail::requirePositive("diode", "reference temperature", tnom, "K");
-  detail::requireNonNegative("diode", "thermal resistance", rth, "K/W");
-  detail::requirePositive("diode", "heat capacity", cth, "J/K");
+  detail::requirePositive("diode", "saturation current", saturationCurrent, "A");
+  detail::requirePositive("diode", "ideality", ideality, "");
+  detail::requireNonNegative("diode", "series resistance", seriesResistance, "ohm");
+  detail::requireNonNegative("diode", "junction capacitance", junctionCapacitance, "F");
+  detail::requirePositive("diode", "built-in potential", builtInPotential, "V");
+  if (!(gradingExponent > 0.0 && gradingExponent < 1.0))
+    throw InputError("diode: grading exponent must lie in (0, 1)");
+  if (!(depletionKnee > 0.0 && depletionKnee < 1.0))
+    throw InputError("diode: depletion knee must lie in (0, 1)");
+  detail::requireNonNegative("diode", "transit time", transitTime, "s");
+  detail::requireNonNegative("diode", "breakdown voltage", breakdownVoltage, "V");
+  detail::requirePositive("diode", "breakdown current", breakdownCurrent, "A");
+  detail::requirePositive("diode", "band gap", bandGap, "eV");
+  detail::requirePositive("diode", "reference temperature", referenceTemperature, "K");
+  detail::requireNonNegative("diode", "thermal resistance", thermalResistance, "K/W");
+  detail::requirePositive("diode", "heat capacity", heatCapacity, "J/K");
   detail::requireNonNegative("diode", "temperature", temperature, "K");
 }
 
@@ -45,14 +48,23 @@ Diode::Diode(std::string name, NodeId anode, NodeId cathode, const DiodeParams& 
 }
 
 const std::vector<DeviceParameter>& Diode::parameterTable() const {
+  // The one list of the diode's netlist names: the parser, setParameter and the Python module
+  // all read it. Each entry carries its unit and the short name it replaced (for the hint).
   constexpr auto field = paramsField<Diode, DiodeParams>;
+  using P = DiodeParams;
   static const std::vector<DeviceParameter> t = {
-      field("is", &DiodeParams::is),   field("n", &DiodeParams::n),
-      field("rs", &DiodeParams::rs),   field("cj0", &DiodeParams::cj0),
-      field("vj", &DiodeParams::vj),   field("m", &DiodeParams::m),
-      field("tt", &DiodeParams::tt),   field("bv", &DiodeParams::bv),
-      field("ibv", &DiodeParams::ibv), field("rth", &DiodeParams::rth),
-      field("cth", &DiodeParams::cth), field("temperature", &DiodeParams::temperature)};
+      field("saturation-current", &P::saturationCurrent, "A", {"is"}),
+      field("ideality", &P::ideality, "", {"n"}),
+      field("series-resistance", &P::seriesResistance, "ohm", {"rs"}),
+      field("junction-capacitance", &P::junctionCapacitance, "F", {"cj0"}),
+      field("built-in-potential", &P::builtInPotential, "V", {"vj"}),
+      field("grading-exponent", &P::gradingExponent, "", {"m"}),
+      field("transit-time", &P::transitTime, "s", {"tt"}),
+      field("breakdown-voltage", &P::breakdownVoltage, "V", {"bv"}),
+      field("breakdown-current", &P::breakdownCurrent, "A", {"ibv"}),
+      field("thermal-resistance", &P::thermalResistance, "K/W", {"rth"}),
+      field("heat-capacity", &P::heatCapacity, "J/K", {"cth"}),
+      field("temperature", &P::temperature, "K", {})};
   return t;
 }
 
@@ -69,7 +81,8 @@ void Diode::prepare(const Circuit& c) {
 
 void Diode::derive() {
   fixed_ = scaleAt(p_.temperature > 0.0 ? p_.temperature : ambient_);
-  const detail::DepletionShape d(p_.cj0, p_.vj, p_.m, p_.fc);
+  const detail::DepletionShape d(p_.junctionCapacitance, p_.builtInPotential, p_.gradingExponent,
+                                 p_.depletionKnee);
   depF1_ = d.f1;
   depF2_ = d.f2;
   depF3_ = d.f3;
@@ -78,11 +91,13 @@ void Diode::derive() {
 Diode::Scale Diode::scaleAt(double t) const {
   Scale sc;
   sc.t = t;
-  sc.nvt = p_.n * constants::thermalVoltage(t);
-  const double ratio = t / p_.tnom;
-  // Is(T) = Is (T/Tnom)^(xti/n) exp((T/Tnom - 1) Eg / (n kT/q)).
-  sc.is = p_.is * std::pow(ratio, p_.xti / p_.n) * std::exp((ratio - 1.0) * p_.eg / sc.nvt);
-  sc.dLnIsDT = p_.xti / (p_.n * t) + p_.eg / (p_.n * constants::kBoltzmannEv * t * t);
+  sc.nvt = p_.ideality * constants::thermalVoltage(t);
+  const double ratio = t / p_.referenceTemperature;
+  // Is(T) = Is (T/Tref)^(X/n) exp((T/Tref - 1) Eg / (n kT/q)), X the temperature exponent.
+  sc.is = p_.saturationCurrent * std::pow(ratio, p_.saturationTempExponent / p_.ideality) *
+          std::exp((ratio - 1.0) * p_.bandGap / sc.nvt);
+  sc.dLnIsDT = p_.saturationTempExponent / (p_.ideality * t) +
+               p_.bandGap / (p_.ideality * constants::kBoltzmannEv * t * t);
   sc.vcrit = sc.nvt * std::log(sc.nvt / (std::numbers::sqrt2 * sc.is));
   sc.vexp = sc.nvt * std::log(kExpLimitCurrent / sc.is + 1.0);
   return sc;
@@ -90,23 +105,23 @@ Diode::Scale Diode::scaleAt(double t) const {
 
 std::vector<UnknownSpec> Diode::internalUnknowns() const {
   std::vector<UnknownSpec> u;
-  if (p_.rs > 0.0) u.push_back({"j", UnknownKind::Voltage});
-  if (p_.rth > 0.0) u.push_back({"temp", UnknownKind::Temperature, true});
+  if (p_.seriesResistance > 0.0) u.push_back({"j", UnknownKind::Voltage});
+  if (p_.thermalResistance > 0.0) u.push_back({"temp", UnknownKind::Temperature, true});
   return u;
 }
 
 void Diode::bind(const Binding& b) {
   a_ = b.terminals[0];
   k_ = b.terminals[1];
-  j_ = p_.rs > 0.0 ? b.internals[0] : a_;
-  th_ = p_.rth > 0.0 ? b.internals.back() : b.ground;
+  j_ = p_.seriesResistance > 0.0 ? b.internals[0] : a_;
+  th_ = p_.thermalResistance > 0.0 ? b.internals.back() : b.ground;
   cell_ = b.limitCell;
 }
 
 void Diode::declare(PatternBuilder& pb) {
   sj_.declare(pb, j_, k_);
-  if (p_.rs > 0.0) ss_.declare(pb, a_, j_);
-  if (p_.rth > 0.0) {
+  if (p_.seriesResistance > 0.0) ss_.declare(pb, a_, j_);
+  if (p_.thermalResistance > 0.0) {
     pb.entry(th_, th_, sTh_);
     pb.entry(th_, j_, sThJ_);
     pb.entry(th_, k_, sThK_);
@@ -123,25 +138,25 @@ void Diode::junction(double v, const Scale& sc, double& id, double& gd, double& 
   gd = sc.is * de + kJunctionGmin;
   // Is grows with T; at fixed v the exponential falls as n kT/q grows.
   dIdT = sc.is * ((e - 1.0) * sc.dLnIsDT - de * v / sc.t);
-  if (p_.bv > 0.0) {
+  if (p_.breakdownVoltage > 0.0) {
     double eb, deb;
     // Breakdown keeps its device-temperature scale: its thermal behaviour is not modelled.
-    detail::limitedExp(-(v + p_.bv), fixed_.nvt, fixed_.vexp, eb, deb);
-    id -= p_.ibv * eb;
-    gd += p_.ibv * deb;
+    detail::limitedExp(-(v + p_.breakdownVoltage), fixed_.nvt, fixed_.vexp, eb, deb);
+    id -= p_.breakdownCurrent * eb;
+    gd += p_.breakdownCurrent * deb;
   }
 }
 
 void Diode::charge(double v, double id, double gd, double& q, double& c) const {
-  q = p_.tt * id;
-  c = p_.tt * gd;
-  if (p_.cj0 <= 0.0) return;
+  q = p_.transitTime * id;
+  c = p_.transitTime * gd;
+  if (p_.junctionCapacitance <= 0.0) return;
   double qd, cd;
   detail::DepletionShape d;
-  d.cj0 = p_.cj0;
-  d.vj = p_.vj;
-  d.m = p_.m;
-  d.fc = p_.fc;
+  d.cj0 = p_.junctionCapacitance;
+  d.vj = p_.builtInPotential;
+  d.m = p_.gradingExponent;
+  d.fc = p_.depletionKnee;
   d.f1 = depF1_;
   d.f2 = depF2_;
   d.f3 = depF3_;
@@ -152,7 +167,7 @@ void Diode::charge(double v, double id, double gd, double& q, double& c) const {
 
 void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   const double vraw = ctx.x[j_] - ctx.x[k_];
-  const bool thermal = p_.rth > 0.0;
+  const bool thermal = p_.thermalResistance > 0.0;
   const Scale sc = thermal ? scaleAt(lawTemperature(ctx.x[th_])) : fixed_;
   const double nvt_ = sc.nvt, vcrit_ = sc.vcrit;
   double v = vraw;
@@ -160,10 +175,11 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
     double& last = ctx.limits[cell_];
     if (!std::isnan(last)) {
       v = detail::limitJunction(last, vraw, nvt_, vcrit_);
-      if (p_.bv > 0.0) {
+      if (p_.breakdownVoltage > 0.0) {
         // The breakdown branch is the same exponential mirrored about -bv.
-        const double u = -p_.bv - v, ul = detail::limitJunction(-p_.bv - last, u, nvt_, vcrit_);
-        if (ul != u) v = -p_.bv - ul;
+        const double u = -p_.breakdownVoltage - v,
+                     ul = detail::limitJunction(-p_.breakdownVoltage - last, u, nvt_, vcrit_);
+        if (ul != u) v = -p_.breakdownVoltage - ul;
       }
       ctx.reportJunction(vraw, v);
     }
@@ -178,21 +194,21 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
   if (thermal && lawTemperature(ctx.x[th_]) != ambient_ + ctx.x[th_]) dIdT = 0.0;  // clamped
   if (thermal) {
     // Heat balance: cth dT/dt = P - (T - Ta)/rth, P = static junction loss + series loss.
-    const double th = ctx.x[th_], gs = p_.rs > 0.0 ? 1.0 / p_.rs : 0.0;
+    const double th = ctx.x[th_], gs = p_.seriesResistance > 0.0 ? 1.0 / p_.seriesResistance : 0.0;
     const double vs = ctx.x[a_] - ctx.x[j_];
-    s.i[th_] += th / p_.rth - id * vraw - gs * vs * vs;
-    s.q[th_] += p_.cth * th;
+    s.i[th_] += th / p_.thermalResistance - id * vraw - gs * vs * vs;
+    s.q[th_] += p_.heatCapacity * th;
     if (s.jacobian) {
-      s.G[sTh_] += 1.0 / p_.rth - dIdT * vraw;
-      s.C[sTh_] += p_.cth;
+      s.G[sTh_] += 1.0 / p_.thermalResistance - dIdT * vraw;
+      s.C[sTh_] += p_.heatCapacity;
       const double dPdv = id + gd * vraw;
       s.G[sThJ_] -= dPdv - 2.0 * gs * vs;
       s.G[sThK_] += dPdv;
       s.G[sThA_] -= 2.0 * gs * vs;
       s.G[sJTh_] += dIdT;
       s.G[sKTh_] -= dIdT;
-      s.C[sJTh_] += p_.tt * dIdT;  // diffusion charge follows the current
-      s.C[sKTh_] -= p_.tt * dIdT;
+      s.C[sJTh_] += p_.transitTime * dIdT;  // diffusion charge follows the current
+      s.C[sKTh_] -= p_.transitTime * dIdT;
     }
   }
   s.i[j_] += id;
@@ -203,8 +219,8 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
     sj_.add(s.G, gd);
     sj_.add(s.C, c);
   }
-  if (p_.rs > 0.0) {
-    const double gs = 1.0 / p_.rs;
+  if (p_.seriesResistance > 0.0) {
+    const double gs = 1.0 / p_.seriesResistance;
     const double is = gs * (ctx.x[a_] - ctx.x[j_]);
     s.i[a_] += is;
     s.i[j_] -= is;
@@ -215,12 +231,12 @@ void Diode::evaluate(const EvalContext& ctx, Stamp& s) const {
 void Diode::junctionPairs(std::vector<JunctionPair>& out) const {
   // Self-heating only raises the temperature; three quarters of the base temperature leaves a
   // margin for a cold ambient given later.
-  out.push_back({j_, k_, p_.n * constants::thermalVoltage(0.75 * fixed_.t)});
+  out.push_back({j_, k_, p_.ideality * constants::thermalVoltage(0.75 * fixed_.t)});
 }
 
 void Diode::evaluateCharges(const EvalContext& ctx, Stamp& s) const {
   // A diffusion charge follows the current: then the junction law is needed after all.
-  if (p_.tt != 0.0) {
+  if (p_.transitTime != 0.0) {
     evaluate(ctx, s);
     return;
   }
@@ -228,7 +244,7 @@ void Diode::evaluateCharges(const EvalContext& ctx, Stamp& s) const {
   charge(ctx.x[j_] - ctx.x[k_], 0.0, 0.0, q, c);  // depletion charge only
   s.q[j_] += q;
   s.q[k_] -= q;
-  if (p_.rth > 0.0) s.q[th_] += p_.cth * ctx.x[th_];
+  if (p_.thermalResistance > 0.0) s.q[th_] += p_.heatCapacity * ctx.x[th_];
 }
 
 std::string Diode::probeUnit(int k) const {
@@ -244,13 +260,13 @@ double Diode::lawTemperature(double rise) const {
 double Diode::probe(int k, const EvalContext& ctx) const {
   const double v = ctx.x[j_] - ctx.x[k_];
   if (k == 2) return v;
-  if (k == 3) return p_.rth > 0.0 ? ambient_ + ctx.x[th_] : fixed_.t;
+  if (k == 3) return p_.thermalResistance > 0.0 ? ambient_ + ctx.x[th_] : fixed_.t;
   double i;
-  if (p_.rs > 0.0) {
-    i = (ctx.x[a_] - ctx.x[j_]) / p_.rs;
+  if (p_.seriesResistance > 0.0) {
+    i = (ctx.x[a_] - ctx.x[j_]) / p_.seriesResistance;
   } else {
     double id, gd, dIdT, q, c;
-    const Scale sc = p_.rth > 0.0 ? scaleAt(lawTemperature(ctx.x[th_])) : fixed_;
+    const Scale sc = p_.thermalResistance > 0.0 ? scaleAt(lawTemperature(ctx.x[th_])) : fixed_;
     junction(v, sc, id, gd, dIdT);
     charge(v, id, gd, q, c);
     i = id + c * (ctx.xdot[j_] - ctx.xdot[k_]);

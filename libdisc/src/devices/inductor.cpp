@@ -26,8 +26,8 @@ void Inductor::setResistance(double ohm) {
 
 const std::vector<DeviceParameter>& Inductor::parameterTable() const {
   static const std::vector<DeviceParameter> t = {
-      parameterOf<Inductor>("inductance", &Inductor::inductance, &Inductor::setInductance),
-      parameterOf<Inductor>("resistance", &Inductor::resistance, &Inductor::setResistance)};
+      parameterOf<Inductor>("inductance", &Inductor::inductance, &Inductor::setInductance, "H"),
+      parameterOf<Inductor>("resistance", &Inductor::resistance, &Inductor::setResistance, "ohm")};
   return t;
 }
 

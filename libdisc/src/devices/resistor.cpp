@@ -17,7 +17,7 @@ void Resistor::setResistance(double ohm) {
 
 const std::vector<DeviceParameter>& Resistor::parameterTable() const {
   static const std::vector<DeviceParameter> t = {
-      parameterOf<Resistor>("resistance", &Resistor::resistance, &Resistor::setResistance)};
+      parameterOf<Resistor>("resistance", &Resistor::resistance, &Resistor::setResistance, "ohm")};
   return t;
 }
 

@@ -118,7 +118,9 @@ const std::vector<DeviceParameter>& Stack::parameterTable() const {
                              }
                              o.*member = static_cast<T>(v);
                              s.setOptions(o);
-                           }};
+                           },
+                           {},
+                           {}};
   };
   auto spread = [](const char* name, double StackSpread::*member) {
     return DeviceParameter{
@@ -129,7 +131,9 @@ const std::vector<DeviceParameter>& Stack::parameterTable() const {
           StackOptions o = s.opt_;
           o.spread.*member = v;
           s.setOptions(o);
-        }};
+        },
+        {},
+        {}};
   };
   static const std::vector<DeviceParameter> t = {
       option("plates", &StackOptions::plates),   option("parallel", &StackOptions::arms),

@@ -30,12 +30,12 @@ void Transformer::setParams(const TransformerParams& params) {
 const std::vector<DeviceParameter>& Transformer::parameterTable() const {
   constexpr auto field = paramsField<Transformer, TransformerParams>;
   static const std::vector<DeviceParameter> t = {
-      field("ratio", &TransformerParams::ratio),
-      field("r1", &TransformerParams::r1),
-      field("r2", &TransformerParams::r2),
-      field("leakage1", &TransformerParams::leakage1),
-      field("leakage2", &TransformerParams::leakage2),
-      field("magnetizing", &TransformerParams::magnetizing)};
+      field("ratio", &TransformerParams::ratio, "", {}),
+      field("r1", &TransformerParams::r1, "ohm", {}),
+      field("r2", &TransformerParams::r2, "ohm", {}),
+      field("leakage1", &TransformerParams::leakage1, "H", {}),
+      field("leakage2", &TransformerParams::leakage2, "H", {}),
+      field("magnetizing", &TransformerParams::magnetizing, "H", {})};
   return t;
 }
 

@@ -37,7 +37,16 @@ struct KindSpec {
   const char* positional;  // parameter a lone positional value sets, or nullptr
   std::vector<ParamSpec> params;
   std::vector<const char*> shapes;  // optional shape words after the nodes (sources)
+  // The device's parameter table when the parameters come from it (names, units, retired names).
+  const std::vector<DeviceParameter>* table = nullptr;
 };
+
+/// A kind whose parameters are exactly the entries of a device's parameter table.
+KindSpec kindFromTable(const char* kind, int nodes, const Device& prototype) {
+  KindSpec k{kind, nodes, nullptr, {}, {}, &prototype.parameterTable()};
+  for (const auto& e : *k.table) k.params.push_back({e.name.c_str(), dimOfUnit(e.unit)});
+  return k;
+}
 
 const std::vector<ParamSpec> kWaveParams = {{"dc", Dim::Voltage},
                                             {"amplitude", Dim::Voltage},
@@ -84,22 +93,7 @@ const std::vector<KindSpec>& kinds() {
       {"voltage", 2, nullptr, kWaveParams, {"dc", "sine", "points", "mains"}},
       {"current", 2, nullptr, currentWaveParams(), {"dc", "sine", "points"}},
       {"battery", 2, "emf", {{"emf", Dim::Voltage}, {"resistance", Dim::Resistance}}, {}},
-      {"diode",
-       2,
-       nullptr,
-       {{"is", Dim::Current},
-        {"n", Dim::None},
-        {"rs", Dim::Resistance},
-        {"cj0", Dim::Capacitance},
-        {"vj", Dim::Voltage},
-        {"m", Dim::None},
-        {"tt", Dim::Time},
-        {"bv", Dim::Voltage},
-        {"ibv", Dim::Current},
-        {"rth", Dim::None},
-        {"cth", Dim::None},
-        {"temperature", Dim::Temperature}},
-       {}},
+      kindFromTable("diode", 2, Diode("", 0, 1)),
       {"stack",
        2,
        nullptr,
@@ -392,8 +386,9 @@ class Builder {
       if (it == spec.params.end()) {
         std::vector<std::string> names;
         for (const auto& ps : spec.params) names.emplace_back(ps.name);
-        error(tok.where, fmt::format("a {} has no parameter '{}'{}", spec.kind, tok.key,
-                                     didYouMean(tok.key, names)));
+        std::string hint = spec.table ? retiredParameterHint(*spec.table, tok.key) : "";
+        if (hint.empty()) hint = didYouMean(tok.key, names);
+        error(tok.where, fmt::format("a {} has no parameter '{}'{}", spec.kind, tok.key, hint));
         ok = false;
         continue;
       }
@@ -477,6 +472,18 @@ class Builder {
     }
   }
 
+  /// Sets each given parameter through the device's table, so its checks and messages apply.
+  static std::unique_ptr<Device> withTableParams(std::unique_ptr<Device> d, const Params& p) {
+    for (const auto& [key, value] : p.num) {
+      try {
+        d->setParameter(key, value);
+      } catch (const InputError& e) {
+        throw ParamError{key, e.what()};
+      }
+    }
+    return d;
+  }
+
   std::unique_ptr<Device> build(const KindSpec& spec, const std::string& name,
                                 const std::vector<std::string>& nodes, const std::string& shape,
                                 const Params& p, const Statement& s) {
@@ -530,22 +537,7 @@ class Builder {
       return std::make_unique<VoltageSource>(
           makeBattery(name, n[0], n[1], p.get("emf", 0.0), p.get("resistance", 0.0)));
     }
-    if (kind == "diode") {
-      DiodeParams d;
-      d.is = p.get("is", d.is);
-      d.n = p.get("n", d.n);
-      d.rs = p.get("rs", d.rs);
-      d.cj0 = p.get("cj0", d.cj0);
-      d.vj = p.get("vj", d.vj);
-      d.m = p.get("m", d.m);
-      d.tt = p.get("tt", d.tt);
-      d.bv = p.get("bv", d.bv);
-      d.ibv = p.get("ibv", d.ibv);
-      d.rth = p.get("rth", d.rth);
-      d.cth = p.get("cth", d.cth);
-      d.temperature = p.get("temperature", d.temperature);
-      return std::make_unique<Diode>(name, n[0], n[1], d);
-    }
+    if (kind == "diode") return withTableParams(std::make_unique<Diode>(name, n[0], n[1]), p);
     if (kind == "stack") {
       if (!p.word.count("type"))
         throw ParamError{"type", "a stack needs type= (see 'disc plates')"};

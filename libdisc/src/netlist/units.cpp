@@ -113,6 +113,11 @@ const char* dimUnit(Dim d) {
   }
 }
 
+Dim dimOfUnit(const std::string& symbol) {
+  const Unit* u = unitOf(symbol);
+  return u ? u->dim : Dim::None;
+}
+
 std::optional<double> parseQuantity(const std::string& text, Dim dim, std::string& error) {
   // The numeric part: [+-] digits [. digits] [e [+-] digits].
   std::size_t k = 0;

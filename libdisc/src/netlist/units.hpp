@@ -25,6 +25,10 @@ const char* dimName(Dim d);
 /// The SI unit symbol of a dimension, for messages ("V", "ohm", ...).
 const char* dimUnit(Dim d);
 
+/// The dimension whose SI unit is `symbol` ("A" -> Current, "K" -> Temperature); None for a
+/// compound or empty symbol ("K/W", ""), whose values are plain numbers.
+Dim dimOfUnit(const std::string& symbol);
+
 /// Parses "4.7k", "100uF", "2.5 ms" (no space), "30degC", "-3V", "1e-6". The value is in SI base
 /// units (temperatures in K, angles in degrees). On failure returns nullopt and sets `error`.
 std::optional<double> parseQuantity(const std::string& text, Dim dim, std::string& error);

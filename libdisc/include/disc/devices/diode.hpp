@@ -8,26 +8,28 @@ namespace disc {
 /// Junction diode parameters (SI units). Defaults describe a general-purpose 1 A silicon
 /// rectifier (typical datasheet-class values, from memory).
 struct DiodeParams {
-  double is = 2.5e-9;        ///< saturation current at tnom, A
-  double n = 1.75;           ///< emission coefficient
-  double rs = 0.04;          ///< series resistance, ohm (0: no internal node)
-  double cj0 = 20e-12;       ///< zero-bias junction capacitance, F
-  double vj = 0.7;           ///< junction potential, V
-  double m = 0.4;            ///< grading coefficient
-  double fc = 0.5;           ///< forward-bias depletion-capacitance linearisation point
-  double tt = 0.0;           ///< transit time, s (reverse recovery; negligible at mains rates)
-  double bv = 1000.0;        ///< reverse breakdown voltage (positive), V; 0 disables
-  double ibv = 1e-6;         ///< current at breakdown voltage, A
-  double eg = 1.11;          ///< band gap for Is(T), eV
-  double xti = 3.0;          ///< saturation-current temperature exponent
-  double tnom = 300.15;      ///< parameter reference temperature, K
-  double temperature = 0.0;  ///< device temperature, K (0: circuit ambient)
-  double rth = 0.0;          ///< junction-to-ambient thermal resistance, K/W (0: isothermal)
-  double cth = 0.05;         ///< heat capacity when rth > 0, J/K
+  double saturationCurrent = 2.5e-9;    ///< saturation current at referenceTemperature, A
+  double ideality = 1.75;               ///< ideality factor of the junction law
+  double seriesResistance = 0.04;       ///< series resistance, ohm (0: no internal node)
+  double junctionCapacitance = 20e-12;  ///< zero-bias junction capacitance, F
+  double builtInPotential = 0.7;        ///< built-in potential of the junction, V
+  double gradingExponent = 0.4;         ///< grading exponent of the depletion capacitance
+  /// Fraction of the built-in potential above which the depletion charge is continued
+  /// linearly in forward bias (the depletion formula diverges at the built-in potential).
+  double depletionKnee = 0.5;
+  double transitTime = 0.0;  ///< transit time, s (reverse recovery; negligible at mains rates)
+  double breakdownVoltage = 1000.0;  ///< reverse breakdown voltage (positive), V; 0 disables
+  double breakdownCurrent = 1e-6;    ///< current at the breakdown voltage, A
+  double bandGap = 1.11;             ///< band gap for the saturation current's temperature law, eV
+  double saturationTempExponent = 3.0;   ///< temperature exponent of the saturation current
+  double referenceTemperature = 300.15;  ///< temperature the parameters are given at, K
+  double temperature = 0.0;              ///< device temperature, K (0: circuit ambient)
+  double thermalResistance = 0.0;  ///< junction-to-ambient thermal resistance, K/W (0: isothermal)
+  double heatCapacity = 0.05;      ///< heat capacity when thermalResistance > 0, J/K
   void validate() const;
 };
 
-/// Diode from anode to cathode: Shockley law with emission coefficient, series resistance,
+/// Diode from anode to cathode: Shockley law with ideality factor, series resistance,
 /// depletion and diffusion charge, and exponential reverse breakdown.
 class Diode : public DeviceBase<Diode> {
  public:
@@ -36,6 +38,9 @@ class Diode : public DeviceBase<Diode> {
   const DiodeParams& params() const { return p_; }
   void setParams(const DiodeParams& params);
   const std::vector<DeviceParameter>& parameterTable() const override;
+  /// Netlist names: saturation-current, ideality, series-resistance, junction-capacitance,
+  /// built-in-potential, grading-exponent, transit-time, breakdown-voltage, breakdown-current,
+  /// thermal-resistance, heat-capacity, temperature (each with its unit and its retired name).
   /// Takes the circuit's ambient as the device temperature when params().temperature is 0.
   void prepare(const Circuit& c) override;
 
