@@ -3,7 +3,7 @@ BUILD ?= build-release
 JOBS ?= $(shell nproc)
 CMAKE_FLAGS ?=
 
-.PHONY: deps configure build demo test test-sanitize fuzz bench clean
+.PHONY: deps configure build demo test test-sanitize test-tsan fuzz bench clean
 
 deps:
 	@bash .ci/install-deps
@@ -28,6 +28,15 @@ test-sanitize: deps
 	@cmake --build build-asan -j $(JOBS)
 	@cd build-asan && ASAN_OPTIONS=detect_leaks=1 UBSAN_OPTIONS=print_stacktrace=1 \
 	    ctest --output-on-failure -j $(JOBS) -E "python|bench"
+
+# The concurrency tests (one circuit run from many threads) under ThreadSanitizer (CI runs this
+# too). Only the library and those tests are built.
+test-tsan: deps
+	@cmake -S . -B build-tsan -G Ninja -DCMAKE_BUILD_TYPE=Debug -DCMAKE_CXX_FLAGS_DEBUG="-O1 -g1" \
+	    -DDISC_TSAN=ON -DDISC_BUILD_BENCHMARKS=OFF -DDISC_BUILD_PYTHON=OFF >/dev/null
+	@cmake --build build-tsan -j $(JOBS) --target disc_concurrency_tests
+	@TSAN_OPTIONS="halt_on_error=1 second_deadlock_stack=1" \
+	    build-tsan/tests/disc_concurrency_tests "[concurrency]"
 
 # Fuzz the netlist parser with libFuzzer for FUZZ_SECONDS (not part of CI).
 FUZZ_SECONDS ?= 120

@@ -243,21 +243,24 @@ class Circuit:
 
     # -- analyses -------------------------------------------------------------------------
     def run_transient(self, stop, record=None, method="trap", start="cold", max_step=0.0,
-                      reltol=0.0, abstol=0.0):
+                      reltol=0.0, abstol=0.0, progress=None):
         """Transient from 0 to stop (s). method: 'trap', 'bdf2' or 'ida'; start: 'cold' or
         'operating-point'; reltol (default 1e-3) and abstol (volts and amperes, default 1e-6),
-        0 for the defaults. The GIL is released while the engine runs; Ctrl-C stops it."""
+        0 for the defaults. The run works on a copy of the circuit taken at the call and
+        releases the GIL; Ctrl-C stops it. progress(time, stop), if given, is called at most
+        every 0.1 s of wall time; returning False cancels the run (KeyboardInterrupt)."""
         res = self._net.run_transient(float(stop), list(record or []), method, start,
-                                      float(max_step), float(reltol), float(abstol))
+                                      float(max_step), float(reltol), float(abstol), progress)
         return Result(self, res)
 
     def run_op(self, record=None):
         """DC operating point (one time point)."""
         return Result(self, self._net.run_op(list(record or [])))
 
-    def run(self):
-        """Runs the analyses the netlist names; returns (results, report dict or None)."""
-        results, report = self._net.run()
+    def run(self, progress=None):
+        """Runs the analyses the netlist names; returns (results, report dict or None).
+        progress as for run_transient."""
+        results, report = self._net.run(progress)
         return [Result(self, r) for r in results], (json.loads(report) if report else None)
 
     def write_files(self, folder):

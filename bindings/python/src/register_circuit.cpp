@@ -1,6 +1,8 @@
-// Circuits (netlists) built from files, text or code; runs release the GIL.
+// Circuits (netlists) built from files, text or code; runs copy the netlist under the GIL and
+// release it.
 #include <pybind11/stl.h>
 
+#include <chrono>
 #include <memory>
 
 #include "disc/analysis.hpp"
@@ -18,13 +20,26 @@ namespace disc::python {
 
 namespace {
 
-/// Progress callback: gives Python a chance to deliver Ctrl-C, and cancels the run if it did.
-std::function<bool(double, double)> interruptible() {
-  return [](double, double) {
+/// The engine's progress callback for a run with the GIL released. Taking the GIL at every
+/// step would stall the run behind any busy Python thread, so it is taken at most every 0.1 s
+/// of wall time: to let Python deliver Ctrl-C, and to call `callback(time, stop)` when one is
+/// given (a false return cancels the run). The caller keeps `callback` alive during the run.
+std::function<bool(double, double)> throttledProgress(py::handle callback) {
+  using Clock = std::chrono::steady_clock;
+  static constexpr auto kInterval = std::chrono::milliseconds(100);
+  auto next = std::make_shared<Clock::time_point>(Clock::now() + kInterval);
+  return [callback, next](double time, double stop) {
+    const auto now = Clock::now();
+    if (now < *next) return true;
+    *next = now + kInterval;
     py::gil_scoped_acquire gil;
     if (PyErr_CheckSignals() != 0) {
       PyErr_Clear();
       return false;
+    }
+    if (!callback.is_none()) {
+      py::object keepGoing = callback(time, stop);
+      if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
     }
     return true;
   };
@@ -110,9 +125,9 @@ void registerCircuit(py::module_& m) {
       .def_property_readonly("has_output", [](const Netlist& n) { return n.output.given; })
       .def(
           "run_transient",
-          [](Netlist& n, double stop, const std::vector<std::string>& record,
+          [](const Netlist& n, double stop, const std::vector<std::string>& record,
              const std::string& method, const std::string& start, double maxStep, double reltol,
-             double abstol) {
+             double abstol, py::object progress) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
@@ -127,35 +142,42 @@ void registerCircuit(py::module_& m) {
             if (reltol > 0.0) o.tol.reltol = reltol;
             if (abstol > 0.0) o.tol.voltage = o.tol.current = abstol;
             o.record = runSignals(n, record);
-            o.progress = interruptible();
+            o.progress = throttledProgress(progress);
+            // The copy is taken under the GIL, so no Python thread changes the netlist while it
+            // is read; the run then touches only the copy.
+            const Circuit circuit = n.circuit;
             py::gil_scoped_release nogil;
-            return own(transient(n.circuit, o));
+            return own(transient(circuit, o));
           },
           py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"),
-          py::arg("max_step"), py::arg("reltol"), py::arg("abstol"))
+          py::arg("max_step"), py::arg("reltol"), py::arg("abstol"),
+          py::arg("progress") = py::none())
       .def(
           "run_op",
-          [](Netlist& n, const std::vector<std::string>& record) {
+          [](const Netlist& n, const std::vector<std::string>& record) {
             checkNetlist(n);
             OperatingPointOptions o;
             o.record = record;
+            const Circuit circuit = n.circuit;  // copied under the GIL, run without it
             py::gil_scoped_release nogil;
-            return own(operatingPoint(n.circuit, o));
+            return own(operatingPoint(circuit, o));
           },
           py::arg("record"))
       .def(
           "run",
-          [](Netlist& n) {
+          [](const Netlist& n, py::object progress) {
+            const Netlist copy = n;  // copied under the GIL, run without it
             RunOutcome out;
             {
               py::gil_scoped_release nogil;
-              out = runNetlist(n, interruptible());
+              out = runNetlist(copy, throttledProgress(progress));
             }
             py::list results;
             for (auto& a : out.analyses) results.append(own(std::move(a.result)));
             return py::make_tuple(
                 results, out.hasReport ? py::object(py::str(reportJson(out.report))) : py::none());
           },
+          py::arg("progress") = py::none(),
           "Runs the netlist's own analyses: (results, report JSON or None).")
       .def("report_json",
            [](const Netlist& n, const Result& r) {
@@ -166,13 +188,14 @@ void registerCircuit(py::module_& m) {
            })
       .def("report_text",
            [](const Netlist& n, const Result& r) { return reportText(makeSupplyReport(n, r)); })
-      .def("write_files", [](Netlist& n, const std::string& dir) {
+      .def("write_files", [](const Netlist& n, const std::string& dir) {
+        const Netlist copy = n;  // copied under the GIL, run without it
         RunOutcome out;
         {
           py::gil_scoped_release nogil;
-          out = runNetlist(n, interruptible());
+          out = runNetlist(copy, throttledProgress(py::none()));
         }
-        return writeRunFiles(n, out, dir);
+        return writeRunFiles(copy, out, dir);
       });
   m.def(
       "reference_circuit",

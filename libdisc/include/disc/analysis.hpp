@@ -64,10 +64,16 @@ struct TransientOptions {
 /// Signal names: "v:node", "v:node1,node2", "<probe>:<device>" (e.g. "i:R1", "p:D1"),
 /// "x:<unknown>" (raw unknown, e.g. "x:T1.i2").
 
+/// Every analysis reads the circuit only while it takes its own deep copy, at the start; the
+/// run then works on that copy alone. One circuit may therefore run in many threads at once,
+/// each result bit-identical to a serial run's; a change to the circuit (a parameter set,
+/// a device added) must not overlap the start of a run on it, and never reaches a run under
+/// way. The progress callback is called from the analysis's own thread.
+
 /// DC operating point at t = 0. The result holds one time point.
-Result operatingPoint(Circuit& circuit, const OperatingPointOptions& options = {});
+Result operatingPoint(const Circuit& circuit, const OperatingPointOptions& options = {});
 /// Transient analysis from 0 to options.stop.
-Result transient(Circuit& circuit, const TransientOptions& options);
+Result transient(const Circuit& circuit, const TransientOptions& options);
 
 const char* methodName(Method m);
 /// Parses "trap", "bdf2" or "ida"; throws InputError otherwise.

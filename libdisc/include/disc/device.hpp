@@ -136,6 +136,11 @@ std::string retiredParameterHint(const std::vector<DeviceParameter>& table,
                                  const std::string& name);
 
 /// Base of every circuit element.
+///
+/// An analysis prepares, binds, declares and evaluates its own clone of each device (the
+/// circuit itself is only read, to copy it), so what a device keeps from bind() on is state of
+/// that one run. A device may memoise in `mutable` members during evaluation; bind() must empty
+/// such memos, so that a run's results never depend on what its copy saw before.
 class Device {
  public:
   Device(std::string name, std::vector<NodeId> terminals);

@@ -18,11 +18,11 @@ struct JacobianCheck {
 };
 
 /// Unknown names of a circuit in solution-vector order (nodes first, then internals).
-std::vector<std::string> unknownNames(Circuit& circuit);
+std::vector<std::string> unknownNames(const Circuit& circuit);
 
 /// Compares the analytic G and C at x (one value per unknown) and time t with central finite
 /// differences. Relative error per entry: |a - f| / (|a| + |f| + floor), floor = 1e-6 times the
 /// largest entry magnitude of the same row.
-JacobianCheck checkJacobian(Circuit& circuit, const std::vector<double>& x, double t = 0.0);
+JacobianCheck checkJacobian(const Circuit& circuit, const std::vector<double>& x, double t = 0.0);
 
 }  // namespace disc

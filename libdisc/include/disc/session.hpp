@@ -24,7 +24,7 @@ struct RunOutcome {
 
 /// Runs every analysis of the netlist; the last transient feeds the supply report when the
 /// netlist names its output. `progress(time, stop)` may return false to cancel.
-RunOutcome runNetlist(Netlist& netlist, std::function<bool(double, double)> progress = {});
+RunOutcome runNetlist(const Netlist& netlist, std::function<bool(double, double)> progress = {});
 
 /// The signals a run of this netlist records: `extra`, the file's own, and those the supply
 /// report needs when the netlist names its output.

@@ -16,7 +16,7 @@ std::vector<std::string> runSignals(const Netlist& nl, const std::vector<std::st
   return record;
 }
 
-RunOutcome runNetlist(Netlist& nl, std::function<bool(double, double)> progress) {
+RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> progress) {
   RunOutcome out;
   std::size_t lastTransient = nl.analyses.size();
   for (std::size_t k = 0; k < nl.analyses.size(); ++k)

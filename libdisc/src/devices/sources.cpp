@@ -26,6 +26,7 @@ void VoltageSource::bind(const Binding& b) {
   p_ = b.terminals[0];
   n_ = b.terminals[1];
   br_ = b.internals[0];
+  memoTime_ = std::numeric_limits<double>::quiet_NaN();  // each run starts without a memo
 }
 
 void VoltageSource::declare(PatternBuilder& pb) {

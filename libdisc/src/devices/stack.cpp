@@ -31,7 +31,9 @@ struct Stack::Plate {
   int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0;
   PairSlots coupling;
   int sFj = 0, sFh = 0, sFf = 0;
-  mutable detail::ArrheniusCache cache;  // evaluation cache only: no state of the plate
+  // Evaluation cache only, no state of the plate; the plates an analysis evaluates are its
+  // private copy (System), emptied at bind().
+  mutable detail::ArrheniusCache cache;
 };
 
 namespace {
@@ -218,6 +220,7 @@ void Stack::bind(const Binding& b) {
     p.th = b.internals[next++];
     p.f = b.internals[next++];
     p.cell = b.limitCell + static_cast<int>(n);
+    p.cache = {};  // each run starts without a cache: results do not depend on earlier runs
     if (p.pos > 0) plates_[n - 1].kk = p.a;
     if (last) p.kk = k_;
     p.neighbour = -1;

@@ -10,14 +10,14 @@
 
 namespace disc {
 
-std::vector<std::string> unknownNames(Circuit& circuit) {
+std::vector<std::string> unknownNames(const Circuit& circuit) {
   detail::System sys(circuit);
   std::vector<std::string> names;
   for (int k = 0; k < sys.size(); ++k) names.push_back(sys.unknownName(k));
   return names;
 }
 
-JacobianCheck checkJacobian(Circuit& circuit, const std::vector<double>& x0, double t) {
+JacobianCheck checkJacobian(const Circuit& circuit, const std::vector<double>& x0, double t) {
   detail::System sys(circuit);
   const int n = sys.size();
   if (static_cast<int>(x0.size()) != n)

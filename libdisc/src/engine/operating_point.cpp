@@ -99,7 +99,7 @@ void OperatingPointOptions::validate() const {
     throw InputError("operating point: gmin must be zero or positive");
 }
 
-Result operatingPoint(Circuit& circuit, const OperatingPointOptions& options) {
+Result operatingPoint(const Circuit& circuit, const OperatingPointOptions& options) {
   options.validate();
   const auto start = std::chrono::steady_clock::now();
   detail::System sys(circuit);

@@ -68,14 +68,14 @@ struct UnionFind {
 
 }  // namespace
 
-System::System(Circuit& circuit) : circuit_(circuit) {
-  for (const auto& d : circuit.devices()) {
+System::System(const Circuit& circuit) : circuit_(circuit) {
+  for (const auto& d : circuit_.devices()) {
     devices_.push_back(d.get());
-    d->prepare(circuit);
+    d->prepare(circuit_);
   }
   // Unknowns in device order: a device's terminal nodes (at first use), then its internals, so
   // that what one device touches lies close together in memory (long stacks and ladders).
-  const int nodes = circuit.nodeCount();
+  const int nodes = circuit_.nodeCount();
   nodeUnknown_.assign(static_cast<std::size_t>(nodes), -1);
   auto addUnknown = [this](std::string name, UnknownKind kind, bool node) {
     names_.push_back(std::move(name));
@@ -85,7 +85,7 @@ System::System(Circuit& circuit) : circuit_(circuit) {
   };
   auto addNode = [&](NodeId id) {
     if (id == kGround || nodeUnknown_[static_cast<std::size_t>(id)] >= 0) return;
-    const int k = addUnknown(circuit.nodeName(id), UnknownKind::Voltage, true);
+    const int k = addUnknown(circuit_.nodeName(id), UnknownKind::Voltage, true);
     nodeUnknown_[static_cast<std::size_t>(id)] = k;
     nodeRows_.push_back(k);
   };

@@ -12,12 +12,17 @@ namespace disc::detail {
 
 /// The compiled equation system F(x, t) = i(x, t) + d/dt q(x) of one circuit.
 ///
+/// The system owns a private deep copy of the circuit and binds, declares and evaluates the
+/// copy's devices: everything a run writes (unknown indices, matrix slots, limiting cells, the
+/// devices' evaluation memos) belongs to this one run, so one circuit runs from many threads at
+/// once and a parameter changed on it never reaches a run already under way.
+///
 /// Vectors indexed by unknown have size() + 1 entries: the last is the ground sentinel, always
 /// zero in x and a discard cell in i and q. Slot arrays G and C have nnz() + 1 entries for the
 /// same reason.
 class System {
  public:
-  explicit System(Circuit& circuit);
+  explicit System(const Circuit& circuit);
 
   int size() const { return n_; }
   int ground() const { return n_; }
@@ -34,7 +39,7 @@ class System {
   UnknownKind kind(int k) const { return kinds_[static_cast<std::size_t>(k)]; }
   /// "node 'out'" or "unknown 'T1.i2'" for messages.
   std::string describe(int k) const;
-  Circuit& circuit() { return circuit_; }
+  /// The run's own copy of the circuit.
   const Circuit& circuit() const { return circuit_; }
   const std::vector<Device*>& devices() const { return devices_; }
 
@@ -96,7 +101,7 @@ class System {
     double value;
   };
 
-  Circuit& circuit_;
+  Circuit circuit_;  // the run's private copy (devices cloned)
   std::vector<Device*> devices_;
   std::vector<Device*> evaluated_;              // the devices that are not linear
   std::vector<LinearTerm> linearCurrents_;      // the linear devices' G (i += G x)

@@ -58,7 +58,7 @@ void reportProgress(const TransientOptions& o, double t) {
 
 }  // namespace detail
 
-Result transient(Circuit& circuit, const TransientOptions& options) {
+Result transient(const Circuit& circuit, const TransientOptions& options) {
   options.validate();
   const auto started = std::chrono::steady_clock::now();
   detail::System sys(circuit);
