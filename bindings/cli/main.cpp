@@ -101,7 +101,8 @@ struct ExampleArgs {
   bool json = false;
   bool cold = true;
   double reltol = 1e-3;
-  double abstol = 0.0;  // V and A; 0: the library's defaults
+  double abstol = 0.0;             // V and A; 0: the library's defaults
+  double temperatureAbstol = 0.0;  // K; 0: the library's default
 };
 
 // Peak resident memory of this process image (VmHWM; getrusage's figure survives exec and
@@ -135,6 +136,7 @@ int runExample(const ExampleArgs& a) {
     opt.tol.voltage = a.abstol;
     opt.tol.current = a.abstol;
   }
+  if (a.temperatureAbstol > 0.0) opt.tol.temperature = a.temperatureAbstol;
   const disc::Result r = disc::transient(circuit, opt);
   const auto fig = disc::measure::outputFigures(r.time(), r["v:" + out], f, a.cycles);
   const auto& s = r.stats();
@@ -271,6 +273,10 @@ int main(int argc, char** argv) {
                    "Absolute tolerance of voltages (V) and currents (A); default 1e-6. Below "
                    "about 1e-6 relative accuracy it, not --reltol, limits the error")
       ->check(CLI::Range(1e-15, 1e-3));
+  example
+      ->add_option("--temperature-abstol", ex.temperatureAbstol,
+                   "Absolute tolerance of temperatures (K); default 1e-4")
+      ->check(CLI::Range(1e-12, 1.0));
   example->add_flag("!--from-operating-point", ex.cold,
                     "Start from the DC operating point instead of switching on cold");
 

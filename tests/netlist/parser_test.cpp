@@ -165,7 +165,8 @@ TEST_CASE("The silicon diode's parameters have descriptive names", "[netlist][pa
         std::vector<std::string>{"saturation-current", "ideality", "series-resistance",
                                  "junction-capacitance", "built-in-potential", "grading-exponent",
                                  "transit-time", "breakdown-voltage", "breakdown-current",
-                                 "thermal-resistance", "heat-capacity", "temperature"});
+                                 "thermal-resistance", "heat-capacity", "temperature",
+                                 "nominal-temperature"});
   CHECK(d.parameter("series-resistance") == Approx(0.05));
 
   // Units are checked against each parameter's own unit; ranges by the device.
@@ -193,4 +194,25 @@ TEST_CASE("The diode's retired short names are errors naming the new word",
     CHECK_THROWS_WITH(d.setParameter(old, 1.0), Contains(hint));
     CHECK_THROWS_WITH(d.parameter(old), Contains(hint));
   }
+}
+
+TEST_CASE("run transient takes a temperature tolerance of its own", "[netlist][parser]") {
+  const Netlist nl = parseNetlist(kOk + "run transient stop=1ms temperature-abstol=1e-7\n");
+  REQUIRE(nl.analyses.size() == 1);
+  CHECK(nl.analyses[0].transient.tol.temperature == 1e-7);
+  CHECK(nl.analyses[0].transient.tol.voltage == TransientOptions{}.tol.voltage);
+  expectError(kOk + "run transient stop=1ms temperature-abstol=2\n", 3, 43,
+              "temperature-abstol (K) must lie above 0");
+}
+
+TEST_CASE("A diode's nominal temperature is a parameter, 300.15 K unless given",
+          "[netlist][parser]") {
+  const Netlist nl = parseNetlist(
+      "current I1 gnd a dc=1mA\ndiode D1 a gnd saturation-current=1e-6 temperature=300K\n"
+      "diode D2 a gnd saturation-current=1e-6 temperature=300K nominal-temperature=300K\n");
+  CHECK(static_cast<const Diode&>(*nl.circuit.find("D1")).params().referenceTemperature ==
+        300.15);
+  CHECK(static_cast<const Diode&>(*nl.circuit.find("D2")).params().referenceTemperature ==
+        Approx(300.0));
+  CHECK(nl.circuit.find("D2")->parameter("nominal-temperature") == Approx(300.0));
 }

@@ -1,6 +1,7 @@
 """The Python module: every public function, zero-copy results, errors with locations, parity
 with the command-line program, parameter sweeps and threads."""
 import json
+import math
 import os
 import pathlib
 import subprocess
@@ -113,7 +114,8 @@ def test_diode_keywords_are_the_netlist_names():
     assert d.parameters == ["saturation_current", "ideality", "series_resistance",
                             "junction_capacitance", "built_in_potential", "grading_exponent",
                             "transit_time", "breakdown_voltage", "breakdown_current",
-                            "thermal_resistance", "heat_capacity", "temperature"]
+                            "thermal_resistance", "heat_capacity", "temperature",
+                            "nominal_temperature"]
     assert d.saturation_current == pytest.approx(5e-9)
     assert d.junction_capacitance == pytest.approx(33e-12)
     d.series_resistance = 0.1
@@ -221,3 +223,22 @@ def test_absolute_tolerance_reaches_the_engine():
     tight = small_supply().run_transient(stop=0.2, record=["v:b"], reltol=1e-6, abstol=1e-10)
     assert tight.stats["accepted_steps"] > loose.stats["accepted_steps"]
     assert tight["v:b"][-1] == pytest.approx(loose["v:b"][-1], rel=1e-3)
+
+
+def test_nominal_temperature_and_temperature_tolerance():
+    # Shockley's law at the nominal temperature: with the device at that temperature the
+    # saturation current is the one given, so V = n kT/q ln(I/Is + 1) (A. S. Sedra and K. C.
+    # Smith, Microelectronic Circuits, the diode equation). Given at 300.15 K but run at 300 K,
+    # the current source's voltage differs.
+    k_over_q = 1.380649e-23 / 1.602176634e-19
+    volts = []
+    for nominal in (300.0, None):
+        c = disc.Circuit()
+        c.current("I1", "gnd", "a", dc=1e-3)
+        c.diode("D1", "a", "gnd", saturation_current=1e-9, ideality=1.0, series_resistance=0,
+                temperature=300.0, nominal_temperature=nominal)
+        r = c.run_transient(stop=1e-3, start="operating-point", record=["v:a"],
+                            temperature_abstol=1e-6)
+        volts.append(r["v:a"][-1])
+    assert volts[0] == pytest.approx(k_over_q * 300.0 * math.log(1e-3 / 1e-9 + 1.0), rel=1e-4)
+    assert abs(volts[1] - volts[0]) > 1e-4

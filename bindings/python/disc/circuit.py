@@ -173,11 +173,12 @@ class Circuit:
               series_resistance=None, junction_capacitance=None, built_in_potential=None,
               grading_exponent=None, transit_time=None, breakdown_voltage=None,
               breakdown_current=None, thermal_resistance=None, heat_capacity=None,
-              temperature=None):
+              temperature=None, nominal_temperature=None):
         """Silicon diode: saturation current (A), ideality, series resistance (ohm), zero-bias
         junction capacitance (F), built-in potential (V), grading exponent, transit time (s),
         reverse breakdown voltage (V) and the current there (A), junction-to-ambient thermal
-        resistance (K/W) and heat capacity (J/K), temperature (K; default the ambient)."""
+        resistance (K/W) and heat capacity (J/K), temperature (K; default the ambient), and the
+        nominal temperature the saturation current is given at (K; default 300.15)."""
         return self._add("diode", name, (anode, cathode), saturation_current=saturation_current,
                          ideality=ideality, series_resistance=series_resistance,
                          junction_capacitance=junction_capacitance,
@@ -185,7 +186,7 @@ class Circuit:
                          transit_time=transit_time, breakdown_voltage=breakdown_voltage,
                          breakdown_current=breakdown_current,
                          thermal_resistance=thermal_resistance, heat_capacity=heat_capacity,
-                         temperature=temperature)
+                         temperature=temperature, nominal_temperature=nominal_temperature)
 
     def stack(self, name, anode, cathode, type, plates=None, parallel=None, mode=None,
               spread=None, seed=None, forming=None, stored_years=None, hours=None,
@@ -243,14 +244,16 @@ class Circuit:
 
     # -- analyses -------------------------------------------------------------------------
     def run_transient(self, stop, record=None, method="trap", start="cold", max_step=0.0,
-                      reltol=0.0, abstol=0.0, progress=None):
+                      reltol=0.0, abstol=0.0, temperature_abstol=0.0, progress=None):
         """Transient from 0 to stop (s). method: 'trap', 'bdf2' or 'ida'; start: 'cold' or
-        'operating-point'; reltol (default 1e-3) and abstol (volts and amperes, default 1e-6),
-        0 for the defaults. The run works on a copy of the circuit taken at the call and
-        releases the GIL; Ctrl-C stops it. progress(time, stop), if given, is called at most
-        every 0.1 s of wall time; returning False cancels the run (KeyboardInterrupt)."""
+        'operating-point'; reltol (default 1e-3), abstol (volts and amperes, default 1e-6) and
+        temperature_abstol (kelvin, default 1e-4), 0 for the defaults. The run works on a copy
+        of the circuit taken at the call and releases the GIL; Ctrl-C stops it. progress(time,
+        stop), if given, is called at most every 0.1 s of wall time; returning False cancels the
+        run (KeyboardInterrupt)."""
         res = self._net.run_transient(float(stop), list(record or []), method, start,
-                                      float(max_step), float(reltol), float(abstol), progress)
+                                      float(max_step), float(reltol), float(abstol),
+                                      float(temperature_abstol), progress)
         return Result(self, res)
 
     def run_op(self, record=None):

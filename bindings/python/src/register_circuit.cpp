@@ -127,7 +127,7 @@ void registerCircuit(py::module_& m) {
           "run_transient",
           [](const Netlist& n, double stop, const std::vector<std::string>& record,
              const std::string& method, const std::string& start, double maxStep, double reltol,
-             double abstol, py::object progress) {
+             double abstol, double temperatureAbstol, py::object progress) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
@@ -141,6 +141,7 @@ void registerCircuit(py::module_& m) {
             o.maxStep = maxStep;
             if (reltol > 0.0) o.tol.reltol = reltol;
             if (abstol > 0.0) o.tol.voltage = o.tol.current = abstol;
+            if (temperatureAbstol > 0.0) o.tol.temperature = temperatureAbstol;
             o.record = runSignals(n, record);
             o.progress = throttledProgress(progress);
             // The copy is taken under the GIL, so no Python thread changes the netlist while it
@@ -151,7 +152,7 @@ void registerCircuit(py::module_& m) {
           },
           py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"),
           py::arg("max_step"), py::arg("reltol"), py::arg("abstol"),
-          py::arg("progress") = py::none())
+          py::arg("temperature_abstol") = 0.0, py::arg("progress") = py::none())
       .def(
           "run_op",
           [](const Netlist& n, const std::vector<std::string>& record) {

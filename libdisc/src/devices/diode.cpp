@@ -64,7 +64,8 @@ const std::vector<DeviceParameter>& Diode::parameterTable() const {
       field("breakdown-current", &P::breakdownCurrent, "A", {"ibv"}),
       field("thermal-resistance", &P::thermalResistance, "K/W", {"rth"}),
       field("heat-capacity", &P::heatCapacity, "J/K", {"cth"}),
-      field("temperature", &P::temperature, "K", {})};
+      field("temperature", &P::temperature, "K", {}),
+      field("nominal-temperature", &P::referenceTemperature, "K", {})};
   return t;
 }
 

@@ -114,13 +114,74 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ctx.time = 0.0;
   sys.evaluate(ctx, true);
   ++stats.evaluations;
+
+  // Consistent values just after a restart at `time` (t = 0 of a cold start, a breakpoint):
+  // the charges (capacitor charges, inductor fluxes, heat) keep their values `qFixed` while the
+  // unknowns without charge take the sources' values at `time`, by one backward-Euler step of a
+  // negligible size. Gives the derivative of the charges there (qdot = -i), which the error
+  // estimate of the first step needs, and a first recorded row that satisfies the equations.
+  NewtonSettings nsInit = ns;
+  nsInit.reuseAcrossSolves = false;
+  nsInit.predictConvergence = false;
+  nsInit.acceptQuadratic = false;
+  nsInit.finalChargesOnly = false;
+  nsInit.stopOnDivergence = false;
+  nsInit.maxIterations = std::max(o.maxNewton, 50);
+  enum class Settled { Failed, Same, Moved };
+  std::vector<double> qFixed(N, 0.0), xStart(N, 0.0), filtered(N, 0.0);
+  auto settleAt = [&](double time, double hScale) {
+    const double a0 = 1.0 / (1e-9 * hScale);
+    xStart = x;
+    // A source across capacitors moves charge at once (an impulse): then the charges jump, by
+    // more or less, and the first pass's a0 (q - qFixed) is not their slope. A second pass from
+    // the charges the first left gives it.
+    for (int pass = 0; pass < 2; ++pass) {
+      qFixed = sys.q;
+      for (std::size_t k = 0; k < N; ++k) hist[k] = -a0 * qFixed[k];
+      xNew = x;
+      EvalContext c0 = ctx;
+      c0.x = xNew.data();
+      c0.time = time;
+      const NewtonOutcome out = solveNewton(sys, ls, xNew, c0, a0, hist.data(), nsInit, stats);
+      if (!out.converged) {
+        // Keep the state as it is (its derivative from the step before, if any).
+        x = xStart;
+        ctx.x = x.data();
+        sys.evaluate(ctx, true);
+        ++stats.evaluations;
+        return Settled::Failed;
+      }
+      for (std::size_t k = 0; k < N; ++k) {
+        xdot[k] = a0 * (xNew[k] - x[k]);
+        qdot[k] = a0 * (sys.q[k] - qFixed[k]);  // = -i, and exactly 0 on rows without charge
+      }
+      x.swap(xNew);
+      x[static_cast<std::size_t>(n)] = 0.0;
+      xdot[static_cast<std::size_t>(n)] = 0.0;
+      ctx.x = x.data();
+      ctx.time = time;
+    }
+    for (int k = 0; k < n; ++k) {
+      const auto uk = static_cast<std::size_t>(k);
+      if (std::abs(x[uk] - xStart[uk]) > o.tol.reltol * std::abs(xStart[uk]) + abstol[uk])
+        return Settled::Moved;
+    }
+    return Settled::Same;
+  };
+  const double hFirst = o.initialStep > 0.0 ? o.initialStep : std::min(hmax, o.stop) * 1e-3;
+  // Derivative of the charges at the last restart is known (the first step's error test).
+  bool slopeKnown = true;  // at an operating point the charges rest: qdot = 0
+  if (o.start == Start::Cold) slopeKnown = settleAt(0.0, hFirst) != Settled::Failed;
   if (o.recordFrom <= 0.0) rec.record(ctx);
 
   History history;  // history.q[0] is the charge at the current time t
   history.reset(0.0, sys.q);
   double t = 0.0, hPrev = 0.0;
-  double h = o.initialStep > 0.0 ? o.initialStep : std::min(hmax, o.stop) * 1e-3;
+  double h = hFirst;
   bool restart = true;
+  // Tries of the first step after a restart (-1: the fallback below), the last and its error.
+  int firstTries = 0;
+  double firstH = 0.0, firstErr = 0.0;
   double errAccepted = 0.0, hAccepted = 0.0;        // the last accepted step's error and size
   double acceptedFactor = 0.0, acceptedExpo = 0.0;  // its errAccepted^-acceptedExpo
   std::size_t nextBreak = 0;
@@ -169,7 +230,9 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
         xNew[uk] = w[0] * x[uk] + w[1] * xPrev[uk] + w[2] * xPrev2[uk] + w[3] * xPrev3[uk];
       }
     }
-    ctx.time = t + h;
+    // A step that lands on a breakpoint sees the excitation's left limit there (a source
+    // switched on at tb is still off); the right limit follows at the restart below.
+    ctx.time = hitsBreak ? std::nextafter(tb, 0.0) : t + h;
     const NewtonOutcome out = solveNewton(sys, ls, xNew, ctx, c.a0, hist.data(), ns, stats);
     // Factors kept from the previous step make the first iteration a chord step, which is never
     // accepted alone; fresh factors let an exact first step end the solve (the second-order
@@ -196,7 +259,51 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     double eulerNorm = 0.0;  // what a backward-Euler step of this size would make, h^2 q''/2
     int worst = -1;
     int order = 0;
-    if (history.count >= 2) {
+    // The error allowed on row k, relative to the largest charge the row has held (so a charge
+    // passing through zero or a junction's small charge does not demand steps far below what
+    // its effect needs) with the charge an absolute tolerance of the row's unknown moves.
+    auto rowTolerance = [&](std::size_t uk, double q0) {
+      const double ckk =
+          std::abs(sys.C[static_cast<std::size_t>(sys.diagonalSlot(static_cast<int>(uk)))]);
+      qScale[uk] = std::max(qScale[uk], std::abs(q0));
+      return o.tol.reltol * qScale[uk] + abstol[uk] * ckk;
+    };
+    if (history.count == 1 && slopeKnown) {
+      // First step after a restart (backward Euler): its error h^2 q''/2 in the charges is the
+      // distance from the tangent at the restart, q_new - q_n - h qdot_n. Stiff modes (a
+      // junction's capacitance behind its series resistance, picoseconds) bend that tangent
+      // hard while backward Euler damps them at once: the error is taken in the unknowns
+      // through (G + C/h)^-1 C/h, which passes the slow modes and filters the stiff ones (the
+      // estimate of E. Hairer and G. Wanner, Solving Ordinary Differential Equations II,
+      // section IV.8, for Radau5), against reltol |x| + abstol.
+      order = 1;
+      // The filter goes twice: once leaves a stiff mode's whole initial value (backward Euler
+      // removed it, the tangent did not), twice scales it by 1/(h lambda) like its true error.
+      for (std::size_t k = 0; k < N; ++k)
+        xdotNew[k] = (qNew[k] - history.q[0][k] - h * qdot[k]) / h;
+      ls.solve(xdotNew.data(), n);
+      const auto& J = sys.jacobian();
+      std::fill(filtered.begin(), filtered.end(), 0.0);  // C v / h
+      for (int col = 0; col < n; ++col)
+        for (int p = J.outerIndexPtr()[col]; p < J.outerIndexPtr()[col + 1]; ++p)
+          filtered[static_cast<std::size_t>(J.innerIndexPtr()[p])] +=
+              sys.C[static_cast<std::size_t>(p)] * xdotNew[static_cast<std::size_t>(col)] / h;
+      xdotNew.swap(filtered);
+      ls.solve(xdotNew.data(), n);
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        const double err = std::abs(xdotNew[uk]);
+        if (err == 0.0) continue;
+        const double tol =
+            o.tol.reltol * std::max(std::abs(xNew[uk]), std::abs(x[uk])) + abstol[uk];
+        rowTolerance(uk, qNew[uk]);  // keeps the rows' charge scales up to date
+        const double ratio = err / tol;
+        if (ratio > errNorm) {
+          errNorm = ratio;
+          worst = k;
+        }
+      }
+    } else if (history.count >= 2) {
       const double t0 = t + h, t1 = history.t[0], t2 = history.t[1];
       const bool third = history.count >= 3;
       const double t3 = third ? history.t[2] : 0.0;
@@ -225,11 +332,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
         }
         const double err = std::abs(lteScale * dd);
         if (err == 0.0) continue;
-        const double ckk = std::abs(sys.C[static_cast<std::size_t>(sys.diagonalSlot(k))]);
-        // Relative to the largest charge the row has held, so a charge passing through zero or
-        // a junction's small charge does not demand steps far below what its effect needs.
-        qScale[uk] = std::max(qScale[uk], std::abs(q0));
-        const double tol = o.tol.reltol * qScale[uk] + abstol[uk] * ckk;
+        const double tol = rowTolerance(uk, q0);
         const double ratio = tol > 0.0 ? err / tol : 1e300;
         eulerNorm = std::max(eulerNorm, tol > 0.0 ? std::abs(h * h * dd2) / tol : 1e300);
         if (ratio > errNorm) {
@@ -239,10 +342,26 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       }
     }
     const double expo = order == 2 ? 1.0 / 3.0 : 0.5;
+    if (history.count == 1 && slopeKnown) {
+      // A first-step error that grows as the step shrinks comes from modes too fast to follow
+      // (a junction's capacitance charging through its series resistance in picoseconds) that
+      // backward Euler damps at the longer step: go back to the try before and take it.
+      if (firstTries > 0 && errNorm > firstErr && firstH > h) {
+        h = firstH;
+        firstTries = -1;  // take the next try as it comes
+        ++stats.rejectedSteps;
+        continue;
+      }
+      if (firstTries < 0) errNorm = std::min(errNorm, 1.0);
+      firstH = h;
+      firstErr = errNorm;
+      if (firstTries >= 0) ++firstTries;
+    }
     if (errNorm > 1.0) {
       ++stats.rejectedSteps;
       const double hTried = h;
-      h *= std::clamp(0.9 * std::pow(errNorm, -expo), 0.1, 0.9);
+      // The first step after a restart has only a trial size: let its estimate cut deeper.
+      h *= std::clamp(0.9 * std::pow(errNorm, -expo), history.count == 1 ? 1e-3 : 0.1, 0.9);
       // Retry with one backward-Euler step: it damps the stiff modes (junction charges behind
       // small resistances) that the trapezoidal rule would carry on ringing undamped. Its size
       // comes from its own, first-order, error on the same divided differences: sized by the
@@ -264,6 +383,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     }
 
     // Accept.
+    firstTries = 0;
     for (std::size_t k = 0; k < N; ++k) {
       qdot[k] = c.a0 * qNew[k] + hist[k];
       double xd = c.a0 * xNew[k] + c.a1 * x[k] + c.b * xdot[k];
@@ -286,8 +406,10 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     ++stats.acceptedSteps;
     ctx.x = x.data();
     ctx.xdot = xdot.data();
-    ctx.time = t;
+    // A row landing on a breakpoint holds the left limit (its time one rounding below tb).
+    ctx.time = hitsBreak && t < o.stop ? std::nextafter(tb, 0.0) : t;
     if (t >= o.recordFrom) rec.record(ctx);
+    ctx.time = t;
     reportProgress(o, t);
 
     // errNorm^-expo once per step: the predictive rule below reuses the last accepted one.
@@ -315,12 +437,20 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       // A corner in the excitation: restart at first order from the breakpoint.
       restart = true;
       errAccepted = 0.0;
+      h = std::min(h, std::max(1e-3 * hmax, 100.0 * hmin));
+      // The right limit at the breakpoint: what a switched source or switch makes of the
+      // unknowns without charge, recorded as a second row at tb when it differs, and the
+      // charges' slope there for the first step's error test (else the left slope stands).
+      sys.q.swap(history.q[0]);
+      const Settled settled = settleAt(t, h);
+      if (settled == Settled::Moved && t >= o.recordFrom) rec.record(ctx);
+      sys.q.swap(history.q[0]);  // history.q[0]: the charges at the settled state
       history.restartAt(t);
       xPoints = 1;
-      std::fill(qdot.begin(), qdot.end(), 0.0);
-      h = std::min(h, std::max(1e-3 * hmax, 100.0 * hmin));
+      slopeKnown = true;
     }
   }
 }
 
 }  // namespace disc::detail
+

@@ -47,11 +47,14 @@ std::vector<double> modelCurrent(const PlateType& type, const Trace& trace, int 
   const Result r = transient(c, opt);
   const auto& t = r.time();
   const auto& i = r["i:PLATE"];
-  // The samples are breakpoints of the drive, so each lies on a step; interpolate anyway.
+  // The samples are breakpoints of the drive, so each lies on a step; interpolate anyway. At a
+  // corner of the drive the run records the left and the right limit (the capacitive current
+  // jumps with the slope): a sample takes the left one, the current the sweep led to.
   std::size_t j = 0;
+  const double atSample = 1e-12 * opt.stop;
   for (std::size_t k = 0; k < trace.size(); ++k) {
     const double tk = trace.time[k] - t0;
-    while (j + 1 < t.size() && t[j + 1] < tk) ++j;
+    while (j + 1 < t.size() && t[j + 1] < tk - atSample) ++j;
     if (j + 1 >= t.size()) {
       out[k] = i.back();
     } else {

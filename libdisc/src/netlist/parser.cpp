@@ -693,10 +693,19 @@ class Builder {
               error(tok.valueWhere, "abstol must lie above 0 and at most 1e-3");
             else if (v)
               a.transient.tol.voltage = a.transient.tol.current = *v;
+          } else if (tok.key == "temperature-abstol") {
+            // Kelvin: temperatures have their own absolute floor (a thermal rise of a few kelvin
+            // needs a finer one than a volt does).
+            auto v = number(tok.value, Dim::None, tok.valueWhere);
+            if (v && (*v <= 0.0 || *v > 1.0))
+              error(tok.valueWhere, "temperature-abstol (K) must lie above 0 and at most 1");
+            else if (v)
+              a.transient.tol.temperature = *v;
           } else {
-            error(tok.where, fmt::format("run transient has no parameter '{}'{}", tok.key,
-                                         didYouMean(tok.key, {"stop", "max-step", "method", "start",
-                                                              "reltol", "abstol"})));
+            error(tok.where,
+                  fmt::format("run transient has no parameter '{}'{}", tok.key,
+                              didYouMean(tok.key, {"stop", "max-step", "method", "start", "reltol",
+                                                   "abstol", "temperature-abstol"})));
           }
         }
         if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
