@@ -55,6 +55,9 @@ struct TransientOptions {
   /// resonances of leakage inductance with junction capacitance force them into tiny steps.
   int idaMaxOrder = 2;
   std::vector<std::string> record;  ///< signals; empty = every node voltage and device current
+  /// Hold the slow unknowns (plate temperatures and forming, UnknownSpec::slow) at their
+  /// starting values: the electrical response alone, as the periodic steady state sees it.
+  bool holdSlow = false;
   /// Called after each accepted step with (time, stop); return false to cancel the run (the
   /// analysis then throws Cancelled).
   std::function<bool(double, double)> progress;

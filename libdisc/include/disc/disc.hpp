@@ -2,6 +2,8 @@
 #pragma once
 
 #include "disc/analysis.hpp"
+#include "disc/periodic.hpp"
+#include "disc/envelope.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
 #include "disc/device.hpp"

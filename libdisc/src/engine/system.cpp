@@ -77,9 +77,10 @@ System::System(const Circuit& circuit) : circuit_(circuit) {
   // that what one device touches lies close together in memory (long stacks and ladders).
   const int nodes = circuit_.nodeCount();
   nodeUnknown_.assign(static_cast<std::size_t>(nodes), -1);
-  auto addUnknown = [this](std::string name, UnknownKind kind, bool node) {
+  auto addUnknown = [this](std::string name, UnknownKind kind, bool node, bool slow = false) {
     names_.push_back(std::move(name));
     kinds_.push_back(kind);
+    slow_.push_back(slow ? 1 : 0);
     isNode_.push_back(node ? 1 : 0);
     return static_cast<int>(names_.size()) - 1;
   };
@@ -93,7 +94,8 @@ System::System(const Circuit& circuit) : circuit_(circuit) {
   for (std::size_t k = 0; k < devices_.size(); ++k) {
     for (NodeId t : devices_[k]->terminals()) addNode(t);
     for (const auto& spec : devices_[k]->internalUnknowns())
-      internals[k].push_back(addUnknown(devices_[k]->name() + "." + spec.suffix, spec.kind, false));
+      internals[k].push_back(
+          addUnknown(devices_[k]->name() + "." + spec.suffix, spec.kind, false, spec.slow));
   }
   for (NodeId id = 0; id < nodes; ++id) addNode(id);
   n_ = static_cast<int>(names_.size());
@@ -207,6 +209,55 @@ void System::evaluate(const EvalContext& ctx, bool jacobian) {
     q[static_cast<std::size_t>(t.row)] += t.value * ctx.x[t.col];
   Stamp s{i.data(), q.data(), G.data(), C.data(), jacobian};
   forEachDevice([&](const Device* d) { d->evaluate(ctx, s); });
+  if (!frozenRows_.empty()) applyFrozen(ctx, jacobian);
+}
+
+void System::freeze(const std::vector<int>& rows, const std::vector<double>& x) {
+  unfreeze();
+  std::vector<int> position(static_cast<std::size_t>(n_), -1);
+  for (int r : rows) {
+    if (r < 0 || r >= n_) throw InputError("freeze: unknown index out of range");
+    if (position[static_cast<std::size_t>(r)] >= 0) continue;
+    position[static_cast<std::size_t>(r)] = static_cast<int>(frozenRows_.size());
+    frozenRows_.push_back(r);
+    frozenValues_.push_back(x[static_cast<std::size_t>(r)]);
+  }
+  frozenCurrents_.assign(frozenRows_.size(), 0.0);
+  const int* outer = jac_.outerIndexPtr();
+  const int* inner = jac_.innerIndexPtr();
+  for (int col = 0; col < n_; ++col)
+    for (int k = outer[col]; k < outer[col + 1]; ++k) {
+      const int at = position[static_cast<std::size_t>(inner[k])];
+      if (at < 0) continue;
+      frozenEntries_.push_back({at, col, 0.0, 0.0});
+      frozenSlots_.push_back(k);
+    }
+}
+
+void System::unfreeze() {
+  frozenRows_.clear();
+  frozenValues_.clear();
+  frozenCurrents_.clear();
+  frozenEntries_.clear();
+  frozenSlots_.clear();
+}
+
+void System::applyFrozen(const EvalContext& ctx, bool jacobian) {
+  for (std::size_t k = 0; k < frozenRows_.size(); ++k) {
+    const auto r = static_cast<std::size_t>(frozenRows_[k]);
+    frozenCurrents_[k] = i[r];
+    i[r] = ctx.x[r] - frozenValues_[k];
+    q[r] = 0.0;
+  }
+  if (!jacobian) return;
+  for (std::size_t k = 0; k < frozenSlots_.size(); ++k) {
+    const auto slot = static_cast<std::size_t>(frozenSlots_[k]);
+    frozenEntries_[k].g = G[slot];
+    frozenEntries_[k].c = C[slot];
+    G[slot] = 0.0;
+    C[slot] = 0.0;
+  }
+  for (int r : frozenRows_) G[static_cast<std::size_t>(diag_[static_cast<std::size_t>(r)])] = 1.0;
 }
 
 void System::evaluateCharges(const EvalContext& ctx) {
@@ -215,6 +266,7 @@ void System::evaluateCharges(const EvalContext& ctx) {
     q[static_cast<std::size_t>(t.row)] += t.value * ctx.x[t.col];
   Stamp s{i.data(), q.data(), G.data(), C.data(), false};
   forEachDevice([&](const Device* d) { d->evaluateCharges(ctx, s); });
+  for (int r : frozenRows_) q[static_cast<std::size_t>(r)] = 0.0;
 }
 
 void System::junctionMeasures(const EvalContext& ctx, const double* dx, double& step,

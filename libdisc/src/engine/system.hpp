@@ -37,6 +37,8 @@ class System {
   int nnz() const { return static_cast<int>(jac_.nonZeros()); }
   const std::string& unknownName(int k) const { return names_[static_cast<std::size_t>(k)]; }
   UnknownKind kind(int k) const { return kinds_[static_cast<std::size_t>(k)]; }
+  /// True for an unknown its device declared slow (UnknownSpec::slow).
+  bool isSlow(int k) const { return slow_[static_cast<std::size_t>(k)] != 0; }
   /// "node 'out'" or "unknown 'T1.i2'" for messages.
   std::string describe(int k) const;
   /// The run's own copy of the circuit.
@@ -72,6 +74,30 @@ class System {
   /// Largest sine-resolving step among the sources, or +inf.
   double naturalStep() const;
 
+  /// Holds the given unknowns at their values in `x`: after every evaluation their rows read
+  /// x_k - value_k (identity row of G, zero row of C, zero charge), so Newton keeps them where
+  /// they are. The periodic steady state freezes the slow unknowns this way. What the devices
+  /// computed for those rows is kept: frozenCurrents() and frozenRows().
+  void freeze(const std::vector<int>& rows, const std::vector<double>& x);
+  /// New held values for the frozen unknowns, from x (their rows stay frozen).
+  void setFrozenValues(const std::vector<double>& x) {
+    for (std::size_t k = 0; k < frozenRows_.size(); ++k)
+      frozenValues_[k] = x[static_cast<std::size_t>(frozenRows_[k])];
+  }
+  /// Releases every frozen unknown.
+  void unfreeze();
+  const std::vector<int>& frozenRows() const { return frozenRows_; }
+  /// The devices' currents i_k of the frozen rows at the last evaluation, in frozenRows() order.
+  const std::vector<double>& frozenCurrents() const { return frozenCurrents_; }
+  /// One entry of a frozen row of G or C as the devices computed it (before the replacement).
+  struct FrozenEntry {
+    int row;  ///< index into frozenRows()
+    int col;  ///< unknown
+    double g, c;
+  };
+  /// The frozen rows' G and C entries at the last evaluation with a Jacobian.
+  const std::vector<FrozenEntry>& frozenEntries() const { return frozenEntries_; }
+
   const Eigen::SparseMatrix<double>& jacobian() const { return jac_; }
   /// Slot of the diagonal entry of unknown k.
   int diagonalSlot(int k) const { return diag_[static_cast<std::size_t>(k)]; }
@@ -95,6 +121,12 @@ class System {
   }
   /// Stamps the linear devices once, into linearCurrents_ and linearCharges_.
   void stampLinearDevices();
+  /// Replaces the frozen rows after an evaluation (see freeze()).
+  void applyFrozen(const EvalContext& ctx, bool jacobian);
+  std::vector<int> frozenRows_;
+  std::vector<double> frozenValues_, frozenCurrents_;
+  std::vector<FrozenEntry> frozenEntries_;
+  std::vector<int> frozenSlots_;  // every slot in a frozen row, parallel to frozenEntries_
   /// One nonzero entry of the linear devices' G or C: its slot, row and column.
   struct LinearTerm {
     int slot, row, col;
@@ -115,6 +147,7 @@ class System {
   int limitCells_ = 0;
   std::vector<std::string> names_;
   std::vector<UnknownKind> kinds_;
+  std::vector<char> slow_;
   std::vector<int> diag_;
   Eigen::SparseMatrix<double> jac_;
   std::vector<std::vector<int>> terminalIndex_;  // per device

@@ -6,6 +6,7 @@
 
 #include "disc/error.hpp"
 #include "operating_point.hpp"
+#include "periodic_solver.hpp"
 #include "transient_common.hpp"
 
 namespace disc {
@@ -70,6 +71,7 @@ Result transient(const Circuit& circuit, const TransientOptions& options) {
   stats.unknowns = sys.size();
   std::vector<double> x(static_cast<std::size_t>(sys.size()) + 1, 0.0);
   sys.initialState(x);
+  if (options.holdSlow) sys.freeze(detail::slowUnknowns(sys), x);
   if (options.start == Start::OperatingPoint) {
     OperatingPointOptions op;
     op.tol = options.tol;

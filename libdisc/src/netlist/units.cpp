@@ -27,6 +27,8 @@ const std::vector<Unit>& units() {
       {"H", Dim::Inductance, true},
       {"Hz", Dim::Frequency, true},
       {"s", Dim::Time, true},
+      {"min", Dim::Time, false},  // warm-up and schedules run over minutes and hours
+      {"h", Dim::Time, false},
       {"W", Dim::Power, true},
       {"J", Dim::Energy, true},
       {"K", Dim::Temperature, false},
@@ -159,7 +161,7 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
       if (scale == 1.0 && !unit) {
         error = fmt::format(
             "'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
-            "units V A ohm F H Hz s W J K degC)",
+            "units V A ohm F H Hz s min h W J K degC)",
             text, suffix);
         return std::nullopt;
       }
@@ -171,6 +173,8 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
     return std::nullopt;
   }
   value *= scale;
+  if (unit && std::string(unit->symbol) == "min") value *= 60.0;
+  if (unit && std::string(unit->symbol) == "h") value *= 3600.0;
   if (unit && (std::string(unit->symbol) == "degC" || std::string(unit->symbol) == "\xC2\xB0"
                                                                                    "C"))
     value += 273.15;

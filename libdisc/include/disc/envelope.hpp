@@ -1,0 +1,59 @@
+// The slow-state envelope ("warm-up"): minutes to hours of plate temperatures, forming and
+// other slow states, driven by period averages of periodic steady states.
+#pragma once
+
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "disc/circuit.hpp"
+#include "disc/periodic.hpp"
+#include "disc/result.hpp"
+
+namespace disc {
+
+/// Options of the slow-state envelope.
+struct EnvelopeOptions {
+  double duration = 0.0;     ///< s, simulated time (required)
+  PeriodicOptions periodic;  ///< every periodic steady state (tolerances; warm-up of the first)
+  double reltol = 1e-3;            ///< slow states, relative
+  double temperatureTol = 0.02;    ///< K, absolute
+  double stateTol = 1e-4;          ///< forming and other dimensionless slow states, absolute
+  double maxStep = 0.0;            ///< s; 0 = a tenth of the duration
+  /// Signals whose period mean, minimum and maximum are recorded at every slow step; empty =
+  /// every slow unknown ("x:<unknown>").
+  std::vector<std::string> record;
+  /// Called at t = 0 and after every accepted slow step with the settled period there (one
+  /// period of `periodic.record`, times from 0). Return false to end the run at that time (not
+  /// an error: EnvelopeResult::stoppedBy says why).
+  std::function<bool(double time, const Result& period)> onPeriod;
+  /// Called with (time, duration) after every slow step; return false to cancel (Cancelled).
+  std::function<bool(double, double)> progress;
+  void validate() const;
+};
+
+struct EnvelopeStats {
+  long slowSteps = 0, rejectedSlowSteps = 0;
+  long periodicSolves = 0;     ///< periodic steady states solved
+  long shootingIterations = 0;
+  long periodIntegrations = 0;
+  double wallSeconds = 0.0;
+};
+
+struct EnvelopeResult {
+  /// One row per slow step, t = 0 first: per recorded signal its period mean under the signal's
+  /// own name, and "min(<signal>)" and "max(<signal>)".
+  Result series;
+  PeriodicResult last;    ///< the settled period at the end time
+  double endTime = 0.0;   ///< s, where the run ended (the duration unless stopped)
+  std::string stoppedBy;  ///< empty, or why the run ended early
+  EnvelopeStats stats;
+};
+
+/// Integrates the slow states over options.duration. Each slow state k follows
+/// dq_k/dt = -<i_k>, the period average of its own equation's current at the periodic steady
+/// state of the present slow values, with Boost.Odeint's rosenbrock4. Throws ConvergenceError
+/// when no periodic steady state exists at some slow state (the message names the time).
+EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options);
+
+}  // namespace disc

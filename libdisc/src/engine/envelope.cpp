@@ -1,0 +1,202 @@
+// The slow-state envelope: a two-time-scale method. The electrical state is periodic at the
+// mains period for fixed slow states; the slow states (temperatures, forming, warm-up) move by
+// the period averages of their own equations. For a slow unknown s_k with charge q_k(s_k)
+// (heat capacity times temperature, for instance) the device equation i_k + dq_k/dt = 0
+// averaged over one settled period gives
+//   ds_k/dt = -<i_k>(s) / (dq_k/ds_k),
+// where <i_k>(s) comes from the periodic steady state at s. Its Jacobian comes from the
+// shooting's own sensitivities (PeriodSolution::slowJacobian), so the stiff rosenbrock4 of
+// Boost.Odeint takes steps set by the slow motion alone.
+#include "disc/envelope.hpp"
+
+#include <fmt/format.h>
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+
+#include "disc/error.hpp"
+#include "periodic_solver.hpp"
+#include "slow_ode.hpp"
+
+namespace disc {
+
+void EnvelopeOptions::validate() const {
+  periodic.validate();
+  if (!(duration > 0.0) || !std::isfinite(duration))
+    throw InputError(fmt::format("warm-up: duration must be positive, got {} s", duration));
+  if (duration > 1e8)
+    throw InputError(fmt::format("warm-up: duration {:.3g} s is beyond 3 years; give at most 1e8 s",
+                                 duration));
+  if (!(reltol > 0.0 && reltol < 0.1))
+    throw InputError("warm-up: reltol must lie between 0 and 0.1");
+  if (!(temperatureTol > 0.0 && temperatureTol <= 10.0))
+    throw InputError("warm-up: the temperature tolerance must lie above 0 and at most 10 K");
+  if (!(stateTol > 0.0 && stateTol <= 0.1))
+    throw InputError("warm-up: the state tolerance must lie above 0 and at most 0.1");
+  if (!(maxStep >= 0.0) || !std::isfinite(maxStep))
+    throw InputError("warm-up: maximum step must be zero (automatic) or positive");
+}
+
+namespace {
+
+/// Appends one row of period reductions (mean, min, max per signal) to the series.
+void appendRow(Result& series, double t, const Result& period, bool first) {
+  const auto& time = period.time();
+  const auto& names = period.signals();
+  if (first) {
+    for (const auto& s : names) series.addSignal(s, period.unit(s));
+    for (const auto& s : names) series.addSignal("min(" + s + ")", period.unit(s));
+    for (const auto& s : names) series.addSignal("max(" + s + ")", period.unit(s));
+  }
+  series.timeColumn().push_back(t);
+  const std::size_t m = names.size();
+  const double span = time.back() - time.front();
+  for (std::size_t k = 0; k < m; ++k) {
+    const auto& v = period[names[k]];
+    double area = 0.0, lo = v.front(), hi = v.front();
+    for (std::size_t j = 1; j < time.size(); ++j) {
+      area += 0.5 * (v[j] + v[j - 1]) * (time[j] - time[j - 1]);
+      lo = std::min(lo, v[j]);
+      hi = std::max(hi, v[j]);
+    }
+    series.column(k).push_back(span > 0.0 ? area / span : v.front());
+    series.column(m + k).push_back(lo);
+    series.column(2 * m + k).push_back(hi);
+  }
+}
+
+}  // namespace
+
+EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options) {
+  options.validate();
+  const auto started = std::chrono::steady_clock::now();
+  detail::System sys(circuit);
+  detail::LinearSolver ls;
+  EnvelopeResult er;
+  EnvelopeStats& es = er.stats;
+  RunStats& stats = er.last.waveforms.stats();
+  stats.method = "warm-up";
+  stats.unknowns = sys.size();
+  const PeriodicOptions& po = options.periodic;
+  const double period = po.period > 0.0 ? po.period : circuitPeriod(circuit);
+  const std::vector<int> slow = detail::slowUnknowns(sys);
+  if (slow.empty())
+    throw InputError(
+        "warm-up: the circuit has no slow states (no plate stack, self-heated diode or warming "
+        "load), so nothing changes over minutes; run periodic for its settled period");
+  std::vector<double> x;
+  const double t0 = detail::warmStart(sys, ls, po, period, x, slow, stats);
+  detail::PeriodicSolver solver(sys, ls, po, period, t0, slow);
+  const std::size_t ns = slow.size();
+
+  std::vector<double> scale(ns);  // each slow state in units of its absolute tolerance
+  for (std::size_t c = 0; c < ns; ++c)
+    scale[c] = sys.kind(slow[c]) == UnknownKind::Temperature ? options.temperatureTol
+                                                             : options.stateTol;
+  std::vector<std::string> record = options.record;
+  if (record.empty())
+    for (int k : slow) record.push_back("x:" + sys.unknownName(k));
+
+  // The periodic steady state at slow values y (scaled), warm-started from the last one.
+  detail::PeriodSolution sol;
+  double solvedTime = -1.0;
+  std::vector<double> solvedY;
+  auto settle = [&](double t, const std::vector<double>& y) {
+    if (t == solvedTime && y == solvedY) return;
+    std::vector<double> ds(ns);
+    for (std::size_t c = 0; c < ns; ++c)
+      ds[c] = y[c] * scale[c] - x[static_cast<std::size_t>(slow[c])];
+    solver.predict(x, ds);
+    sys.setFrozenValues(x);
+    try {
+      solver.solve(x, t, nullptr, sol, stats);
+    } catch (const ConvergenceError& e) {
+      throw ConvergenceError(
+          fmt::format("warm-up at t = {:.6g} s: {}", t, e.what()), e.worstEquation(), e.residual());
+    }
+    ++es.periodicSolves;
+    es.shootingIterations += sol.stats.iterations;
+    es.periodIntegrations += sol.stats.periodIntegrations;
+    solvedTime = t;
+    solvedY = y;
+  };
+  detail::SlowOdeSystem ode;
+  ode.evaluate = [&](double t, const std::vector<double>& y, std::vector<double>& dydt,
+                     std::vector<double>* jac) {
+    settle(t, y);
+    dydt.resize(ns);
+    for (std::size_t r = 0; r < ns; ++r) {
+      const double cap = sol.slowCapacity[r];
+      if (!(cap > 0.0))
+        throw InputError(fmt::format(
+            "warm-up: slow unknown '{}' stores nothing (dq/dx = {}), so it has no rate; a "
+            "device model error",
+            sys.unknownName(slow[r]), cap));
+      dydt[r] = -sol.slowCurrent[r] / cap / scale[r];
+    }
+    if (jac) {
+      jac->assign(ns * ns, 0.0);
+      for (std::size_t r = 0; r < ns; ++r)
+        for (std::size_t c = 0; c < ns; ++c)
+          (*jac)[r * ns + c] = -sol.slowJacobian(static_cast<Eigen::Index>(r),
+                                                 static_cast<Eigen::Index>(c)) /
+                               sol.slowCapacity[r] * scale[c] / scale[r];
+    }
+  };
+
+  // Each accepted slow step: the settled period recorded, reduced into the series.
+  bool first = true;
+  auto observe = [&](double t, const std::vector<double>& y) {
+    settle(t, y);
+    Result period;
+    {
+      detail::Recorder rec(sys, record, period);
+      solver.recordPeriod(x, t, rec, stats);
+    }
+    for (double& tp : period.timeColumn()) tp -= t0;
+    appendRow(er.series, t, period, first);
+    first = false;
+    er.endTime = t;
+    bool go = true;
+    if (options.onPeriod) {
+      Result own;
+      detail::Recorder rec(sys, po.record, own);
+      solver.recordPeriod(x, t, rec, stats);
+      for (double& tp : own.timeColumn()) tp -= t0;
+      go = options.onPeriod(t, own);
+      if (!go) er.stoppedBy = fmt::format("stopped at t = {:.6g} s by the caller", t);
+    }
+    if (options.progress && !options.progress(t, options.duration))
+      throw Cancelled(fmt::format("warm-up cancelled at t = {:.6g} s", t));
+    return go;
+  };
+
+  std::vector<double> y(ns);
+  for (std::size_t c = 0; c < ns; ++c) y[c] = x[static_cast<std::size_t>(slow[c])] / scale[c];
+  if (observe(0.0, y)) {
+    detail::SlowOdeSettings settings;
+    settings.reltol = options.reltol;
+    settings.abstol = 1.0;
+    settings.maxStep = options.maxStep > 0.0 ? options.maxStep : options.duration / 10.0;
+    settings.firstStep = std::min(settings.maxStep, 10.0 * period);
+    detail::SlowOdeStats os;
+    detail::integrateSlowOde(ode, y, 0.0, options.duration, settings, os, observe);
+    es.slowSteps = os.accepted;
+    es.rejectedSlowSteps = os.rejected;
+  }
+  // The settled period at the end, with the caller's signals.
+  {
+    Result& w = er.last.waveforms;
+    detail::Recorder rec(sys, po.record, w);
+    solver.recordPeriod(x, er.endTime, rec, stats);
+    for (double& tp : w.timeColumn()) tp -= t0;
+    er.last.period = period;
+    er.last.startTime = t0;
+    er.last.stats = sol.stats;
+  }
+  es.wallSeconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  er.last.waveforms.stats().wallSeconds = es.wallSeconds;
+  return er;
+}
+
+}  // namespace disc
