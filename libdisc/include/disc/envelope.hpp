@@ -15,7 +15,9 @@ namespace disc {
 /// Options of the slow-state envelope.
 struct EnvelopeOptions {
   double duration = 0.0;     ///< s, simulated time (required)
-  PeriodicOptions periodic;  ///< every periodic steady state (tolerances; warm-up of the first)
+  /// Every periodic steady state (tolerances; warm-up of the first). Its reltol 1e-4 carries
+  /// the period averages well inside the slow states' own 1e-3.
+  PeriodicOptions periodic{.tol = {1e-4, 1e-6, 1e-6, 1e-3, 1e-5}};
   double reltol = 1e-3;            ///< slow states, relative
   double temperatureTol = 0.02;    ///< K, absolute
   double stateTol = 1e-4;          ///< forming and other dimensionless slow states, absolute

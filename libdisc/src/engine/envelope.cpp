@@ -101,15 +101,15 @@ EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options) {
   detail::PeriodSolution sol;
   double solvedTime = -1.0;
   std::vector<double> solvedY;
-  auto settle = [&](double t, const std::vector<double>& y) {
-    if (t == solvedTime && y == solvedY) return;
+  auto settle = [&](double t, const std::vector<double>& y, bool jacobian) {
+    if (t == solvedTime && y == solvedY && (sol.hasJacobian || !jacobian)) return;
     std::vector<double> ds(ns);
     for (std::size_t c = 0; c < ns; ++c)
       ds[c] = y[c] * scale[c] - x[static_cast<std::size_t>(slow[c])];
     solver.predict(x, ds);
     sys.setFrozenValues(x);
     try {
-      solver.solve(x, t, nullptr, sol, stats);
+      solver.solve(x, t, nullptr, sol, stats, jacobian);
     } catch (const ConvergenceError& e) {
       throw ConvergenceError(
           fmt::format("warm-up at t = {:.6g} s: {}", t, e.what()), e.worstEquation(), e.residual());
@@ -123,7 +123,7 @@ EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options) {
   detail::SlowOdeSystem ode;
   ode.evaluate = [&](double t, const std::vector<double>& y, std::vector<double>& dydt,
                      std::vector<double>* jac) {
-    settle(t, y);
+    settle(t, y, jac != nullptr);
     dydt.resize(ns);
     for (std::size_t r = 0; r < ns; ++r) {
       const double cap = sol.slowCapacity[r];
@@ -147,7 +147,7 @@ EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options) {
   // Each accepted slow step: the settled period recorded, reduced into the series.
   bool first = true;
   auto observe = [&](double t, const std::vector<double>& y) {
-    settle(t, y);
+    settle(t, y, false);
     Result period;
     {
       detail::Recorder rec(sys, record, period);

@@ -124,7 +124,7 @@ double PeriodicSolver::weightedNorm(const Eigen::VectorXd& d, const std::vector<
 
 PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adaptive,
                                                double slowTime, Recorder* rec, RunStats& stats,
-                                               bool averages) {
+                                               bool sens) {
   const int n = sys_.size();
   const std::size_t N = static_cast<std::size_t>(n) + 1;
   const double hmax = o_.maxStep > 0.0 ? std::min(o_.maxStep, period_) : period_ / 100.0;
@@ -187,10 +187,12 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     for (const auto& e : sys_.frozenEntries())
       if (e.g != 0.0) out.row(e.row) += e.g * S.row(e.col);
   };
-  if (averages) {
-    avgCurrent_.assign(static_cast<std::size_t>(ns_), 0.0);
+  avgCurrent_.assign(static_cast<std::size_t>(ns_), 0.0);
+  if (sens) {
     avgRowSens_ = Eigen::MatrixXd::Zero(ns_, cols);
     rowSens(rowPrev);
+  }
+  {
     capacity_.assign(static_cast<std::size_t>(ns_), 0.0);
     for (const auto& e : sys_.frozenEntries())
       if (e.col == slow_[static_cast<std::size_t>(e.row)]) capacity_[static_cast<std::size_t>(e.row)] = e.c;
@@ -254,10 +256,13 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
             t0_ + t, out.worstRow >= 0 ? sys_.unknownName(out.worstRow) : "");
       continue;
     }
-    // The accepted point's own Jacobian and factors, for the sensitivities.
+    // The accepted point's own Jacobian and factors, for the sensitivities (without them,
+    // Newton's last evaluation at the converged iterate serves: its charges and currents).
     ctx.x = xNew.data();
-    sys_.evaluate(ctx, true);
-    ++stats.evaluations;
+    if (sens) {
+      sys_.evaluate(ctx, true);
+      ++stats.evaluations;
+    }
 
     // Truncation error on the charges (as the transient's BDF2: (2/9) h^3 q''' from divided
     // differences), once three earlier points exist.
@@ -294,6 +299,7 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
       continue;
     }
     pass.worstError = std::max(pass.worstError, err);
+    if (sens) {
     ls_.factor(sys_, a0, 0.0);
     ls_.setFactoredA0(a0);
     ++stats.factorizations;
@@ -311,21 +317,24 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     Cp2.swap(Cp);
     Cp.swap(C0);
     C0 = sys_.C;
+    }
     qp2.swap(qp);
     qp.swap(q0);
     q0 = sys_.q;
     t3 = {t + h, t3[0], t3[1]};
 
-    if (averages) {
-      rowSens(rowNow);
+    {
       const double wgt = 0.5 * h / period_;
       const auto& iNow = sys_.frozenCurrents();
       for (int r = 0; r < ns_; ++r)
         avgCurrent_[static_cast<std::size_t>(r)] +=
             wgt * (iPrev[static_cast<std::size_t>(r)] + iNow[static_cast<std::size_t>(r)]);
-      avgRowSens_ += wgt * (rowPrev + rowNow);
       iPrev = iNow;
-      rowPrev = rowNow;
+      if (sens) {
+        rowSens(rowNow);
+        avgRowSens_ += wgt * (rowPrev + rowNow);
+        rowPrev = rowNow;
+      }
     }
     // Accept.
     xPrev.swap(x);
@@ -347,70 +356,53 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     }
   }
   if (adaptive) grid_ = std::move(newGrid);
-  S_ = std::move(S);
+  if (sens) S_ = std::move(S);
   pass.ok = true;
   return pass;
 }
 
 void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* rec,
-                           PeriodSolution& out, RunStats& stats) {
+                           PeriodSolution& out, RunStats& stats, bool needJacobian) {
   const int n = sys_.size();
   PeriodicStats& ps = out.stats;
   ps = {};
+  out.hasJacobian = false;
   // Fixed-grid passes converge quadratically; an adaptive pass first (and again whenever the
-  // grid no longer meets the tolerance along the present orbit).
+  // grid no longer meets the tolerance along the present orbit). A pass without sensitivities
+  // takes the monodromy of the last one with them (a chord step, contracting at about the
+  // change of M since): warm starts need no new sensitivities until a step fails to contract.
   bool adaptive = grid_.empty();
-  Eigen::VectorXd delta;
+  bool chord = haveMonodromy_;
   double lastNorm = HUGE_VAL;
   int worstState = -1;
   for (int it = 0; it < o_.maxIterations; ++it) {
-    std::vector<double> z0 = x;
-    Pass pass = integrate(x, adaptive, slowTime, nullptr, stats, false);
+    const std::vector<double> z0 = x;
+    const bool sens = !chord;
+    const Pass pass = integrate(x, adaptive, slowTime, nullptr, stats, sens);
     ++ps.periodIntegrations;
-    if (!pass.ok) {  // the fixed grid failed this orbit
+    if (!pass.ok || (!adaptive && pass.worstError > 2.0)) {
+      // The fixed grid failed this orbit, or no longer meets the tolerance along it.
       x = z0;
       adaptive = true;
       continue;
     }
-    if (!adaptive && pass.worstError > 2.0) {
-      x = z0;
-      adaptive = true;
-      continue;
-    }
-    // Newton on r = z(T) - z0 with the monodromy block of the sensitivity.
-    Eigen::MatrixXd A(m_, m_);
     Eigen::VectorXd r(m_);
     for (int j = 0; j < m_; ++j) {
-      const int kj = states_[static_cast<std::size_t>(j)];
-      r[j] = x[static_cast<std::size_t>(kj)] - z0[static_cast<std::size_t>(kj)];
-      for (int c = 0; c < m_; ++c) A(j, c) = S_(kj, c);
+      const auto kj = static_cast<std::size_t>(states_[static_cast<std::size_t>(j)]);
+      r[j] = x[kj] - z0[kj];
     }
-    monodromy_ = A;
-    A -= Eigen::MatrixXd::Identity(m_, m_);
-    Eigen::PartialPivLU<Eigen::MatrixXd> lu;
-    if (m_ > 0) lu.compute(A);
-    if (m_ > 0 && !(lu.rcond() > 1e-14)) {
-      Eigen::EigenSolver<Eigen::MatrixXd> es(monodromy_);
-      int at = 0;
-      double best = -1.0;
+    if (sens) {
+      monodromy_.resize(m_, m_);
       for (int j = 0; j < m_; ++j)
-        if (std::abs(es.eigenvalues()[j]) > best) {
-          best = std::abs(es.eigenvalues()[j]);
-          at = j;
-        }
-      Eigen::Index row = 0;
-      es.eigenvectors().col(at).cwiseAbs().maxCoeff(&row);
-      throw ConvergenceError(
-          fmt::format("periodic: a mode of the circuit neither grows nor decays over a period "
-                      "(Floquet multiplier {:.6f}), so it has no unique periodic state; it lies "
-                      "mostly in {}. Give it a resistive path (a capacitor with no DC path, a "
-                      "lossless inductor loop) or run a transient",
-                      best, sys_.describe(states_[static_cast<std::size_t>(row)])),
-          sys_.unknownName(states_[static_cast<std::size_t>(row)]), best);
+        for (int c = 0; c < m_; ++c) monodromy_(j, c) = S_(states_[static_cast<std::size_t>(j)], c);
+      if (m_ > 0) {
+        shootingLu_.compute(monodromy_ - Eigen::MatrixXd::Identity(m_, m_));
+        if (!(shootingLu_.rcond() > 1e-14)) throwNeutralMode();
+      }
+      haveMonodromy_ = true;
     }
-    delta = m_ > 0 ? Eigen::VectorXd(lu.solve(-r)) : Eigen::VectorXd(0);
-    // The update of every unknown follows from the sensitivity: algebraic ones too.
-    Eigen::VectorXd full = S_.leftCols(m_) * delta;
+    const Eigen::VectorXd delta =
+        m_ > 0 ? Eigen::VectorXd(shootingLu_.solve(-r)) : Eigen::VectorXd(0);
     const double norm = weightedNorm(delta, x);
     ps.iterations = it + 1;
     ps.residual = norm;
@@ -419,61 +411,39 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
       delta.cwiseAbs().maxCoeff(&j);
       worstState = states_[static_cast<std::size_t>(j)];
     }
-    // A growing update after the first iterations means the start lies outside Newton's
-    // reach: take half of it.
-    double damp = 1.0;
-    if (it >= 2 && norm > 4.0 * lastNorm) damp = 0.5;
-    for (int k = 0; k < n; ++k) {
-      const auto uk = static_cast<std::size_t>(k);
-      if (sys_.isSlow(k)) {
-        x[uk] = z0[uk];
-        continue;
-      }
-      x[uk] += damp * full[k];
-    }
-    lastNorm = norm;
-    if (adaptive && norm < 100.0) adaptive = false;
-    if (norm <= 1.0) {
-      // The settled start: one more pass over it records the period and its averages.
-      std::vector<double> z1 = x;
-      Pass final = integrate(x, false, slowTime, nullptr, stats, true);
-      ++ps.periodIntegrations;
-      if (!final.ok) {
-        x = z1;
-        adaptive = true;
-        continue;
-      }
-      if (rec) {  // the same grid from the same start: the same steps, now recorded
-        std::vector<double> xr = z1;
-        const Eigen::MatrixXd keep = S_;
-        integrate(xr, false, slowTime, rec, stats, false);
-        S_ = keep;
-      }
-      // Its sensitivity gives the settled orbit's response to the slow values.
-      Eigen::MatrixXd M(m_, m_), P(m_, ns_);
-      for (int j = 0; j < m_; ++j) {
-        const int kj = states_[static_cast<std::size_t>(j)];
-        for (int c = 0; c < m_; ++c) M(j, c) = S_(kj, c);
-        for (int c = 0; c < ns_; ++c) P(j, c) = S_(kj, m_ + c);
-      }
-      monodromy_ = M;
-      const Eigen::MatrixXd IM = Eigen::MatrixXd::Identity(m_, m_) - M;
-      dzds_ = ns_ > 0 && m_ > 0 ? Eigen::MatrixXd(IM.partialPivLu().solve(P))
-                                : Eigen::MatrixXd::Zero(m_, ns_);
-      out.slowCurrent = avgCurrent_;
-      out.slowCapacity = capacity_;
-      out.slowJacobian = avgRowSens_.rightCols(ns_) + avgRowSens_.leftCols(m_) * dzds_;
-      if (m_ > 0 && m_ <= 400) {
-        Eigen::EigenSolver<Eigen::MatrixXd> es(M, false);
-        double big = 0.0;
-        for (int j = 0; j < m_; ++j) big = std::max(big, std::abs(es.eigenvalues()[j]));
-        ps.largestMultiplier = big;
-      }
+    if (norm <= 1.0 && (sens || !needJacobian)) {
+      // z0 was settled to the tolerance: this pass is the period. Its averages and (with
+      // sensitivities) the orbit's response to the slow values are kept.
+      x = z0;
+      finish(out, sens);
       ps.stepsPerPeriod = static_cast<int>(grid_.size());
-      x = z1;  // the start of the period, not its end
+      if (rec) recordPeriod(x, slowTime, *rec, stats);
       solved_ = true;
       return;
     }
+    // A chord step that contracts poorly, or a settled chord pass that must yield a
+    // Jacobian, is followed by a pass with sensitivities.
+    if (chord && (norm <= 1.0 || norm > 0.25 * lastNorm)) chord = false;
+    // The update of every unknown follows from the sensitivity (algebraic ones too) on passes
+    // that have it; a chord pass moves the shooting variables and lets the rest follow.
+    double damp = 1.0;
+    if (it >= 2 && norm > 4.0 * lastNorm) damp = 0.5;  // outside Newton's reach: half a step
+    if (norm > 1.0 || !needJacobian) {
+      // Newton's new start z0 + delta; the algebraic unknowns start from their prediction.
+      if (sens) {
+        const Eigen::VectorXd full = S_.leftCols(m_) * delta;
+        for (int k = 0; k < n; ++k) x[static_cast<std::size_t>(k)] += damp * full[k];
+      }
+      for (int j = 0; j < m_; ++j) {
+        const auto kj = static_cast<std::size_t>(states_[static_cast<std::size_t>(j)]);
+        x[kj] = z0[kj] + damp * delta[j];
+      }
+      for (int k : slow_) x[static_cast<std::size_t>(k)] = z0[static_cast<std::size_t>(k)];
+    } else {
+      x = z0;  // settled, but a pass with sensitivities must follow from the same start
+    }
+    lastNorm = norm;
+    if (adaptive && norm < 100.0) adaptive = false;
   }
   throw ConvergenceError(
       fmt::format("periodic: shooting did not converge in {} iterations: the last update was {:.3g} "
@@ -484,15 +454,52 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
       worstState >= 0 ? sys_.unknownName(worstState) : "", ps.residual);
 }
 
+void PeriodicSolver::finish(PeriodSolution& out, bool sens) {
+  out.slowCurrent = avgCurrent_;
+  out.slowCapacity = capacity_;
+  if (!sens) return;
+  Eigen::MatrixXd P(m_, ns_);
+  for (int j = 0; j < m_; ++j)
+    for (int c = 0; c < ns_; ++c) P(j, c) = S_(states_[static_cast<std::size_t>(j)], m_ + c);
+  dzds_ = ns_ > 0 && m_ > 0 ? Eigen::MatrixXd(shootingLu_.solve(-P)) : Eigen::MatrixXd::Zero(m_, ns_);
+  out.slowJacobian = avgRowSens_.rightCols(ns_) + avgRowSens_.leftCols(m_) * dzds_;
+  out.hasJacobian = true;
+  if (m_ > 0 && m_ <= 400) {
+    Eigen::EigenSolver<Eigen::MatrixXd> es(monodromy_, false);
+    double big = 0.0;
+    for (int j = 0; j < m_; ++j) big = std::max(big, std::abs(es.eigenvalues()[j]));
+    out.stats.largestMultiplier = big;
+  }
+}
+
+void PeriodicSolver::throwNeutralMode() const {
+  Eigen::EigenSolver<Eigen::MatrixXd> es(monodromy_);
+  int at = 0;
+  double best = -1.0;
+  for (int j = 0; j < m_; ++j)
+    if (std::abs(es.eigenvalues()[j]) > best) {
+      best = std::abs(es.eigenvalues()[j]);
+      at = j;
+    }
+  Eigen::Index row = 0;
+  es.eigenvectors().col(at).cwiseAbs().maxCoeff(&row);
+  const int k = states_[static_cast<std::size_t>(row)];
+  throw ConvergenceError(
+      fmt::format("periodic: a mode of the circuit neither grows nor decays over a period "
+                  "(Floquet multiplier {:.6f}), so it has no unique periodic state; it lies "
+                  "mostly in {}. Give it a resistive path (a capacitor with no DC path, a "
+                  "lossless inductor loop) or run a transient",
+                  best, sys_.describe(k)),
+      sys_.unknownName(k), best);
+}
+
 void PeriodicSolver::recordPeriod(const std::vector<double>& x, double slowTime, Recorder& rec,
                                   RunStats& stats) {
   std::vector<double> xr = x;
-  const Eigen::MatrixXd keep = S_;  // the settled sensitivity stays the warm start's
   if (!integrate(xr, false, slowTime, &rec, stats, false).ok)
     throw ConvergenceError("periodic: the settled period could not be integrated again on its "
                            "own step grid",
                            "", 0.0);
-  S_ = keep;
 }
 
 void PeriodicSolver::predict(std::vector<double>& x, const std::vector<double>& ds) const {

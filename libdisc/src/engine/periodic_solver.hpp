@@ -21,6 +21,7 @@ struct PeriodSolution {
   std::vector<double> slowCapacity;
   /// d(slowCurrent_r)/d(slow_c): the orbit's own response to the slow state included.
   Eigen::MatrixXd slowJacobian;
+  bool hasJacobian = false;
   /// Period averages of the recorded signals (the Recorder's columns), when recorded.
   PeriodicStats stats;
 };
@@ -37,8 +38,10 @@ class PeriodicSolver {
   /// Solves from x (a start state; its slow entries are the fixed slow values) and leaves the
   /// settled start state in x. With `rec`, the final period is recorded (times on the sources'
   /// clock). Throws ConvergenceError / TimeStepError naming the cause.
+  /// With needJacobian, out.slowJacobian is filled (a pass with sensitivities at the settled
+  /// orbit); otherwise a chord iteration on the last monodromy may settle it.
   void solve(std::vector<double>& x, double slowTime, Recorder* rec, PeriodSolution& out,
-             RunStats& stats);
+             RunStats& stats, bool needJacobian = true);
 
   /// Records one period from a settled start x (after solve()) on the settled step grid.
   void recordPeriod(const std::vector<double>& x, double slowTime, Recorder& rec,
@@ -61,6 +64,8 @@ class PeriodicSolver {
   /// One period from x (in place) with state sensitivities; adaptive records the grid.
   Pass integrate(std::vector<double>& x, bool adaptive, double slowTime, Recorder* rec,
                  RunStats& stats, bool averages);
+  void finish(PeriodSolution& out, bool sens);
+  [[noreturn]] void throwNeutralMode() const;
   double weightedNorm(const Eigen::VectorXd& d, const std::vector<double>& x) const;
 
   System& sys_;
@@ -73,6 +78,8 @@ class PeriodicSolver {
   std::vector<double> grid_;  // accepted step sizes of the last adaptive pass
   bool solved_ = false;
   bool statesKnown_ = false;
+  bool haveMonodromy_ = false;
+  Eigen::PartialPivLU<Eigen::MatrixXd> shootingLu_;  // of M - I
   int m_ = 0, ns_ = 0;          // shooting variables, slow unknowns
   Eigen::MatrixXd S_;           // n x (m + ns) sensitivity at the end of the last pass
   Eigen::MatrixXd dzds_;        // m x ns, settled state's response to the slow values
