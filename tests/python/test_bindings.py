@@ -221,3 +221,22 @@ def test_absolute_tolerance_reaches_the_engine():
     tight = small_supply().run_transient(stop=0.2, record=["v:b"], reltol=1e-6, abstol=1e-10)
     assert tight.stats["accepted_steps"] > loose.stats["accepted_steps"]
     assert tight["v:b"][-1] == pytest.approx(loose["v:b"][-1], rel=1e-3)
+
+
+def test_a_runaway_plate_ends_the_run_with_its_failure_events():
+    # A fully deformed selenium plate in reverse across a stiff 20 V source heats faster than
+    # it cools (its leakage rises with temperature): the run stops where it is destroyed.
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", dc=20, resistance=0.01)
+    c.stack("SR1", "gnd", "a", type="se-25mm-square", plates=1, forming=0)
+    r = c.run_transient(stop=600, record=["temp:SR1"])
+    assert r.failed
+    kinds = [e["kind"] for e in r.failures]
+    assert kinds == ["runaway", "destroyed"]
+    destroyed = r.failures[-1]
+    se = disc.plate_type("se-25mm-square")
+    assert destroyed["destruction_K"] == pytest.approx(se.get("destruction_temp_C") + 273.15)
+    assert destroyed["fails_to"] == se.fails_to == "short"
+    assert destroyed["verdict"].startswith("plate SR1#1 would fail after ")
+    assert r.time[-1] < 600
+    assert np.all(r["temp:SR1"] < destroyed["destruction_K"] + 15)
