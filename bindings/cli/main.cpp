@@ -13,7 +13,8 @@
 
 namespace {
 
-// Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded (with --strict).
+// Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded or a plate fails
+// (with --strict).
 constexpr int kExitInput = 2;
 constexpr int kExitSimulation = 3;
 constexpr int kExitRatings = 4;
@@ -68,8 +69,22 @@ int runFile(const RunArgs& a) {
   } else if (!a.quiet) {
     fmt::print("{}: no output statement, so no supply report; results written as CSV.\n", a.file);
   }
+  // Runaways and destructions of every analysis (the report shows its own transient's).
+  bool failure = false;
+  std::size_t lastTransient = out.analyses.size();
+  for (std::size_t k = 0; k < out.analyses.size(); ++k)
+    if (out.analyses[k].request.kind == disc::AnalysisRequest::Kind::Transient) lastTransient = k;
+  for (std::size_t k = 0; k < out.analyses.size(); ++k) {
+    const auto& events = out.analyses[k].result.failures();
+    failure = failure || !events.empty();
+    const bool reported = out.hasReport && k == lastTransient;
+    if (a.quiet || events.empty() || reported) continue;
+    fmt::print("FAILURE in analysis {}:\n", k + 1);
+    for (const auto& v : disc::failureVerdicts(events)) fmt::print("  {}\n", v);
+  }
   if (!a.quiet) fmt::print("\nwritten to {}/ ({} files)\n", dir, files.size());
-  if (a.strict && out.hasReport && out.report.worst == "exceeds") return kExitRatings;
+  if (a.strict && (failure || (out.hasReport && out.report.worst == "exceeds")))
+    return kExitRatings;
   return 0;
 }
 
@@ -247,14 +262,16 @@ int main(int argc, char** argv) {
   auto* run = app.add_subcommand("run", "Simulate a netlist and print the supply report");
   run->add_option("file", ra.file, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
   run->add_option("-o,--out", ra.outDir, "Output folder (default out/<file stem>)");
-  run->add_flag("--strict", ra.strict, "Exit with code 4 when a rating is exceeded");
+  run->add_flag("--strict", ra.strict,
+                "Exit with code 4 when a rating is exceeded or a plate runs away or fails");
   run->add_flag("-q,--quiet", ra.quiet, "Print nothing; only write the files");
   std::string checkPath;
   auto* check = app.add_subcommand("check", "Parse and validate a netlist without simulating");
   check->add_option("file", checkPath, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
   auto* plates = app.add_subcommand("plates", "List the built-in plate types and their ratings");
   app.footer(
-      "Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded (--strict).");
+      "Exit codes: 0 success, 2 bad input, 3 simulation failed, 4 ratings exceeded or a plate "
+      "runs away or fails (--strict).");
 
   ExampleArgs ex;
   auto* example = app.add_subcommand("example", "Run a reference circuit built into the library");

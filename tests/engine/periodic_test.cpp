@@ -89,15 +89,15 @@ struct HeatedDiode {
     c.setAmbient(ambient);
     c.emplace<CurrentSource>("I1", kGround, c.node("a"), Waveform::sine(iac, f, 0.0, idc));
     DiodeParams p;
-    p.is = is;
-    p.n = n;
-    p.rs = rs;
-    p.cj0 = 0.0;
-    p.xti = 0.0;
-    p.eg = 1e-12;
-    p.bv = 0.0;
-    p.rth = rth;
-    p.cth = cth;
+    p.saturationCurrent = is;
+    p.ideality = n;
+    p.seriesResistance = rs;
+    p.junctionCapacitance = 0.0;
+    p.saturationTempExponent = 0.0;
+    p.bandGap = 1e-12;
+    p.breakdownVoltage = 0.0;
+    p.thermalResistance = rth;
+    p.heatCapacity = cth;
     c.emplace<Diode>("D1", c.node("a"), kGround, p);
     return c;
   }

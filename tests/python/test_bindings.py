@@ -242,3 +242,22 @@ def test_nominal_temperature_and_temperature_tolerance():
         volts.append(r["v:a"][-1])
     assert volts[0] == pytest.approx(k_over_q * 300.0 * math.log(1e-3 / 1e-9 + 1.0), rel=1e-4)
     assert abs(volts[1] - volts[0]) > 1e-4
+
+
+def test_a_runaway_plate_ends_the_run_with_its_failure_events():
+    # A fully deformed selenium plate in reverse across a stiff 20 V source heats faster than
+    # it cools (its leakage rises with temperature): the run stops where it is destroyed.
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", dc=20, resistance=0.01)
+    c.stack("SR1", "gnd", "a", type="se-25mm-square", plates=1, forming=0)
+    r = c.run_transient(stop=600, record=["temp:SR1"])
+    assert r.failed
+    kinds = [e["kind"] for e in r.failures]
+    assert kinds == ["runaway", "destroyed"]
+    destroyed = r.failures[-1]
+    se = disc.plate_type("se-25mm-square")
+    assert destroyed["destruction_K"] == pytest.approx(se.get("destruction_temp_C") + 273.15)
+    assert destroyed["fails_to"] == se.fails_to == "short"
+    assert destroyed["verdict"].startswith("plate SR1#1 would fail after ")
+    assert r.time[-1] < 600
+    assert np.all(r["temp:SR1"] < destroyed["destruction_K"] + 15)

@@ -87,6 +87,17 @@ class Result:
         """Work counters: steps, Newton iterations, wall time."""
         return self._result.stats
 
+    @property
+    def failures(self):
+        """Runaways and destructions, in order of time: dicts with the keys of report.json's
+        ``failures`` (kind, body, time_s, temperature_K, fails_to, cause, verdict, ...)."""
+        return self._result.failures
+
+    @property
+    def failed(self):
+        """True when a plate was destroyed; the run ended at that step."""
+        return self._result.failed
+
     def report(self):
         """The supply report as a dict with the fields of report.json (docs/report.md)."""
         return json.loads(self._circuit._net.report_json(self._result))

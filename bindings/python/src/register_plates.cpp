@@ -15,6 +15,12 @@ void registerPlates(py::module_& m) {
       .def_readonly("material", &PlateType::material)
       .def_readonly("description", &PlateType::description)
       .def_readonly("notes", &PlateType::notes)
+      .def_property_readonly(
+          "fails_to", [](const PlateType& t) { return failureModeName(t.failure.mode); },
+          "What a destroyed plate becomes: 'short' or 'open'.")
+      .def_property_readonly(
+          "mechanism", [](const PlateType& t) { return t.failure.mechanism; },
+          "What destroys the plate at failure.destruction_temp_C, in words.")
       .def("get", &PlateType::get, py::arg("key"), "A parameter by its JSON name.")
       .def("set", &PlateType::set, py::arg("key"), py::arg("value"))
       .def_static("parameter_names", &PlateType::parameterNames)

@@ -52,6 +52,30 @@ void registerResult(py::module_& m) {
                                d["wall_s"] = s.wallSeconds;
                                return d;
                              })
+      .def_property_readonly(
+          "failures",
+          [](const Result& r) {
+            py::list l;
+            for (const FailureEvent& e : r.failures()) {
+              py::dict d;
+              d["kind"] = thermalConditionName(e.kind);
+              d["body"] = e.body;
+              d["device"] = e.device;
+              d["plates"] = e.plates;
+              d["time_s"] = e.time;
+              d["temperature_K"] = e.temperature;
+              d["destruction_K"] = e.destruction;
+              d["fails_to"] = failureModeName(e.mode);
+              d["mechanism"] = e.mechanism;
+              d["cause"] = e.cause;
+              d["verdict"] = e.verdict();
+              l.append(d);
+            }
+            return l;
+          },
+          "Runaways and destructions, in order of time (the keys of report.json's failures).")
+      .def_property_readonly("failed", &Result::failed,
+                             "True when a plate was destroyed (the run ended there).")
       .def(
           "to_csv",
           [](const Result& r, const std::string& path) { writeFileAtomically(path, resultCsv(r)); },

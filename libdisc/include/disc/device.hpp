@@ -14,6 +14,8 @@
 #include <string_view>
 #include <vector>
 
+#include "disc/failure.hpp"
+
 namespace disc {
 
 class Circuit;
@@ -222,6 +224,12 @@ class Device {
   virtual double probeAt(int k, int /*index*/, const EvalContext& ctx) const {
     return probe(k, ctx);
   }
+  /// Bodies whose temperature can destroy the device (after bind and prepare), one per plate
+  /// or lumped arm: every analysis checks them (disc/failure.hpp).
+  virtual void heatedBodies(std::vector<HeatedBody>& /*out*/) const {}
+  /// The heat balance of body k of heatedBodies() at ctx's state; the slope is taken at fixed
+  /// voltages (terminal and internal).
+  virtual HeatState heatState(int /*k*/, const EvalContext& /*ctx*/) const { return {}; }
   /// Sets unknowns that carry history (slow states, initial temperature rises) to their
   /// starting values, before the operating point or a cold start.
   virtual void initialState(double* /*x*/) const {}

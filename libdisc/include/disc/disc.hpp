@@ -17,6 +17,7 @@
 #include "disc/devices/transformer.hpp"
 #include "disc/diagnostics.hpp"
 #include "disc/error.hpp"
+#include "disc/failure.hpp"
 #include "disc/measures.hpp"
 #include "disc/netlist.hpp"
 #include "disc/plate_curve.hpp"

@@ -56,6 +56,6 @@ struct EnvelopeResult {
 /// dq_k/dt = -<i_k>, the period average of its own equation's current at the periodic steady
 /// state of the present slow values, with Boost.Odeint's rosenbrock4. Throws ConvergenceError
 /// when no periodic steady state exists at some slow state (the message names the time).
-EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options);
+EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options);
 
 }  // namespace disc

@@ -55,7 +55,7 @@ struct PeriodicResult {
 /// ConvergenceError naming the cause when shooting does not converge (no periodic response,
 /// a mode that never settles, an unstable slow state), InputError when the sources are not
 /// periodic, TimeStepError when a period cannot be integrated.
-PeriodicResult periodicSteadyState(Circuit& circuit, const PeriodicOptions& options = {});
+PeriodicResult periodicSteadyState(const Circuit& circuit, const PeriodicOptions& options = {});
 
 /// The common period of the circuit's sine sources, s; throws InputError when there is none
 /// or their frequencies are not whole multiples of the lowest.

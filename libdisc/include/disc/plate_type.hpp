@@ -6,6 +6,8 @@
 #include <string>
 #include <vector>
 
+#include "disc/failure.hpp"
+
 namespace disc {
 
 /// Physical parameters of one plate. Per-area values are scaled by the active area.
@@ -61,6 +63,14 @@ struct PlateRatings {
   double ambientReference = 308.15;     ///< K, full rating up to this ambient
 };
 
+/// How heat destroys a plate (docs/plate-model.md, "Failure").
+struct PlateFailure {
+  double destructionTemperature = 376.15;  ///< K, destroyed at or above
+  FailureMode mode = FailureMode::Short;   ///< what the destroyed plate becomes
+  /// What happens at that temperature, in words.
+  std::string mechanism = "the counter-electrode alloy melts";
+};
+
 /// One plate type.
 struct PlateType {
   std::string name;         ///< e.g. "se-25mm-square"
@@ -70,6 +80,7 @@ struct PlateType {
   PlateThermal thermal;
   PlateHistory history;
   PlateRatings ratings;
+  PlateFailure failure;
   /// Source or mark of each value ("field" -> "Metallic Rectifiers, 1957", "(from memory)", ...).
   std::map<std::string, std::string> notes;
 

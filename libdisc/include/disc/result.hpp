@@ -6,6 +6,8 @@
 #include <unordered_map>
 #include <vector>
 
+#include "disc/failure.hpp"
+
 namespace disc {
 
 /// Work counters of one analysis run.
@@ -31,6 +33,11 @@ class Result {
   /// Unit symbol of a signal ("V", "A", "W", "K", ...).
   const std::string& unit(std::string_view signal) const;
   const RunStats& stats() const { return stats_; }
+  /// Runaways detected and bodies destroyed, in order of time. A destruction ends the run: the
+  /// last time point is the step that crossed the destruction temperature.
+  const std::vector<FailureEvent>& failures() const { return failures_; }
+  /// True when a body was destroyed (the run ended there).
+  bool failed() const;
 
   // Filled by the engine.
   void addSignal(std::string name, std::string unit);
@@ -38,6 +45,7 @@ class Result {
   std::vector<double>& timeColumn() { return time_; }
   std::vector<double>& column(std::size_t k) { return columns_[k]; }
   RunStats& stats() { return stats_; }
+  std::vector<FailureEvent>& failureEvents() { return failures_; }
 
  private:
   std::size_t indexOf(std::string_view signal) const;
@@ -47,6 +55,7 @@ class Result {
   std::vector<std::vector<double>> columns_;
   std::unordered_map<std::string, std::size_t> index_;
   RunStats stats_;
+  std::vector<FailureEvent> failures_;
 };
 
 }  // namespace disc

@@ -32,9 +32,12 @@ struct StackFigures {
   double powerForward = 0, powerReverse = 0;  ///< W, whole stack, settled averages
   double powerPerPlate = 0;                   ///< W, average per plate
   double temperatureEnd = 0;                  ///< K, hottest plate at the end of the run
-  double temperatureSteady = 0;               ///< K, steady-state estimate for the hottest plate
-  double temperatureLimit = 0;                ///< K
-  std::vector<double> armShare;               ///< fraction of the stack current per parallel arm
+  /// K, steady-state estimate for the hottest plate, at most the destruction temperature
+  double temperatureSteady = 0;
+  bool noSteadyState = false;         ///< the estimate reached the destruction temperature
+  double temperatureLimit = 0;        ///< K, highest rated plate temperature
+  double destructionTemperature = 0;  ///< K
+  std::vector<double> armShare;       ///< fraction of the stack current per parallel arm
   double formingStart = 1, formingEnd = 1;
   std::vector<Verdict> verdicts;
 };
@@ -59,7 +62,10 @@ struct SupplyReport {
   std::vector<std::string> warnings;
   std::vector<std::string> cautions;
   std::string disclaimer;
-  std::string worst = "ok";  ///< worst verdict level
+  /// Runaways and destructions of the transient; a destruction ended it (window1 is then the
+  /// end of the run, not of the requested transient).
+  std::vector<FailureEvent> failures;
+  std::string worst = "ok";  ///< worst verdict level, "fails" when `failures` is not empty
   RunStats stats;
 };
 

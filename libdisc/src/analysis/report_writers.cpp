@@ -60,6 +60,23 @@ std::vector<double> ticks(double lo, double hi) {
   return t;
 }
 
+nlohmann::json failuresJson(const std::vector<FailureEvent>& events) {
+  nlohmann::json a = nlohmann::json::array();
+  for (const auto& e : events)
+    a.push_back({{"kind", thermalConditionName(e.kind)},
+                 {"body", e.body},
+                 {"device", e.device},
+                 {"plates", e.plates},
+                 {"time_s", e.time},
+                 {"temperature_K", e.temperature},
+                 {"destruction_K", e.destruction},
+                 {"fails_to", failureModeName(e.mode)},
+                 {"mechanism", e.mechanism},
+                 {"cause", e.cause},
+                 {"verdict", e.verdict()}});
+  return a;
+}
+
 }  // namespace
 
 std::string reportText(const SupplyReport& r) {
@@ -72,6 +89,11 @@ std::string reportText(const SupplyReport& r) {
     line(fmt::format("figures over {} settled cycle(s) of {:g} Hz, {:.4f} to {:.4f} s{}", r.cycles,
                      r.frequency, r.window0, r.window1, r.settled ? "" : " (NOT settled)"));
   line("");
+  if (!r.failures.empty()) {
+    line("FAILURE");
+    for (const auto& v : failureVerdicts(r.failures)) s += detail::listItem(v);
+    line("");
+  }
   const auto& o = r.output;
   line("OUTPUT");
   line(fmt::format("  DC voltage            {:10.3f} V", o.mean));
@@ -96,10 +118,14 @@ std::string reportText(const SupplyReport& r) {
     line(fmt::format(
         "  dissipation           {:.3f} W forward + {:.3f} W reverse ({:.3f} W per plate)",
         st.powerForward, st.powerReverse, st.powerPerPlate));
-    line(
-        fmt::format("  hottest plate         {:.1f} degC at end of run, {:.1f} degC steady-state "
-                    "estimate, limit {:.0f} degC",
-                    toC(st.temperatureEnd), toC(st.temperatureSteady), toC(st.temperatureLimit)));
+    line(fmt::format(
+        "  hottest plate         {:.1f} degC at end of run, {}, limit {:.0f} degC, destroyed at "
+        "{:.0f} degC",
+        toC(st.temperatureEnd),
+        st.noSteadyState
+            ? std::string("no steady state below destruction")
+            : fmt::format("{:.1f} degC steady-state estimate", toC(st.temperatureSteady)),
+        toC(st.temperatureLimit), toC(st.destructionTemperature)));
     if (st.arms > 1) {
       std::string shares;
       for (double a : st.armShare) shares += fmt::format(" {:.1f} %", 100 * a);
@@ -168,11 +194,14 @@ std::string reportJson(const SupplyReport& r) {
                            {"temperature_end_K", s.temperatureEnd},
                            {"temperature_steady_estimate_K", s.temperatureSteady},
                            {"temperature_limit_K", s.temperatureLimit},
+                           {"no_steady_state", s.noSteadyState},
+                           {"destruction_temperature_K", s.destructionTemperature},
                            {"arm_share", s.armShare},
                            {"forming_start", s.formingStart},
                            {"forming_end", s.formingEnd},
                            {"verdicts", v}});
   }
+  j["failures"] = failuresJson(r.failures);
   j["overall"] = r.worst;
   j["warnings"] = r.warnings;
   j["cautions"] = r.cautions;
@@ -332,6 +361,7 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
                   "table{border-collapse:collapse;margin:0.5em 0}td,th{border:1px solid "
                   "#bbb;padding:3px 8px;text-align:left}"
                   ".ok{background:#e3f1e3}.marginal{background:#fff3cd}.exceeds{background:#f8d7da}"
+                  ".fails{background:#e6a0a8}"
                   ".caution{border-left:4px solid #b03a2e;padding-left:8px}</style></head><body>\n";
   h += "<h1>" + escapeHtml(r.title.empty() ? "Supply report" : r.title) + "</h1>\n";
   h += fmt::format(
@@ -339,6 +369,11 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
       "Overall: <span class=\"{}\">{}</span>.</p>\n",
       escapeHtml(r.file), toC(r.ambient), r.cycles, r.frequency, r.window0, r.window1,
       r.settled ? "" : " &mdash; not settled", r.worst, r.worst);
+  if (!r.failures.empty()) {
+    h += "<h2>Failure</h2>\n";
+    for (const auto& v : failureVerdicts(r.failures))
+      h += "<p class=\"fails\">" + escapeHtml(v) + "</p>\n";
+  }
   h += "<h2>Cautions</h2>\n";
   for (const auto& c : r.cautions) h += "<p class=\"caution\">" + escapeHtml(c) + "</p>\n";
   h += "<p><em>" + escapeHtml(r.disclaimer) + "</em></p>\n";

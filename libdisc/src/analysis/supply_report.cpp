@@ -41,7 +41,7 @@ Verdict judge(std::string figure, double value, double limit, std::string unit, 
 }
 
 int rank(const std::string& level) {
-  return level == "exceeds" ? 2 : level == "marginal" ? 1 : 0;
+  return level == "fails" ? 3 : level == "exceeds" ? 2 : level == "marginal" ? 1 : 0;
 }
 
 }  // namespace
@@ -213,7 +213,11 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
       const double rise = r[tk].back() - ta;
       hottestRise = std::max(hottestRise, rise);
     }
-    s.temperatureSteady = std::max(ta + s.powerPerPlate * rth, ta + hottestRise);
+    s.destructionTemperature = pt.failure.destructionTemperature;
+    // Past destruction there is no steady state to estimate: the figure stops there.
+    const double steady = std::max(ta + s.powerPerPlate * rth, ta + hottestRise);
+    s.noSteadyState = !(steady < s.destructionTemperature);
+    s.temperatureSteady = s.noSteadyState ? s.destructionTemperature : steady;
     s.temperatureLimit = tmax;
     double armTotal = 0.0;
     for (int m = 1; m <= s.arms; ++m) {
@@ -266,6 +270,13 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   for (const auto& s : rep.stacks)
     for (const auto& v : s.verdicts)
       if (rank(v.level) > rank(rep.worst)) rep.worst = v.level;
+  rep.failures = r.failures();
+  if (!rep.failures.empty()) rep.worst = "fails";
+  if (r.failed())
+    rep.warnings.insert(rep.warnings.begin(),
+                        fmt::format("the run stopped at {:.4g} s, where a plate was destroyed: the "
+                                    "figures cover the run up to there",
+                                    end));
 
   rep.cautions = safetyCautions(selenium);
   rep.disclaimer = simulationDisclaimer();

@@ -388,6 +388,36 @@ void Stack::initialState(double* x) const {
   }
 }
 
+void Stack::heatedBodies(std::vector<HeatedBody>& out) const {
+  for (const Plate& p : plates_) {
+    HeatedBody b;
+    const int first = p.arm * opt_.plates + p.pos + 1;
+    const int last = opt_.mode == StackMode::Lumped ? first + opt_.plates - 1 : first;
+    b.label = last > first ? fmt::format("{}#{}-{}", name_, first, last)
+                           : fmt::format("{}#{}", name_, first);
+    b.device = name_;
+    b.plates = last - first + 1;
+    b.unknown = p.th;
+    b.ambient = ambient_;
+    b.serviceLimit = type_.ratings.maxPlateTemperature;
+    b.destruction = type_.failure.destructionTemperature;
+    b.mode = type_.failure.mode;
+    b.mechanism = type_.failure.mechanism;
+    b.heatCapacity = p.k.cth;
+    b.lossConductance = p.gth;
+    out.push_back(std::move(b));
+  }
+}
+
+HeatState Stack::heatState(int k, const EvalContext& ctx) const {
+  const Plate& p = plates_[static_cast<std::size_t>(k)];
+  const double* x = ctx.x;
+  detail::PlateState st;
+  detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / scale(), x[p.j], x[p.t], x[p.th],
+                        x[p.f], st, &p.cache);
+  return {ambient_ + x[p.th], st.p, st.dPdTh};
+}
+
 int Stack::limitCells() const {
   return static_cast<int>(plates_.size());
 }

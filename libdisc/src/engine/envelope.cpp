@@ -67,7 +67,7 @@ void appendRow(Result& series, double t, const Result& period, bool first) {
 
 }  // namespace
 
-EnvelopeResult warmUp(Circuit& circuit, const EnvelopeOptions& options) {
+EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   options.validate();
   const auto started = std::chrono::steady_clock::now();
   detail::System sys(circuit);

@@ -117,7 +117,7 @@ void check(int flag, const char* what, const IdaData& d) {
 }  // namespace
 
 void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x, Recorder& rec,
-                  RunStats& stats) {
+                  RunStats& stats, FailureMonitor& monitor) {
   const int n = sys.size();
   const std::size_t N = static_cast<std::size_t>(n) + 1;
   IdaData data;
@@ -203,26 +203,30 @@ void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x
                         t, worst >= 0 ? sys.unknownName(worst) : "");
   };
 
-  auto recordNow = [&](double t) {
+  // Records the point at t; true when the failure check stops the run there.
+  auto recordNow = [&](double t, bool accepted) {
     std::copy_n(N_VGetArrayPointer(run.y), n, data.x.begin());
     std::copy_n(N_VGetArrayPointer(run.yp), n, data.xdot.begin());
     EvalContext ctx;
     ctx.x = data.x.data();
     ctx.xdot = data.xdot.data();
     ctx.time = t;
-    if (t >= o.recordFrom) rec.record(ctx);
+    const bool stop = accepted && monitor.accepted(ctx);
+    if (t >= o.recordFrom || stop) rec.record(ctx);
+    return stop;
   };
 
   double t = 0.0;
-  bool first = true;
+  bool first = true, stopped = false;
   for (double tb : breaks) {
+    if (stopped) break;
     if (tb <= t) continue;
     // Consistent start of each segment: algebraic unknowns and derivatives from the rest.
     if (!first) check(IDAReInit(run.mem, t, run.y, run.yp), "IDAReInit", data);
     const int icFlag = IDACalcIC(run.mem, IDA_YA_YDP_INIT, std::min(tb, t + hmax));
     if (icFlag < 0) failure(icFlag, t);
     check(IDAGetConsistentIC(run.mem, run.y, run.yp), "IDAGetConsistentIC", data);
-    if (first && o.recordFrom <= 0.0) recordNow(t);
+    if (first && o.recordFrom <= 0.0) recordNow(t, false);
     first = false;
     check(IDASetStopTime(run.mem, tb), "IDASetStopTime", data);
     while (t < tb) {
@@ -230,11 +234,11 @@ void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x
       const int flag = IDASolve(run.mem, tb, &tret, run.y, run.yp, IDA_ONE_STEP);
       if (flag < 0) failure(flag, t);
       t = tret;
-      recordNow(t);
+      stopped = recordNow(t, true);
       reportProgress(o, t);
-      if (flag == IDA_TSTOP_RETURN) break;
+      if (stopped || flag == IDA_TSTOP_RETURN) break;
     }
-    t = tb;
+    if (!stopped) t = tb;
   }
   std::copy_n(N_VGetArrayPointer(run.y), n, x.begin());
 

@@ -79,7 +79,8 @@ struct History {
 }  // namespace
 
 void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
-                       std::vector<double>& x, Recorder& rec, RunStats& stats) {
+                       std::vector<double>& x, Recorder& rec, RunStats& stats,
+                       FailureMonitor& monitor) {
   const int n = sys.size();
   const std::size_t N = static_cast<std::size_t>(n) + 1;
   const auto abstol = sys.absTolerances(o.tol);
@@ -411,6 +412,10 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     if (t >= o.recordFrom) rec.record(ctx);
     ctx.time = t;
     reportProgress(o, t);
+    if (monitor.accepted(ctx)) {
+      if (t < o.recordFrom) rec.record(ctx);  // the step that destroyed a body is always kept
+      break;
+    }
 
     // errNorm^-expo once per step: the predictive rule below reuses the last accepted one.
     const double errFactor = errNorm > 0.0 ? std::pow(errNorm, -expo) : 0.0;

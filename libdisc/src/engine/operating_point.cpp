@@ -6,6 +6,7 @@
 #include <cmath>
 
 #include "disc/error.hpp"
+#include "failure_monitor.hpp"
 #include "newton.hpp"
 #include "recorder.hpp"
 
@@ -117,7 +118,10 @@ Result operatingPoint(const Circuit& circuit, const OperatingPointOptions& optio
   ctx.x = x.data();
   ctx.xdot = zero.data();
   ctx.dc = true;
+  detail::FailureMonitor monitor(sys);
+  if (monitor.start(ctx)) monitor.holdDestroyed(x);
   recorder.record(ctx);
+  result.failureEvents() = monitor.events();
   stats.acceptedSteps = 1;
   stats.wallSeconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();

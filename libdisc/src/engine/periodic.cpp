@@ -542,7 +542,7 @@ double warmStart(System& sys, LinearSolver& ls, const PeriodicOptions& o, double
 
 }  // namespace detail
 
-PeriodicResult periodicSteadyState(Circuit& circuit, const PeriodicOptions& options) {
+PeriodicResult periodicSteadyState(const Circuit& circuit, const PeriodicOptions& options) {
   options.validate();
   const auto started = std::chrono::steady_clock::now();
   detail::System sys(circuit);

@@ -2,10 +2,16 @@
 #include "disc/result.hpp"
 
 #include <fmt/format.h>
+#include <algorithm>
 
 #include "disc/error.hpp"
 
 namespace disc {
+
+bool Result::failed() const {
+  return std::any_of(failures_.begin(), failures_.end(),
+                     [](const FailureEvent& e) { return e.kind == ThermalCondition::Destroyed; });
+}
 
 bool Result::has(std::string_view signal) const {
   return index_.count(std::string(signal)) > 0;

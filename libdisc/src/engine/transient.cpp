@@ -77,10 +77,21 @@ Result transient(const Circuit& circuit, const TransientOptions& options) {
     op.tol = options.tol;
     detail::solveOperatingPoint(sys, ls, x, op, stats);
   }
-  if (options.method == Method::Ida)
-    detail::integrateIda(sys, options, x, recorder, stats);
-  else
-    detail::integrateStepping(sys, ls, options, x, recorder, stats);
+  detail::FailureMonitor monitor(sys);
+  EvalContext start;
+  start.x = x.data();
+  if (monitor.start(start)) {
+    // No physical starting state: the run ends where it begins.
+    monitor.holdDestroyed(x);
+    std::vector<double> zero(x.size(), 0.0);
+    start.xdot = zero.data();
+    recorder.record(start);
+  } else if (options.method == Method::Ida) {
+    detail::integrateIda(sys, options, x, recorder, stats, monitor);
+  } else {
+    detail::integrateStepping(sys, ls, options, x, recorder, stats, monitor);
+  }
+  result.failureEvents() = monitor.events();
   stats.wallSeconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
   return result;

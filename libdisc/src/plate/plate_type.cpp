@@ -107,6 +107,10 @@ const std::vector<Field>& fields() {
       {"ratings", "ambient_reference_C",
        [](PlateType& t) -> double& { return t.ratings.ambientReference; }, -50.0, 200.0, true,
        "degC"},
+      // Below the plate laws' 700 K clamp (plate_model.hpp), so a run always stops first.
+      {"failure", "destruction_temp_C",
+       [](PlateType& t) -> double& { return t.failure.destructionTemperature; }, 0.0, 400.0, true,
+       "degC"},
   };
   return table;
 }
@@ -141,11 +145,20 @@ PlateType typeFromJson(const json& j, const std::string& origin) {
   t.name = j["name"].get<std::string>();
   t.material = j.value("material", std::string("selenium"));
   t.description = j.value("description", std::string());
-  for (const char* group : {"physics", "thermal", "history", "ratings"}) {
+  for (const char* group : {"physics", "thermal", "history", "ratings", "failure"}) {
     if (!j.contains(group)) continue;
     if (!j[group].is_object())
       throw InputError(where(fmt::format("\"{}\" must be an object", group)));
     for (const auto& [key, value] : j[group].items()) {
+      if (std::string(group) == "failure" && (key == "fails_to" || key == "mechanism")) {
+        if (!value.is_string())
+          throw InputError(where(fmt::format("\"{}\" must be a string", key)));
+        if (key == "fails_to")
+          t.failure.mode = parseFailureMode(value.get<std::string>());
+        else
+          t.failure.mechanism = value.get<std::string>();
+        continue;
+      }
       const Field* f = fieldOf(key);
       if (!f || std::string(f->group) != group)
         throw InputError(where(fmt::format("unknown parameter \"{}\" in \"{}\"{}", key, group,
@@ -174,6 +187,8 @@ json typeToJson(const PlateType& t) {
   j["description"] = t.description;
   PlateType copy = t;
   for (const auto& f : fields()) j[f.group][f.key] = toJsonUnit(f, f.ref(copy));
+  j["failure"]["fails_to"] = failureModeName(t.failure.mode);
+  j["failure"]["mechanism"] = t.failure.mechanism;
   if (!t.notes.empty()) j["notes"] = t.notes;
   return j;
 }
@@ -193,6 +208,11 @@ void PlateType::validate() const {
   if (ratings.peakReverse < ratings.rmsReverseResistive)
     throw InputError(
         fmt::format("plate type '{}': peak reverse rating below its rms rating", name));
+  if (failure.destructionTemperature <= ratings.maxPlateTemperature)
+    throw InputError(fmt::format(
+        "plate type '{}': destruction temperature {:.1f} degC is not above the highest rated "
+        "plate temperature {:.1f} degC; set failure.destruction_temp_C above max_plate_temp_C",
+        name, failure.destructionTemperature - 273.15, ratings.maxPlateTemperature - 273.15));
 }
 
 void PlateType::set(const std::string& key, double value) {

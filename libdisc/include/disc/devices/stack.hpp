@@ -71,6 +71,8 @@ class Stack : public DeviceBase<Stack> {
   /// Barrier (Mott-Schottky), trap, heat and forming "charges" only: no exponentials.
   void evaluateCharges(const EvalContext& ctx, Stamp& s) const override;
   void initialState(double* x) const override;
+  void heatedBodies(std::vector<HeatedBody>& out) const override;
+  HeatState heatState(int k, const EvalContext& ctx) const override;
   int limitCells() const override;
   void junctionPairs(std::vector<JunctionPair>& out) const override;
   std::vector<std::string> probes() const override;
