@@ -1,4 +1,5 @@
-// SI prefixes (SI Brochure, 9th ed., table 7) and unit symbols.
+// SI prefixes (SI Brochure, 9th ed., table 7), unit symbols, and the minute and hour (table 8:
+// non-SI units accepted for use with the SI).
 #include "units.hpp"
 
 #include <fmt/format.h>
@@ -15,6 +16,7 @@ struct Unit {
   const char* symbol;
   Dim dim;
   bool prefixable;
+  double factor = 1.0;  // to the SI unit
 };
 
 const std::vector<Unit>& units() {
@@ -27,6 +29,8 @@ const std::vector<Unit>& units() {
       {"H", Dim::Inductance, true},
       {"Hz", Dim::Frequency, true},
       {"s", Dim::Time, true},
+      {"min", Dim::Time, false, 60.0},
+      {"h", Dim::Time, false, 3600.0},
       {"W", Dim::Power, true},
       {"J", Dim::Energy, true},
       {"K", Dim::Temperature, false},
@@ -159,7 +163,7 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
       if (scale == 1.0 && !unit) {
         error = fmt::format(
             "'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
-            "units V A ohm F H Hz s W J K degC)",
+            "units V A ohm F H Hz s min h W J K degC)",
             text, suffix);
         return std::nullopt;
       }
@@ -170,7 +174,7 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
                         dimName(dim), dim == Dim::None ? "" : fmt::format(" ({})", dimUnit(dim)));
     return std::nullopt;
   }
-  value *= scale;
+  value *= scale * (unit ? unit->factor : 1.0);
   if (unit && (std::string(unit->symbol) == "degC" || std::string(unit->symbol) == "\xC2\xB0"
                                                                                    "C"))
     value += 273.15;
