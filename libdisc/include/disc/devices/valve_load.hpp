@@ -13,9 +13,9 @@ struct ValveLoadParams {
   /// 32, 492, 1911; I. Langmuir, Phys. Rev. 2, 450, 1913), which valves under space-charge
   /// limitation follow; 1 makes the warm load a resistor.
   double exponent = 1.5;
-  /// s, time constant of the heaters' and cathodes' warm-up: seconds to tens of seconds for
-  /// indirectly heated cathodes (common practice).
-  double warmUp = 15.0;
+  /// s, time constant of the heaters' and cathodes' warm-up: indirectly heated cathodes draw
+  /// their full current after 10-30 s (common practice), about three time constants.
+  double warmUp = 8.0;
   double on = 0.0;      ///< s, heaters switched on (slow clock)
   double warmth = 0.0;  ///< warm-up state at the start: 0 cold, 1 fully warm
   void validate() const;
