@@ -9,6 +9,15 @@ using namespace disc;
 
 namespace {
 
+void requireJacobianAtX(Circuit& c, const std::vector<double>& x, double t) {
+  const JacobianCheck j = checkJacobian(c, x, t);
+  INFO("worst entry " << j.worst);
+  // Finite differences carry rounding near 1e-7 relative; a wrong sign or factor shows as O(1).
+  CHECK(j.maxErrorG < 1e-5);
+  CHECK(j.maxErrorC < 1e-5);
+  CHECK(j.maxErrorChargesOnly < 1e-14);
+}
+
 void requireJacobian(Circuit& c, double spread, double offset = 0.0, double t = 1e-3) {
   std::mt19937 rng(42);
   std::uniform_real_distribution<double> u(-spread, spread);
@@ -16,12 +25,7 @@ void requireJacobian(Circuit& c, double spread, double offset = 0.0, double t = 
   for (int trial = 0; trial < 5; ++trial) {
     std::vector<double> x(names.size());
     for (auto& v : x) v = offset + u(rng);
-    const JacobianCheck j = checkJacobian(c, x, t);
-    INFO("worst entry " << j.worst);
-    // Finite differences carry rounding near 1e-7 relative; a wrong sign or factor shows as O(1).
-    CHECK(j.maxErrorG < 1e-5);
-    CHECK(j.maxErrorC < 1e-5);
-    CHECK(j.maxErrorChargesOnly < 1e-14);
+    requireJacobianAtX(c, x, t);
   }
 }
 
@@ -88,11 +92,7 @@ void requireJacobianAt(Circuit& c, const std::map<std::string, std::pair<double,
       const auto [centre, spread] = it == around.end() ? std::pair{0.0, 0.01} : it->second;
       x[k] = centre + spread * u(rng);
     }
-    const JacobianCheck j = checkJacobian(c, x, t);
-    INFO("worst entry " << j.worst);
-    CHECK(j.maxErrorG < 1e-5);
-    CHECK(j.maxErrorC < 1e-5);
-    CHECK(j.maxErrorChargesOnly < 1e-14);
+    requireJacobianAtX(c, x, t);
   }
 }
 
