@@ -177,5 +177,26 @@ TEST_CASE("Every example netlist runs with either integrator at two tolerances",
       }
     }
   }
-  CHECK(runs >= 28);  // the seven bundled supplies, four ways each
+  CHECK(runs >= 32);  // the eight bundled supplies, four ways each
+}
+
+TEST_CASE("Bring-up through a series lamp: variac steps, warming valves, a dim lamp",
+          "[netlist][examples]") {
+  const Run r = runExample("bring-up-series-lamp-variac.disc");
+  const auto& t = r.result().time();
+  const auto& res = r.result();
+  // The line follows the variac's schedule (rms over each step; the 0.5 ohm source drops
+  // well under 1 %).
+  for (auto [t0, t1, rms] :
+       {std::tuple{1.0, 3.0, 115.0}, std::tuple{5.0, 7.0, 175.0}, std::tuple{10.0, 12.0, 230.0}})
+    CHECK(measure::rms(t, res["v:line"], t0, t1) == Approx(rms).epsilon(0.01));
+  // The cathodes' warm-up from cold: 1 - exp(-t / 4 s) at the end (its closed form).
+  CHECK(res["warm:VALVES"].back() == Approx(1.0 - std::exp(-12.0 / 4.0)).epsilon(1e-3));
+  // At a steady line the warming valves pull the HT down from the crest they left it at.
+  const double surge = measure::maximum(t, res["v:ht"], 0.0, 1.0);
+  CHECK(surge > measure::maximum(t, res["v:ht"], 2.5, 3.0) + 5.0);
+  // A healthy set leaves the lamp dim: well under its rated power and temperature (common
+  // practice: a lamp glowing bright means a fault is drawing current).
+  CHECK(measure::mean(t, res["p:LAMP"], 11.0, 12.0) < 0.3 * 60.0);
+  CHECK(res["temp:LAMP"].back() < 2000.0);
 }

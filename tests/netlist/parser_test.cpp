@@ -1,4 +1,5 @@
 // The netlist parser: every error class reported with its location and an actionable message.
+#include <fmt/format.h>
 #include <catch2/catch.hpp>
 #include <filesystem>
 
@@ -215,4 +216,48 @@ TEST_CASE("A diode's nominal temperature is a parameter, 300.15 K unless given",
   CHECK(static_cast<const Diode&>(*nl.circuit.find("D2")).params().referenceTemperature ==
         Approx(300.0));
   CHECK(nl.circuit.find("D2")->parameter("nominal-temperature") == Approx(300.0));
+TEST_CASE("Lamps, valve loads and level schedules in the language", "[netlist][parser]") {
+  const Netlist nl = parseNetlist(
+      "voltage MAINS line gnd mains rms=230V frequency=50Hz \\\n"
+      "    schedule=\"0 60V, 2min 60V, 3min 115V, 1h 230V\"\n"
+      "lamp LAMP line a rated-power=60W rated-voltage=230V time-constant=40ms\n"
+      "resistor R1 a ht 100ohm\n"
+      "valve-load VALVES ht gnd rated-current=60mA rated-voltage=250V warm-up=12s on=1s\n");
+  const auto& src = static_cast<const VoltageSource&>(*nl.circuit.find("MAINS"));
+  // Levels in volts rms of a source given by rms=; min and h are minutes and hours.
+  CHECK(src.waveform().level(60.0) == Approx(60.0 / 230.0));
+  CHECK(src.waveform().level(150.0) == Approx((60.0 + 55.0 / 2.0) / 230.0));
+  CHECK(src.waveform().level(3600.0) == Approx(1.0));
+  const auto& lamp = static_cast<const Lamp&>(*nl.circuit.find("LAMP"));
+  CHECK(lamp.params().ratedPower == 60.0);
+  CHECK(lamp.params().timeConstant == Approx(0.04));
+  const auto& valves = static_cast<const ValveLoad&>(*nl.circuit.find("VALVES"));
+  CHECK(valves.params().ratedCurrent == Approx(0.06));
+  CHECK(valves.params().warmUp == 12.0);
+  CHECK(valves.params().on == 1.0);
+  // Every name of the devices' parameter tables is a parameter of their statements.
+  for (const Device* d : {static_cast<const Device*>(&lamp), static_cast<const Device*>(&valves)}) {
+    std::string text =
+        fmt::format("voltage V1 a gnd dc=100V\n{} X a gnd", d == &lamp ? "lamp" : "valve-load");
+    for (const auto& name : d->parameterNames())
+      text += fmt::format(" {}={}", name, d->parameter(name));
+    INFO(text);
+    const Netlist one = parseNetlist(text + "\n");
+    for (const auto& name : d->parameterNames())
+      CHECK(one.circuit.find("X")->parameter(name) == Approx(d->parameter(name)));
+  }
+}
+
+TEST_CASE("Lamp, valve load and schedule errors are located and explained", "[netlist][parser]") {
+  expectError(kOk + "valve-load VL a gnd rated-current=60mA rated-voltage=250V exponent=0.5\n", 3,
+              59, "exponent must lie in 1-2.5");
+  expectError(kOk + "lamp L1 a gnd rated-voltage=230V\n", 3, 6, "needs rated-power=");
+  expectError(kOk + "lamp L1 a gnd rated-power=60W rated-voltage=230V filament-temp=4000K\n", 3, 50,
+              "melting point");
+  expectError("voltage V1 a gnd points=\"0 0, 1ms 5V\" schedule=\"0 1V\"\nresistor R1 a gnd 1k\n",
+              1, 39, "not points=");
+  expectError("voltage V1 a gnd dc=10V schedule=\"0 1V, 1min -2V\"\nresistor R1 a gnd 1k\n", 1, 25,
+              "negative factor");
+  expectError("voltage V1 a gnd dc=10V schedule=\"0 1V, 2mins 2V\"\nresistor R1 a gnd 1k\n", 1, 25,
+              "neither an SI prefix nor a unit");
 }

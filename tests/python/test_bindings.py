@@ -261,3 +261,21 @@ def test_a_runaway_plate_ends_the_run_with_its_failure_events():
     assert destroyed["verdict"].startswith("plate SR1#1 would fail after ")
     assert r.time[-1] < 600
     assert np.all(r["temp:SR1"] < destroyed["destruction_K"] + 15)
+
+def test_lamp_valve_load_and_schedule_from_code():
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", dc=230, schedule=[(0, 0), ("10ms", 115), ("20ms", 230)])
+    lamp = c.lamp("L1", "a", "gnd", rated_power=60, rated_voltage="230V")
+    valves = c.valve_load("VL", "a", "gnd", rated_current="60mA", rated_voltage=250,
+                          warm_up="20ms")
+    assert lamp.time_constant == pytest.approx(0.05)
+    assert "filament_temp" in lamp.parameters and "warm_up" in valves.parameters
+    r = c.run_transient(stop=0.5, record=["v:a", "p:L1", "warm:VL"], reltol=1e-5)
+    # The schedule's corner is a time point, its ramp linear (half way at 5 ms: 57.5 V).
+    t = r.time
+    assert 0.01 in t
+    assert np.interp(0.005, t, r["v:a"]) == pytest.approx(57.5, rel=1e-6)
+    # At its rated voltage the lamp settles at its rated power (the bulb's rating).
+    assert r["p:L1"][-1] == pytest.approx(60.0, rel=1e-3)
+    # The warm-up from cold: 1 - exp(-t / 20 ms) (closed form of the first-order lag).
+    assert np.interp(0.1, t, r["warm:VL"]) == pytest.approx(1.0 - np.exp(-0.1 / 0.02), rel=1e-4)

@@ -16,6 +16,13 @@ def _text(value):
     return str(value)
 
 
+def _pairs(pairs):
+    """(time, value) pairs as the language's "t v, t v" list; strings pass unchanged."""
+    if pairs is None or isinstance(pairs, str):
+        return pairs
+    return ", ".join(f"{_text(t)} {_text(v)}" for t, v in pairs)
+
+
 def _params(**kwargs):
     """Keyword arguments to netlist parameters: None is left out, '_' becomes '-'."""
     return [(k.replace("_", "-"), _text(v)) for k, v in kwargs.items() if v is not None]
@@ -153,28 +160,30 @@ class Circuit:
                          leakage1=leakage1, leakage2=leakage2, magnetizing=magnetizing)
 
     def voltage(self, name, p, n, dc=None, amplitude=None, rms=None, frequency=None, phase=None,
-                offset=None, points=None, on=None, off=None, resistance=None, inductance=None):
+                offset=None, points=None, on=None, off=None, resistance=None, inductance=None,
+                schedule=None):
         """Voltage source: dc=V, or a sine (amplitude= or rms=, frequency= Hz, phase= deg,
-        offset=), or points=[(t, v), ...]; optional on=/off= times and source impedance."""
-        if points is not None and not isinstance(points, str):
-            points = ", ".join(f"{_text(t)} {_text(v)}" for t, v in points)
+        offset=), or points=[(t, v), ...]; optional on=/off= times and source impedance.
+        schedule=[(t, level), ...] turns a dc=, amplitude= or rms= source up like a variac: the
+        level (in the sense given: rms, peak or dc) at each time, linear in between."""
         return self._add("voltage", name, (p, n), dc=dc, amplitude=amplitude, rms=rms,
-                         frequency=frequency, phase=phase, offset=offset, points=points, on=on,
-                         off=off, resistance=resistance, inductance=inductance)
+                         frequency=frequency, phase=phase, offset=offset, points=_pairs(points),
+                         on=on, off=off, resistance=resistance, inductance=inductance,
+                         schedule=_pairs(schedule))
 
-    def mains(self, name, p, n, rms, frequency, resistance=None, inductance=None, on=None):
-        """Mains supply: rms volts at frequency Hz behind its source impedance."""
+    def mains(self, name, p, n, rms, frequency, resistance=None, inductance=None, on=None,
+              schedule=None):
+        """Mains supply: rms volts at frequency Hz behind its source impedance; schedule=
+        [(t, rms), ...] for a variac between it and the set."""
         return self.voltage(name, p, n, rms=rms, frequency=frequency, resistance=resistance,
-                            inductance=inductance, on=on)
+                            inductance=inductance, on=on, schedule=schedule)
 
     def current(self, name, p, n, dc=None, amplitude=None, rms=None, frequency=None, phase=None,
-                offset=None, points=None, on=None, off=None):
+                offset=None, points=None, on=None, off=None, schedule=None):
         """Current source from p through the source to n; same waveforms as voltage()."""
-        if points is not None and not isinstance(points, str):
-            points = ", ".join(f"{_text(t)} {_text(v)}" for t, v in points)
         return self._add("current", name, (p, n), dc=dc, amplitude=amplitude, rms=rms,
-                         frequency=frequency, phase=phase, offset=offset, points=points, on=on,
-                         off=off)
+                         frequency=frequency, phase=phase, offset=offset, points=_pairs(points),
+                         on=on, off=off, schedule=_pairs(schedule))
 
     def battery(self, name, p, n, emf, resistance=None):
         """Battery: EMF in V behind its internal resistance in ohm."""
@@ -209,6 +218,24 @@ class Circuit:
                          parallel=parallel, mode=mode, spread=spread, seed=seed, forming=forming,
                          stored_years=stored_years, hours=hours, age_temp=age_temp,
                          cooling=cooling, **spreads)
+
+    def lamp(self, name, a, b, rated_power, rated_voltage, filament_temp=None, exponent=None,
+             time_constant=None, conduction=None):
+        """Tungsten filament lamp (a series current limiter) rated rated_power W at
+        rated_voltage V; filament_temp (K at the rating), exponent (R ~ T^exponent),
+        time_constant (s) and conduction (fraction not radiated) as in docs/netlist.md."""
+        return self._add("lamp", name, (a, b), rated_power=rated_power,
+                         rated_voltage=rated_voltage, filament_temp=filament_temp,
+                         exponent=exponent, time_constant=time_constant, conduction=conduction)
+
+    def valve_load(self, name, plus, minus, rated_current, rated_voltage, exponent=None,
+                   warm_up=None, on=None, warmth=None):
+        """HT load of warming valves: rated_current A at rated_voltage V when warm, i ~
+        v^exponent (1.5: space-charge law); warm_up time constant (s), heaters on at on (s),
+        starting warm-up state warmth (0 cold to 1 warm)."""
+        return self._add("valve-load", name, (plus, minus), rated_current=rated_current,
+                         rated_voltage=rated_voltage, exponent=exponent, warm_up=warm_up, on=on,
+                         warmth=warmth)
 
     def switch(self, name, a, b, close=None, open=None, ron=None, roff=None):
         """Switch closing and/or opening at the given times (s)."""

@@ -1,5 +1,6 @@
 // Time functions of independent sources: DC, sine and piecewise-linear, each optionally gated
-// on (and off) at given times, as when a switch closes on a supply.
+// on (and off) at given times, as when a switch closes on a supply, and optionally scaled by a
+// level schedule on the slow clock, as when a variac is turned up over minutes.
 #pragma once
 
 #include <limits>
@@ -22,8 +23,18 @@ class Waveform {
 
   /// Zero before `on` and from `off` on: a supply switched on at `on`.
   Waveform& gate(double on, double off = std::numeric_limits<double>::infinity());
+  /// Scales the whole waveform (offset included, as a variac does) by a factor linear between
+  /// (time, factor) points and constant outside; times strictly increasing, factors >= 0. The
+  /// factor is read on the slow clock, so the periodic steady state holds it over a period.
+  Waveform& schedule(std::vector<std::pair<double, double>> factors);
+  bool scheduled() const { return !schedule_.empty(); }
+  const std::vector<std::pair<double, double>>& levelSchedule() const { return schedule_; }
+  /// The schedule's factor at slow time `slow` (1 without a schedule).
+  double level(double slow) const;
 
-  double value(double t) const;
+  double value(double t) const { return value(t, t); }
+  /// The value at time t with the schedule read at slow time `slow`.
+  double value(double t, double slow) const;
   /// Corners and jumps in (from, to].
   void breakpoints(double from, double to, std::vector<double>& out) const;
   /// Largest step that resolves the waveform (a fraction of a sine period), or +inf.
@@ -41,6 +52,7 @@ class Waveform {
   double frequency_ = 0.0;
   double phase_ = 0.0;
   std::vector<std::pair<double, double>> points_;
+  std::vector<std::pair<double, double>> schedule_;  // (s, factor)
   double on_ = -std::numeric_limits<double>::infinity();
   double off_ = std::numeric_limits<double>::infinity();
 };

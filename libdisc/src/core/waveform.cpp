@@ -35,16 +35,37 @@ Waveform Waveform::sineRms(double rms, double frequency, double phase, double of
   return sine(std::numbers::sqrt2 * rms, frequency, phase, offset);
 }
 
-Waveform Waveform::points(std::vector<std::pair<double, double>> pts) {
-  if (pts.empty()) throw InputError("a points waveform needs at least one (time, value) pair");
+namespace {
+
+/// Checks (time, value) pairs of a piecewise-linear function; `what` names it in messages.
+void checkPairs(const std::vector<std::pair<double, double>>& pts, const char* what) {
+  if (pts.empty())
+    throw InputError(fmt::format("a {} needs at least one (time, value) pair", what));
   for (std::size_t k = 0; k < pts.size(); ++k) {
     if (!std::isfinite(pts[k].first) || !std::isfinite(pts[k].second))
-      throw InputError(fmt::format("points waveform: pair {} is not finite", k + 1));
+      throw InputError(fmt::format("{}: pair {} is not finite", what, k + 1));
     if (k > 0 && !(pts[k].first > pts[k - 1].first))
-      throw InputError(fmt::format(
-          "points waveform: times must increase, but pair {} has t = {} s after t = {} s", k + 1,
-          pts[k].first, pts[k - 1].first));
+      throw InputError(
+          fmt::format("{}: times must increase, but pair {} has t = {} s after t = {} s", what,
+                      k + 1, pts[k].first, pts[k - 1].first));
   }
+}
+
+/// Linear interpolation between pairs, constant outside.
+double interpolate(const std::vector<std::pair<double, double>>& pts, double t) {
+  if (t <= pts.front().first) return pts.front().second;
+  if (t >= pts.back().first) return pts.back().second;
+  std::size_t hi = 1;
+  while (pts[hi].first < t) ++hi;
+  const auto& [t0, v0] = pts[hi - 1];
+  const auto& [t1, v1] = pts[hi];
+  return v0 + (v1 - v0) * (t - t0) / (t1 - t0);
+}
+
+}  // namespace
+
+Waveform Waveform::points(std::vector<std::pair<double, double>> pts) {
+  checkPairs(pts, "points waveform");
   Waveform w;
   w.shape_ = Shape::Points;
   w.points_ = std::move(pts);
@@ -58,28 +79,38 @@ Waveform& Waveform::gate(double on, double off) {
   return *this;
 }
 
-double Waveform::value(double t) const {
+Waveform& Waveform::schedule(std::vector<std::pair<double, double>> factors) {
+  checkPairs(factors, "level schedule");
+  for (std::size_t k = 0; k < factors.size(); ++k)
+    if (factors[k].second < 0.0)
+      throw InputError(fmt::format("level schedule: pair {} has a negative factor {}", k + 1,
+                                   factors[k].second));
+  schedule_ = std::move(factors);
+  return *this;
+}
+
+double Waveform::level(double slow) const {
+  return schedule_.empty() ? 1.0 : interpolate(schedule_, slow);
+}
+
+double Waveform::value(double t, double slow) const {
   if (t < on_ || t >= off_) return 0.0;
+  double v = 0.0;
   switch (shape_) {
     case Shape::Dc:
-      return offset_;
+      v = offset_;
+      break;
     case Shape::Sine: {
       // A gated sine starts at its own zero phase when switched on.
       const double t0 = std::isfinite(on_) ? on_ : 0.0;
-      return offset_ +
-             amplitude_ * std::sin(2.0 * std::numbers::pi * frequency_ * (t - t0) + phase_);
+      v = offset_ + amplitude_ * std::sin(2.0 * std::numbers::pi * frequency_ * (t - t0) + phase_);
+      break;
     }
-    case Shape::Points: {
-      if (t <= points_.front().first) return points_.front().second;
-      if (t >= points_.back().first) return points_.back().second;
-      std::size_t hi = 1;
-      while (points_[hi].first < t) ++hi;
-      const auto& [t0, v0] = points_[hi - 1];
-      const auto& [t1, v1] = points_[hi];
-      return v0 + (v1 - v0) * (t - t0) / (t1 - t0);
-    }
+    case Shape::Points:
+      v = interpolate(points_, t);
+      break;
   }
-  return 0.0;
+  return schedule_.empty() ? v : v * level(slow);
 }
 
 void Waveform::breakpoints(double from, double to, std::vector<double>& out) const {
@@ -90,6 +121,8 @@ void Waveform::breakpoints(double from, double to, std::vector<double>& out) con
   add(off_);
   if (shape_ == Shape::Points)
     for (const auto& p : points_) add(p.first);
+  // The schedule's corners on the transient's clock (the slow clock follows it there).
+  for (const auto& p : schedule_) add(p.first);
 }
 
 double Waveform::naturalStep() const {

@@ -78,6 +78,7 @@ std::string Device::probeUnit(int k) const {
   if (p == "energy") return "J";
   if (p == "v" || p == "vj") return "V";
   if (p == "temp") return "K";
+  if (p == "r") return "ohm";
   return "";
 }
 

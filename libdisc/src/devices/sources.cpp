@@ -42,9 +42,11 @@ void VoltageSource::evaluate(const EvalContext& ctx, Stamp& s) const {
   s.i[p_] -= i;
   s.i[n_] += i;
   // v_p - v_n = V(t) - R i - L di/dt.
-  if (ctx.time != memoTime_) {
-    memoValue_ = w_.value(ctx.time);
+  const double slow = ctx.slowClock();
+  if (ctx.time != memoTime_ || slow != memoSlow_) {
+    memoValue_ = w_.value(ctx.time, slow);
     memoTime_ = ctx.time;
+    memoSlow_ = slow;
   }
   s.i[br_] += ctx.x[p_] - ctx.x[n_] - ctx.sourceScale * memoValue_ + r_ * i;
   s.q[br_] += l_ * i;
@@ -82,13 +84,13 @@ void CurrentSource::bind(const Binding& b) {
 }
 
 void CurrentSource::evaluate(const EvalContext& ctx, Stamp& s) const {
-  const double i = ctx.sourceScale * w_.value(ctx.time);
+  const double i = ctx.sourceScale * w_.value(ctx.time, ctx.slowClock());
   s.i[p_] += i;
   s.i[n_] -= i;
 }
 
 double CurrentSource::probe(int k, const EvalContext& ctx) const {
-  const double i = ctx.sourceScale * w_.value(ctx.time);
+  const double i = ctx.sourceScale * w_.value(ctx.time, ctx.slowClock());
   return k == 0 ? i : (ctx.x[p_] - ctx.x[n_]) * i;
 }
 

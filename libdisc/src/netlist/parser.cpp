@@ -11,11 +11,13 @@
 #include "disc/devices/capacitor.hpp"
 #include "disc/devices/diode.hpp"
 #include "disc/devices/inductor.hpp"
+#include "disc/devices/lamp.hpp"
 #include "disc/devices/resistor.hpp"
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/devices/switch.hpp"
 #include "disc/devices/transformer.hpp"
+#include "disc/devices/valve_load.hpp"
 #include "disc/netlist.hpp"
 #include "lexer.hpp"
 #include "units.hpp"
@@ -57,6 +59,7 @@ const std::vector<ParamSpec> kWaveParams = {{"dc", Dim::Voltage},
                                             {"points", kWord},
                                             {"on", Dim::Time},
                                             {"off", Dim::Time},
+                                            {"schedule", kWord},
                                             {"resistance", Dim::Resistance},
                                             {"inductance", Dim::Inductance}};
 
@@ -112,6 +115,8 @@ const std::vector<KindSpec>& kinds() {
         {"age-temp", Dim::Temperature},
         {"cooling", Dim::None}},
        {}},
+      kindFromTable("lamp", 2, Lamp("", 0, 1)),
+      kindFromTable("valve-load", 2, ValveLoad("", 0, 1)),
       {"switch",
        2,
        nullptr,
@@ -163,42 +168,48 @@ int wholeNumber(const Params& p, const std::string& key, int fallback, int lo) {
   return static_cast<int>(v);
 }
 
+/// A list of "time value" pairs, comma separated, as in points= and schedule=.
+std::vector<std::pair<double, double>> pairsOf(const Params& p, const std::string& key, Dim dim) {
+  std::vector<std::pair<double, double>> pts;
+  const std::string& list = p.word.at(key);
+  std::size_t start = 0;
+  while (start <= list.size()) {
+    const std::size_t comma = list.find(',', start);
+    std::string pair =
+        list.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    std::vector<std::string> parts;
+    std::size_t a = 0;
+    while (a < pair.size()) {
+      while (a < pair.size() && pair[a] == ' ') ++a;
+      std::size_t b = a;
+      while (b < pair.size() && pair[b] != ' ') ++b;
+      if (b > a) parts.push_back(pair.substr(a, b - a));
+      a = b;
+    }
+    if (parts.size() != 2)
+      throw ParamError{key, fmt::format("each point is 'time value', got '{}'", pair)};
+    std::string err;
+    const auto t = parseQuantity(parts[0], Dim::Time, err);
+    if (!t) throw ParamError{key, err};
+    const auto v = parseQuantity(parts[1], dim, err);
+    if (!v) throw ParamError{key, err};
+    pts.emplace_back(*t, *v);
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  return pts;
+}
+
 Waveform waveformOf(const Params& p, const std::string& shape, bool current) {
   const char* unit = current ? "A" : "V";
+  const Dim dim = current ? Dim::Current : Dim::Voltage;
   Waveform w = Waveform::dc(0.0);
   const bool sine = shape == "sine" || shape == "mains" || p.has("amplitude") || p.has("rms");
   if (shape == "points" || p.word.count("points")) {
     if (!p.word.count("points"))
       throw ParamError{"points", "a points waveform needs points=\"t1 v1, t2 v2, ...\""};
-    std::vector<std::pair<double, double>> pts;
-    std::string list = p.word.at("points");
-    std::size_t start = 0;
-    while (start <= list.size()) {
-      const std::size_t comma = list.find(',', start);
-      std::string pair =
-          list.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
-      std::vector<std::string> parts;
-      std::size_t a = 0;
-      while (a < pair.size()) {
-        while (a < pair.size() && pair[a] == ' ') ++a;
-        std::size_t b = a;
-        while (b < pair.size() && pair[b] != ' ') ++b;
-        if (b > a) parts.push_back(pair.substr(a, b - a));
-        a = b;
-      }
-      if (parts.size() != 2)
-        throw ParamError{"points", fmt::format("each point is 'time value', got '{}'", pair)};
-      std::string err;
-      const auto t = parseQuantity(parts[0], Dim::Time, err);
-      if (!t) throw ParamError{"points", err};
-      const auto v = parseQuantity(parts[1], current ? Dim::Current : Dim::Voltage, err);
-      if (!v) throw ParamError{"points", err};
-      pts.emplace_back(*t, *v);
-      if (comma == std::string::npos) break;
-      start = comma + 1;
-    }
     try {
-      w = Waveform::points(std::move(pts));
+      w = Waveform::points(pairsOf(p, "points", dim));
     } catch (const InputError& e) {
       throw ParamError{"points", e.what()};
     }
@@ -224,6 +235,23 @@ Waveform waveformOf(const Params& p, const std::string& shape, bool current) {
     const double on = p.get("on", 0.0), off = p.get("off", std::numeric_limits<double>::infinity());
     if (!(off > on)) throw ParamError{"off", "off= must come after on="};
     w.gate(on, off);
+  }
+  if (p.word.count("schedule")) {
+    // The schedule's levels are in the same sense as the level the waveform was given by.
+    const char* by = p.has("rms") ? "rms" : p.has("amplitude") ? "amplitude" : "dc";
+    if (p.word.count("points") || !p.has(by))
+      throw ParamError{"schedule",
+                       "schedule= scales a dc=, amplitude= or rms= waveform, not points="};
+    const double nominal = p.get(by, 0.0);
+    if (nominal == 0.0)
+      throw ParamError{"schedule", fmt::format("schedule= needs a non-zero {}= to scale", by)};
+    auto levels = pairsOf(p, "schedule", dim);
+    for (auto& [t, level] : levels) level /= nominal;
+    try {
+      w.schedule(std::move(levels));
+    } catch (const InputError& e) {
+      throw ParamError{"schedule", e.what()};
+    }
   }
   return w;
 }
@@ -573,6 +601,16 @@ class Builder {
         throw ParamError{"", e.what()};
       }
       return std::make_unique<Stack>(name, n[0], n[1], *type, o);
+    }
+    if (kind == "lamp") {
+      require("rated-power", "W, as printed on the bulb");
+      require("rated-voltage", "V, as printed on the bulb");
+      return withTableParams(std::make_unique<Lamp>(name, n[0], n[1]), p);
+    }
+    if (kind == "valve-load") {
+      require("rated-current", "A drawn by the warm valves at rated-voltage=");
+      require("rated-voltage", "V, the HT voltage of that current");
+      return withTableParams(std::make_unique<ValveLoad>(name, n[0], n[1]), p);
     }
     if (kind == "switch") {
       std::vector<std::pair<double, bool>> events;  // (time, closes)

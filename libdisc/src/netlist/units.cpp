@@ -1,4 +1,5 @@
-// SI prefixes (SI Brochure, 9th ed., table 7) and unit symbols.
+// SI prefixes (SI Brochure, 9th ed., table 7), unit symbols, and the minute and hour (table 8:
+// non-SI units accepted for use with the SI).
 #include "units.hpp"
 
 #include <fmt/format.h>
@@ -15,6 +16,7 @@ struct Unit {
   const char* symbol;
   Dim dim;
   bool prefixable;
+  double factor = 1.0;  // to the SI unit
 };
 
 const std::vector<Unit>& units() {
@@ -27,8 +29,8 @@ const std::vector<Unit>& units() {
       {"H", Dim::Inductance, true},
       {"Hz", Dim::Frequency, true},
       {"s", Dim::Time, true},
-      {"min", Dim::Time, false},  // warm-up and schedules run over minutes and hours
-      {"h", Dim::Time, false},
+      {"min", Dim::Time, false, 60.0},
+      {"h", Dim::Time, false, 3600.0},
       {"W", Dim::Power, true},
       {"J", Dim::Energy, true},
       {"K", Dim::Temperature, false},
@@ -172,9 +174,7 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
                         dimName(dim), dim == Dim::None ? "" : fmt::format(" ({})", dimUnit(dim)));
     return std::nullopt;
   }
-  value *= scale;
-  if (unit && std::string(unit->symbol) == "min") value *= 60.0;
-  if (unit && std::string(unit->symbol) == "h") value *= 3600.0;
+  value *= scale * (unit ? unit->factor : 1.0);
   if (unit && (std::string(unit->symbol) == "degC" || std::string(unit->symbol) == "\xC2\xB0"
                                                                                    "C"))
     value += 273.15;

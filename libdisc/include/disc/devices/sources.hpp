@@ -45,9 +45,10 @@ class VoltageSource : public DeviceBase<VoltageSource> {
  private:
   Waveform w_;
   double r_, l_;
-  // The waveform at the last time asked: every Newton iteration of a step asks the same time.
+  // The waveform at the last times asked: every Newton iteration of a step asks the same ones.
   // Per run: an analysis evaluates its own copy of the device, and bind() empties the memo.
-  mutable double memoTime_ = std::numeric_limits<double>::quiet_NaN(), memoValue_ = 0.0;
+  mutable double memoTime_ = std::numeric_limits<double>::quiet_NaN(),
+                 memoSlow_ = std::numeric_limits<double>::quiet_NaN(), memoValue_ = 0.0;
   int p_ = 0, n_ = 0, br_ = 0;
   int spb_ = 0, snb_ = 0, sbp_ = 0, sbn_ = 0, sbb_ = 0;
 };
