@@ -7,6 +7,7 @@ setuptools keeps its temporary files in ./build, so CMake builds in ./build-pip 
 """
 import os
 import pathlib
+import re
 import subprocess
 import sys
 
@@ -15,6 +16,8 @@ from setuptools.command.build_ext import build_ext
 
 HERE = pathlib.Path(__file__).resolve().parent
 ROOT = HERE.parent.parent
+# The version is written once, in the top-level project() call.
+VERSION = re.search(r"project\(libdisc VERSION ([0-9.]+)", (ROOT / "CMakeLists.txt").read_text()).group(1)
 
 
 class CMakeExtension(Extension):
@@ -42,7 +45,7 @@ class CMakeBuild(build_ext):
 
 setup(
     name="disc",
-    version="0.1.0",
+    version=VERSION,
     description="Simulate power supplies built with selenium and copper-oxide plate rectifiers",
     packages=["disc"],
     package_dir={"disc": "disc"},

@@ -1,4 +1,4 @@
-// IEC 60063 preferred numbers (shared field notes check 14).
+// IEC 60063 preferred numbers (Preferred number series for resistors and capacitors).
 #include <algorithm>
 #include <catch2/catch.hpp>
 
@@ -19,7 +19,8 @@ TEST_CASE("E12 and E24 decades are the IEC 60063 lists", "[analysis][preferred]"
 }
 
 TEST_CASE("Nearest preferred value on a logarithmic scale", "[analysis][preferred]") {
-  CHECK(nearestPreferred(12.67, ESeries::E24) == 13.0);  // field notes check 13's resistor
+  // The worked dropping-resistor example's 12.67 ohm (docs/sources.md, silicon replacement).
+  CHECK(nearestPreferred(12.67, ESeries::E24) == 13.0);
   CHECK(nearestPreferred(12.67, ESeries::E12) == 12.0);
   CHECK(nearestPreferred(1190.0, ESeries::E12) == 1200.0);
   CHECK(nearestPreferred(0.0963, ESeries::E24) == 0.1);

@@ -1,5 +1,5 @@
 // Silicon replacement design: the dropping resistor found with the transient engine in the
-// loop, against the worked example of the shared field notes (section 7, check 13: derived from
+// loop, against the worked example of docs/sources.md (silicon replacement: derived from
 // Schade's large-capacitor limit) and against the netlist's own output.
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -11,11 +11,12 @@
 
 namespace {
 
-// Field notes section 7: half-wave, 117 V rms, R_L = 1500 ohm, 10 ohm surge resistor, 5 plates
-// of 0.5 V threshold and 2 ohm slope, silicon 0.8 V, large C. The plates are given a sharp knee
-// (n = 1) whose drop is 0.5 V near the conduction current, 2 ohm of bulk resistance, and no
-// leakage, charge or temperature dependence; the silicon diode likewise drops 0.8 V there.
-const char* const kFieldNotesExample = R"(title "field notes section 7 worked example"
+// The worked example (docs/sources.md, silicon replacement): half-wave, 117 V rms, R_L = 1500 ohm,
+// 10 ohm surge resistor, 5 plates of 0.5 V threshold and 2 ohm slope, silicon 0.8 V, large C. The
+// plates are given a sharp knee (n = 1) whose drop is 0.5 V near the conduction current, 2 ohm of
+// bulk resistance, and no leakage, charge or temperature dependence; the silicon diode likewise
+// drops 0.8 V there.
+const char* const kWorkedExample = R"(title "dropping-resistor worked example"
 ambient 26.85degC
 plate-type knee05 base=se-25mm-square ideality=1 js0_A_per_cm2=3.5e-10 rs_ohm_cm2=10 \
     gsh_S_per_cm2=1e-12 c0_F_per_cm2=0 trap_c_F_per_cm2=0 rs_activation_eV=0 breakdown_V=400
@@ -37,7 +38,7 @@ bool inSeries(double value, disc::ESeries series) {
 
 }  // namespace
 
-TEST_CASE("replace: the field notes' dropping-resistor example (check 13)", "[analysis][replace]") {
+TEST_CASE("replace: the worked dropping-resistor example", "[analysis][replace]") {
   disc::ReplaceOptions o;
   o.stacks = {"SR1"};
   o.diode =
@@ -45,16 +46,16 @@ TEST_CASE("replace: the field notes' dropping-resistor example (check 13)", "[an
                                                                                            // near
                                                                                            // 0.5 A
   o.loadFractions = {1.0};
-  const auto d = disc::designReplacement(kFieldNotesExample, "field-notes-7.disc", o);
-  // Selenium 144.2 V, silicon 152.3 V (field notes section 7, derived).
+  const auto d = disc::designReplacement(kWorkedExample, "worked-example.disc", o);
+  // Selenium 144.2 V, silicon 152.3 V (derived, docs/sources.md).
   CHECK(d.target == Approx(144.2).epsilon(0.01));
-  // Check 13: +8.14 V without the resistor, 12.67 ohm with it; within 5 %.
+  // +8.14 V without the resistor, 12.67 ohm with it (derived); within 5 %.
   CHECK(d.siliconAlone - d.target == Approx(8.14).epsilon(0.05));
   CHECK(d.resistorExact == Approx(12.67).epsilon(0.05));
   // The resistor reproduces the original output within 0.5 % (the issue's requirement).
   CHECK(std::abs(d.outputExact / d.target - 1.0) <= 0.005);
   // Hand check from average drops during conduction (rule of thumb, common practice): within
-  // 20 % of the simulated choice. The naive dV / I_dc over-corrects about 7 times (section 7).
+  // 20 % of the simulated choice. The naive dV / I_dc over-corrects about 7 times (derived).
   CHECK(d.handEstimate == Approx(d.resistorExact).epsilon(0.20));
   const double naive = (d.siliconAlone - d.target) / (d.target / 1500.0);
   CHECK(naive > 4.0 * d.resistorExact);
@@ -66,7 +67,7 @@ TEST_CASE("replace: a table radio's stack, with the comparison table and a runna
   o.stacks = {"SR1"};
   const auto d =
       disc::designReplacementFile(std::string(DISC_NETLIST_DIR) + "/table-radio-half-wave.disc", o);
-  CHECK(d.siliconAlone > d.target + 2.0);  // silicon's low drop raises the HT (section 7)
+  CHECK(d.siliconAlone > d.target + 2.0);  // silicon's low drop raises the HT (common practice)
   CHECK(std::abs(d.outputExact / d.target - 1.0) <= 0.005);
   // IEC 60063 values, exactly, and each the nearest on its series.
   CHECK(inSeries(d.e12, disc::ESeries::E12));
@@ -75,8 +76,8 @@ TEST_CASE("replace: a table radio's stack, with the comparison table and a runna
   // Dissipation rating with the 2x margin; a reverse rating with the 2x factor.
   CHECK(d.resistorRating >= 2.0 * d.resistorPower);
   CHECK(d.pivRequired == Approx(2.0 * d.peakReverse));
-  // Half-wave capacitor input: the diode sees about 2 sqrt(2) V_rms in reverse (field notes
-  // section 7, common practice): 120 V rms mains here, less the drops.
+  // Half-wave capacitor input: the diode sees about 2 sqrt(2) V_rms in reverse (common
+  // practice; docs/sources.md, rectifier circuits): 120 V rms mains here, less the drops.
   CHECK(d.peakReverse == Approx(2.0 * std::sqrt(2.0) * 120.0).epsilon(0.1));
   REQUIRE(d.rows.size() == 3);
   CHECK(d.rows[0].loadFraction == 0.5);
@@ -112,17 +113,17 @@ TEST_CASE("replace: a battery charger's bridge is matched on its charging curren
 TEST_CASE("replace: inputs it cannot use are refused with a reason", "[analysis][replace]") {
   disc::ReplaceOptions o;
   o.stacks = {"SR9"};
-  CHECK_THROWS_WITH(disc::designReplacement(kFieldNotesExample, "x.disc", o),
+  CHECK_THROWS_WITH(disc::designReplacement(kWorkedExample, "x.disc", o),
                     Catch::Contains("no stack named 'SR9'"));
   o.stacks = {"SR1"};
-  std::string noOutput = kFieldNotesExample;
+  std::string noOutput = kWorkedExample;
   noOutput.erase(noOutput.find("output out"), std::string("output out gnd load=RL\n").size());
   CHECK_THROWS_WITH(disc::designReplacement(noOutput, "x.disc", o),
                     Catch::Contains("names no output"));
   o.stacks.clear();
-  CHECK_THROWS_AS(disc::designReplacement(kFieldNotesExample, "x.disc", o), disc::InputError);
+  CHECK_THROWS_AS(disc::designReplacement(kWorkedExample, "x.disc", o), disc::InputError);
   o.stacks = {"SR1", "SR1"};
-  CHECK_THROWS_WITH(disc::designReplacement(kFieldNotesExample, "x.disc", o),
+  CHECK_THROWS_WITH(disc::designReplacement(kWorkedExample, "x.disc", o),
                     Catch::Contains("named twice"));
   CHECK(disc::resistorRatingFor(0.3) == 0.5);
   CHECK_THROWS_AS(disc::resistorRatingFor(80.0), disc::InputError);
@@ -137,7 +138,7 @@ TEST_CASE("replace: the silicon variant runs across dropping resistors and toler
   // small"; every combination here must finish with the output between the silicon-alone and
   // the half-wave peak-rectified bounds (common practice: the output of a capacitor-input
   // half-wave supply lies below the peak, 117 V * sqrt(2) = 165.5 V).
-  std::string text = kFieldNotesExample;
+  std::string text = kWorkedExample;
   const std::string stack = "stack SR1 a out type=knee05 plates=5\n";
   text.replace(text.find(stack), stack.size(),
                "diode D1 a x saturation-current=1.5e-14 ideality=1 series-resistance=0 "

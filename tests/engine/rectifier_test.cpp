@@ -34,7 +34,8 @@ HartFigures hart(double vm, double f, double R, double C) {
 
 TEST_CASE("Half-wave RC rectifier matches Hart's turn-off and turn-on angles",
           "[engine][rectifier]") {
-  // Check values (shared field notes, checks 7 and 8, derived): 120 V rms, 60 Hz, 500 ohm;
+  // Check values (derived from Hart's two equations; docs/sources.md, rectifier circuits):
+  // 120 V rms, 60 Hz, 500 ohm;
   // 100 uF: theta 93.04 deg, alpha 48.23 deg, ripple 43.13 V; 3300 uF: alpha 81.96 deg,
   // ripple 1.667 V.
   const auto h100 = hart(120 * std::sqrt(2.0), 60, 500, 100e-6);

@@ -221,8 +221,8 @@ TEST_CASE("health: leakage and forward drop judged against a healthy plate", "[f
   const auto w = disc::judgePlateHealth(worn, base());
   CHECK((w.level == "aged" || w.level == "failed"));
   CHECK(w.forwardRatio > 1.2);
-  // Field notes check 4: a healthy selenium plate drops about 1 V at rated current (accept
-  // 0.7-1.2 V; from memory).
+  // A healthy selenium plate drops about 1 V at rated current (accept 0.7-1.2 V; from memory,
+  // docs/sources.md, selenium plates).
   CHECK(healthy.forwardDrop > 0.7);
   CHECK(healthy.forwardDrop < 1.2);
 }

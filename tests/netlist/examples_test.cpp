@@ -23,9 +23,50 @@ struct Run {
 
 Run runExample(const std::string& name) {
   Run r{loadNetlist(std::string(DISC_NETLIST_DIR) + "/" + name), {}};
+  // Each resistor's current, for the Joule's-law check of its loss in checkEnergyBalance().
+  for (const auto& d : r.nl.circuit.devices())
+    if (d->kind() == "resistor") r.nl.record.push_back("i:" + d->name());
   r.out = runNetlist(r.nl);
   REQUIRE(r.out.hasReport);
   return r;
+}
+
+double windowMean(const Run& r, const std::string& sig);
+
+/// The report's energy balance: input = output + every loss, each loss checked on its own.
+void checkEnergyBalance(const Run& r) {
+  const auto& o = r.out.report.output;
+  const auto& t = r.result().time();
+  const double w0 = r.out.report.window0, w1 = r.out.report.window1;
+  REQUIRE(o.inputPower > 0.0);
+  double losses = 0.0, magnitude = o.inputPower + std::abs(o.outputPower);
+  for (const auto& l : o.losses) {
+    INFO(l.device << " (" << l.kind << "): " << l.power << " W");
+    losses += l.power;
+    magnitude += std::abs(l.power);
+    if (l.kind == "resistor") {
+      // Joule's law from the recorded current: P = R mean(i^2).
+      std::vector<double> i2 = r.result()["i:" + l.device];
+      for (double& x : i2) x *= x;
+      const double rOhm = r.nl.circuit.find(l.device)->parameter("resistance");
+      CHECK(l.power == Approx(rOhm * measure::mean(t, i2, w0, w1)).epsilon(1e-6).margin(1e-12));
+    } else if (l.kind == "stack") {
+      // A stack's loss is its forward plus its reverse dissipation, recorded apart.
+      CHECK(l.power == Approx(windowMean(r, "pfwd:" + l.device) + windowMean(r, "prev:" + l.device))
+                           .epsilon(1e-6)
+                           .margin(1e-12));
+      CHECK(l.power > 0.0);
+    } else if (l.kind != "capacitor" && l.kind != "inductor") {
+      CHECK(l.power > -1e-9);  // passive: absorbs on average
+    }
+  }
+  // Tellegen's theorem: the sum of v i over all branches vanishes for any currents obeying
+  // Kirchhoff's current law, so the balance is off only by the solver's residual, reltol (1e-3
+  // by default, on every current) times the powers involved.
+  const double reltol = r.nl.analyses.back().transient.tol.reltol;
+  CHECK(std::abs(o.inputPower - o.outputPower - losses) <= reltol * magnitude);
+  CHECK(o.efficiency <= 1.0);
+  CHECK(o.efficiency == Approx(o.outputPower / o.inputPower));
 }
 
 double windowMean(const Run& r, const std::string& sig) {
@@ -37,20 +78,29 @@ double windowMean(const Run& r, const std::string& sig) {
 
 TEST_CASE("Table radio: half-wave capacitor input", "[netlist][examples]") {
   const Run r = runExample("table-radio-half-wave.disc");
+  checkEnergyBalance(r);
   const auto& rep = r.out.report;
   CHECK(rep.settled);
   const double i = rep.output.loadCurrent;
   // The smoothing resistor drops I R (Ohm's law): the output is the reservoir voltage less it.
-  CHECK(rep.output.mean == Approx(windowMean(r, "v:b") - i * 1200.0).epsilon(0.01));
+  // Ohm's law holds at every time point; the means differ only by C2's net current over the
+  // settled window, and by the solver's tolerance on the currents (reltol 1e-3): window 1e-3.
+  CHECK(rep.output.mean == Approx(windowMean(r, "v:b") - i * 1200.0).epsilon(1e-3));
   // Half-wave capacitor input: ripple about I / (f C) peak-to-peak at the reservoir
   // (J. Millman and C. C. Halkias, Electronic Devices and Circuits, 1967, from memory); an upper
-  // bound, as the reservoir recharges for part of the cycle.
+  // bound, as the reservoir recharges for part of the cycle. The lower bound: a half-wave
+  // rectifier conducts for less than half the cycle, so the reservoir alone feeds the load for
+  // more than half of it and falls by more than I / (2 f C).
   const auto& t = r.result().time();
   const double rippleB = measure::maximum(t, r.result()["v:b"], rep.window0, rep.window1) -
                          measure::minimum(t, r.result()["v:b"], rep.window0, rep.window1);
   CHECK(rippleB < i / (60.0 * 50e-6));
   CHECK(rippleB > 0.5 * i / (60.0 * 50e-6));
-  // Peak reverse on the stack is about twice the mains peak (capacitive load, field notes s. 2).
+  // Peak reverse on the stack is about twice the mains peak (capacitive load, common practice;
+  // docs/sources.md): the reservoir's charge plus the opposite mains peak. The reservoir stays
+  // below the mains peak by the drops at the charging peak (8 plates at about 1 V, the 22 ohm
+  // surge resistor, the mains' 0.5 ohm) and by its ripple, together about a tenth of V_m on a
+  // 120 V set: a window of 15 % of 2 V_m.
   CHECK(rep.stacks[0].peakReverse * 8 == Approx(2 * std::numbers::sqrt2 * 120.0).epsilon(0.15));
 }
 
@@ -62,11 +112,17 @@ TEST_CASE("Battery chargers: Ohm's law at the battery and the charging-current e
     const Run r = runExample(file);
     const auto& rep = r.out.report;
     INFO(file);
+    checkEnergyBalance(r);
+    // The battery is the load: it charges, and its power is output, never input (the mains
+    // alone feeds the charger).
+    CHECK(rep.output.loadState == "charging");
+    CHECK(rep.output.inputPower == Approx(-windowMean(r, "p:MAINS")));
     const double i = rep.output.loadCurrent;
     CHECK(rep.output.mean == Approx(emf + rbat * i).epsilon(0.005));
     // Resistance-limited full-wave rectifier into a battery, ideal switches with a threshold:
     // I = (2 Vm cos a - E' (pi - 2 a)) / (pi R), sin a = E'/Vm (Millman and Halkias, from
-    // memory). E' adds two plates' knee (0.47 V, field notes s. 10); R gathers the windings
+    // memory). E' adds two plates' knee (0.47 V, the fitted-line intercept of the starting
+    // set, derived in docs/sources.md); R gathers the windings
     // (primary referred), leads, battery and two plates' slope (10 ohm cm2 / 85 cm2).
     const double vm = std::numbers::sqrt2 * 230.0 / ratio;
     const double e = emf + 2 * 0.47;
@@ -74,22 +130,28 @@ TEST_CASE("Battery chargers: Ohm's law at the battery and the charging-current e
     const double a = std::asin(e / vm);
     const double estimate =
         (2 * vm * std::cos(a) - e * (std::numbers::pi - 2 * a)) / (std::numbers::pi * rt);
-    CHECK(i == Approx(estimate).epsilon(0.3));
+    // The estimate neglects the windings' leakage inductances and straightens the plates' curve
+    // (the line fitted over 10-100 % of rated current, while the charger's pulses run several
+    // times above it); the run lies 13-16 % below it: a window of 20 %.
+    CHECK(i < estimate);
+    CHECK(i == Approx(estimate).epsilon(0.2));
   }
 }
 
 TEST_CASE("Amplifier: choke input holds 0.9 Vrms less the resistive drops", "[netlist][examples]") {
   const Run r = runExample("amplifier-centre-tap-choke.disc");
+  checkEnergyBalance(r);
   const auto& rep = r.out.report;
   // Choke input: V_dc = 0.900 V_rms of each half-secondary (Millman and Halkias, from memory),
   // less I times choke, winding and primary-referred resistance, less the stack drop (about
-  // 0.7 V per plate at this current density, field notes s. 10).
+  // 0.7 V per plate at this current density: the starting set's curve, derived in
+  // docs/sources.md).
   const double vrms = 230.0 / 0.7667;
   const double i = rep.output.loadCurrent;
   const double expected = 0.9 * vrms - i * (150.0 + 40.0 + 6.0 / (0.7667 * 0.7667)) - 24 * 0.7;
   CHECK(rep.output.mean == Approx(expected).epsilon(0.05));
-  // Above the critical inductance R_L / (3 omega) the choke current never stops (textbook
-  // choke-input condition; field notes check 11).
+  // Above the critical inductance R_L / (3 omega) the choke current never stops (Millman and
+  // Halkias, from memory).
   const double choke = r.nl.circuit.find("CHOKE")->parameter("inductance");
   const double load = r.nl.circuit.find("RLOAD")->parameter("resistance");
   CHECK(choke > load / (3 * 2 * std::numbers::pi * 50.0));
@@ -100,37 +162,61 @@ TEST_CASE("Amplifier: choke input holds 0.9 Vrms less the resistive drops", "[ne
 TEST_CASE("Signalling supply: ripple bound and uneven but bounded arm sharing",
           "[netlist][examples]") {
   const Run r = runExample("signalling-parallel-stacks.disc");
+  checkEnergyBalance(r);
   const auto& rep = r.out.report;
   const double i = rep.output.loadCurrent;
   // Full-wave capacitor input: ripple about I / (2 f C), an upper bound (Millman and Halkias).
+  // The lower bound: with omega C R_L well above 10 the conduction angle is far below 90 deg
+  // (Schade, Proc. IRE 1943), so the reservoir alone feeds the load for more than half of each
+  // half cycle.
   CHECK(rep.output.ripplePeakToPeak < i / (2 * 50.0 * 4700e-6));
   CHECK(rep.output.ripplePeakToPeak > 0.5 * i / (2 * 50.0 * 4700e-6));
   for (const auto& s : rep.stacks) {
     REQUIRE(s.armShare.size() == 2);
     CHECK(s.armShare[0] + s.armShare[1] == Approx(1.0));
+    // Uneven (the arms' plates differ in the netlist) but bounded: within 15 points of even.
     CHECK(std::abs(s.armShare[0] - 0.5) < 0.15);
   }
 }
 
 TEST_CASE("Copper-oxide meter rectifier reads the full-wave average", "[netlist][examples]") {
   const Run r = runExample("meter-rectifier-cuox.disc");
+  checkEnergyBalance(r);
   // Full-wave average current 2 sqrt(2) / pi Vrms / R (Millman and Halkias): the discs' drops
   // make the real reading lower (the known non-linearity of rectifier meters on low ranges).
   const double ideal = 2 * std::numbers::sqrt2 / std::numbers::pi * 10.0 / 9300.0;
   const double i = r.out.report.output.loadCurrent;
   CHECK(i < ideal);
-  CHECK(i == Approx(ideal).epsilon(0.25));
+  // Lower bound: below rated current each disc drops less than its rated drop, at most 1.08 V
+  // (docs/sources.md, plate-type starting values), so the current at every instant exceeds
+  // that of ideal switches with a threshold E' = 2 x 1.08 V: mean (2 Vm cos a - E' (pi - 2 a)) /
+  // (pi R), sin a = E'/Vm (derived, as for the battery chargers).
+  const double vm = std::numbers::sqrt2 * 10.0, e = 2 * 1.08, a = std::asin(e / vm);
+  CHECK(i > (2 * vm * std::cos(a) - e * (std::numbers::pi - 2 * a)) / (std::numbers::pi * 9300.0));
 }
 
 TEST_CASE("High-voltage stack: half-wave capacitor input with many discs", "[netlist][examples]") {
   const Run r = runExample("hv-stack-half-wave.disc");
+  checkEnergyBalance(r);
   const auto& rep = r.out.report;
   const double i = rep.output.loadCurrent, vm = std::numbers::sqrt2 * 230.0 / 0.575;
-  // Half-wave ripple about I / (f C) (Millman and Halkias, from memory).
-  CHECK(rep.output.ripplePeakToPeak == Approx(i / (50.0 * 0.5e-6)).epsilon(0.2));
+  // Half-wave ripple about I / (f C) (Millman and Halkias, from memory), where I is all that
+  // drains the reservoir between charging pulses: the load and the stack's own reverse leakage
+  // (40 small discs leak a good part of the 0.24 mA load). Upper bound: both for a whole cycle;
+  // lower: the load alone for half of it (a half-wave rectifier conducts less than half).
+  const auto& t = r.result().time();
+  std::vector<double> leak = r.result()["i:SRHV"];
+  for (double& x : leak) x = std::max(0.0, -x);
+  const double drain = i + measure::mean(t, leak, rep.window0, rep.window1);
+  CHECK(rep.output.ripplePeakToPeak < drain / (50.0 * 0.5e-6));
+  CHECK(rep.output.ripplePeakToPeak > 0.5 * i / (50.0 * 0.5e-6));
+  // The output stays below the secondary peak by the stack's drop at the charging peak (40
+  // discs, about 1 V each at rated current: 7 % of Vm), the windings' drop and half the ripple
+  // (1 %): above 0.85 Vm.
   CHECK(rep.output.mean < vm);
   CHECK(rep.output.mean > 0.85 * vm);
-  // 40 discs share about 2 Vm of reverse voltage (capacitive load).
+  // 40 discs share about 2 Vm of reverse voltage (capacitive load; docs/sources.md): less the
+  // same shortfall of the reservoir below Vm, so within 15 % of 2 Vm.
   CHECK(rep.stacks[0].peakReverse * 40 == Approx(2 * vm).epsilon(0.15));
 }
 
@@ -199,4 +285,26 @@ TEST_CASE("Bring-up through a series lamp: variac steps, warming valves, a dim l
   // practice: a lamp glowing bright means a fault is drawing current).
   CHECK(measure::mean(t, res["p:LAMP"], 11.0, 12.0) < 0.3 * 60.0);
   CHECK(res["temp:LAMP"].back() < 2000.0);
+}
+
+TEST_CASE("Every bundled supply has a test case that checks its energy balance",
+          "[netlist][examples]") {
+  // The test cases above call checkEnergyBalance() for exactly these files; a new example
+  // netlist must join them.
+  const std::set<std::string> balanced = {
+      "table-radio-half-wave.disc",      "battery-charger-12v.disc",
+      "battery-charger-6v.disc",         "amplifier-centre-tap-choke.disc",
+      "signalling-parallel-stacks.disc", "meter-rectifier-cuox.disc",
+      "hv-stack-half-wave.disc"};
+  int supplies = 0;
+  for (const auto& entry : std::filesystem::directory_iterator(DISC_NETLIST_DIR)) {
+    if (entry.path().extension() != ".disc") continue;
+    std::ifstream in(entry.path());
+    const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    if (text.find("\noutput ") == std::string::npos) continue;  // a part for inclusion
+    INFO(entry.path().filename().string());
+    CHECK(balanced.count(entry.path().filename().string()) == 1);
+    ++supplies;
+  }
+  CHECK(supplies == static_cast<int>(balanced.size()));
 }

@@ -55,7 +55,8 @@ TEST_CASE("Barrier capacitance obeys Mott-Schottky: 1/C^2 linear in V", "[plate]
 }
 
 TEST_CASE("Series resistance follows the Arrhenius law (NTC)", "[plate][laws]") {
-  // Rs(T) = (rho0 t / A) exp[(Ea/k)(1/T - 1/T0)] (shared field notes section 5).
+  // Rs(T) = (rho0 t / A) exp[(Ea/k)(1/T - 1/T0)] (Arrhenius; activation energy of selenium: Annalen
+  // der Physik 1954, docs/sources.md).
   const PlateType t = bareBarrier();
   const auto k = detail::makePlateConstants(t, 1.0, 1.0, 1.0, 1.0);
   const double kb = constants::kBoltzmannEv;

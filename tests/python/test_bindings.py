@@ -9,6 +9,7 @@ import threading
 
 import numpy as np
 import pytest
+from conftest import need_cli, need_module
 
 import disc
 
@@ -55,7 +56,7 @@ def test_report_fields_match_report_json():
 @pytest.mark.parametrize("name", EXAMPLES)
 def test_parity_with_the_command_line(name, tmp_path):
     # The same figures to the last digit of the JSON.
-    cli = os.environ.get("DISC_CLI", "disc")
+    cli = need_cli()
     subprocess.run([cli, "run", "-q", str(NETLISTS / name), "-o", str(tmp_path)], check=True)
     from_cli = json.loads((tmp_path / "report.json").read_text())
     _, from_python = disc.load(NETLISTS / name).run()
@@ -181,8 +182,7 @@ def test_threads_give_the_same_answers_as_one_after_the_other():
 
 
 def test_plot_helpers_return_figures():
-    pytest.importorskip("matplotlib")
-    import matplotlib
+    matplotlib = need_module("matplotlib")
 
     matplotlib.use("Agg")
     from disc import plot

@@ -1,18 +1,18 @@
 """The plate fit and the silicon replacement through the Python module.
 
-The static model of the shared field notes section 10,
+The static model of docs/sources.md (plate-type starting values),
     I = Is (exp((V - I Rs) / (n Vt)) - 1) + (V - I Rs) Gsh,
 is written here independently of libdisc and solved with SciPy's brentq; SciPy's
 least_squares (trust-region reflective) fits it, as a reference for libdisc's
 Levenberg-Marquardt. The "measured" plate is invented for the test.
 """
 import json
-import os
 import pathlib
 import subprocess
 
 import numpy as np
 import pytest
+from conftest import need_cli
 from scipy.optimize import brentq, least_squares
 
 import disc
@@ -27,7 +27,7 @@ ROOT = pathlib.Path(__file__).resolve().parents[2]
 
 
 def section10_current(v, js0, n, rs_area, gsh_area):
-    """Field notes section 10: the implicit static law, solved for I by bracketing."""
+    """The implicit static law (docs/sources.md), solved for I by bracketing."""
     i_s, rs, gsh = js0 * AREA, rs_area / AREA, gsh_area * AREA
 
     def f(i):
@@ -129,10 +129,9 @@ def test_replace_through_python_matches_the_original_output():
     assert len(d.rows) == 1 and d.rows[0].load_fraction == 1.0
 
 
-@pytest.mark.skipif("DISC_CLI" not in os.environ, reason="needs the disc program")
 def test_cli_fit_on_the_demo_trace_writes_a_usable_type(tmp_path):
     out = tmp_path / "fit"
-    run = subprocess.run([os.environ["DISC_CLI"], "fit", str(ROOT / "netlists" / "traces" /
+    run = subprocess.run([need_cli(), "fit", str(ROOT / "netlists" / "traces" /
                           "stored-stack-sweep.csv"), "--plates", "8", "--like", "se-25mm-36v",
                           "--name", "demo-stack", "-o", str(out), "-q"], capture_output=True,
                          text=True)

@@ -5,9 +5,11 @@ import pathlib
 import sys
 
 import pytest
+from conftest import need_module
 
-nbformat = pytest.importorskip("nbformat")
-nbclient = pytest.importorskip("nbclient")
+nbformat = need_module("nbformat")
+nbclient = need_module("nbclient")
+need_module("ipykernel")
 
 NOTEBOOKS = pathlib.Path(__file__).resolve().parents[2] / "docs" / "notebooks"
 

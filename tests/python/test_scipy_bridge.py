@@ -8,11 +8,11 @@ libdisc diode carries), 10 nF from each bridge input to gnd, 1000 uF reservoir a
 switched on cold. Reference: SciPy's Radau IIA (order 5) with tight tolerances.
 """
 import json
-import os
 import subprocess
 
 import numpy as np
 import pytest
+from conftest import need_cli
 from scipy.integrate import solve_ivp
 
 K_B = 1.380649e-23  # J/K, exact SI
@@ -71,7 +71,7 @@ def reference():
 
 
 def run_disc(method, reltol=1e-6, extra=()):
-    cli = os.environ.get("DISC_CLI", "disc")
+    cli = need_cli()
     out = subprocess.run([cli, "example", "shockley-bridge", "--method", method, "--stop",
                           str(STOP), "--reltol", str(reltol), "--json", *extra],
                          check=True, capture_output=True, text=True).stdout
@@ -96,7 +96,8 @@ def test_methods_agree_within_a_thousandth():
 
 def test_python_module_matches_scipy_radau(reference):
     # The same check through the Python module (no command line in between).
-    disc = pytest.importorskip("disc")
+    import disc  # a broken module must fail here, not skip
+
     r = disc.reference_circuit("shockley-bridge").run_transient(stop=STOP, record=["v:out"],
                                                                method="trap", reltol=1e-6)
     t, v = r.time, r["v:out"]

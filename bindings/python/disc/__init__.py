@@ -14,7 +14,7 @@ from . import _disc
 from ._errors import NetlistError, SimulationError, TraceError
 from .circuit import Circuit, Element, Result
 
-__version__ = "0.1.0"
+__version__ = _disc.__version__  # the project() version in CMakeLists.txt
 
 PlateType = _disc.PlateType
 PlateCurve = _disc.PlateCurve

@@ -26,6 +26,10 @@ struct OperatingPointOptions {
   int maxIterations = 150;          ///< per Newton solve
   double gmin = 1e-12;              ///< S, from every node to gnd
   std::vector<std::string> record;  ///< signals; empty = every node voltage and device current
+  /// When plain Newton fails: conductances to gnd relaxed by decades.
+  bool gminStepping = true;
+  /// When that fails too: every source ramped up from zero.
+  bool sourceStepping = true;
   void validate() const;
 };
 

@@ -42,9 +42,23 @@ struct StackFigures {
   std::vector<Verdict> verdicts;
 };
 
+/// Mean power a device absorbs over the settled window (a loss, or for capacitors and
+/// inductors the net energy they store: about 0 once settled).
+struct PowerShare {
+  std::string device, kind;
+  double power = 0;  ///< W
+};
+
 struct OutputFigures {
   double mean = 0, ripplePeakToPeak = 0, rippleRms = 0, rippleFactor = 0;  ///< V, V, V, -
+  /// inputPower: what the sources other than the load deliver (the mains, or a battery that
+  /// feeds the circuit); a battery named as the load is output, never input.
   double loadCurrent = 0, outputPower = 0, inputPower = 0, efficiency = 0, powerFactor = 0;
+  /// "charging" or "discharging" when the load is a source (a battery), else empty.
+  std::string loadState;
+  /// Every other device's mean absorbed power: inputPower = outputPower + the sum of these,
+  /// within the run's tolerance (Tellegen's theorem).
+  std::vector<PowerShare> losses;
   double secondaryRmsCurrent = 0, secondaryVA = 0;  ///< A, VA (0 without a transformer)
   bool hasTransformer = false;
 };

@@ -77,6 +77,27 @@ nlohmann::json failuresJson(const std::vector<FailureEvent>& events) {
   return a;
 }
 
+/// The losses by kind of device, largest first: "12.300 W (stack 10.1 W, resistor 2.2 W)".
+std::string lossSummary(const std::vector<PowerShare>& losses) {
+  std::vector<std::pair<std::string, double>> kinds;
+  double total = 0.0;
+  for (const auto& l : losses) {
+    total += l.power;
+    auto it =
+        std::find_if(kinds.begin(), kinds.end(), [&](const auto& k) { return k.first == l.kind; });
+    if (it == kinds.end())
+      kinds.emplace_back(l.kind, l.power);
+    else
+      it->second += l.power;
+  }
+  std::stable_sort(kinds.begin(), kinds.end(),
+                   [](const auto& a, const auto& b) { return a.second > b.second; });
+  std::string parts;
+  for (const auto& [kind, w] : kinds)
+    parts += fmt::format("{}{} {:.3f} W", parts.empty() ? "" : ", ", kind, w);
+  return fmt::format("{:10.3f} W ({})", total, parts);
+}
+
 }  // namespace
 
 std::string reportText(const SupplyReport& r) {
@@ -101,9 +122,12 @@ std::string reportText(const SupplyReport& r) {
       "  ripple                {:10.3f} V peak-to-peak, {:.3f} V rms (ripple factor {:.4f})",
       o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
   line(fmt::format("  load current          {:10.4f} A", o.loadCurrent));
-  line(fmt::format("  output power          {:10.3f} W", o.outputPower));
+  line(fmt::format(
+      "  output power          {:10.3f} W{}", o.outputPower,
+      o.loadState.empty() ? "" : fmt::format(" (the load is a battery, {})", o.loadState)));
   line(fmt::format("  input power           {:10.3f} W   efficiency {:.1f} %   power factor {:.3f}",
                    o.inputPower, 100 * o.efficiency, o.powerFactor));
+  if (!o.losses.empty()) line("  losses                " + lossSummary(o.losses));
   if (o.hasTransformer)
     line(fmt::format("  transformer secondary {:10.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent,
                      o.secondaryVA));
@@ -156,6 +180,8 @@ std::string reportJson(const SupplyReport& r) {
   j["cycles"] = r.cycles;
   j["window_s"] = {r.window0, r.window1};
   const auto& o = r.output;
+  nlohmann::json losses = nlohmann::json::object();
+  for (const auto& l : o.losses) losses[l.device] = l.power;
   j["output"] = {{"mean_V", o.mean},
                  {"ripple_pp_V", o.ripplePeakToPeak},
                  {"ripple_rms_V", o.rippleRms},
@@ -164,6 +190,8 @@ std::string reportJson(const SupplyReport& r) {
                  {"output_power_W", o.outputPower},
                  {"input_power_W", o.inputPower},
                  {"efficiency", o.efficiency},
+                 {"load_state", o.loadState},
+                 {"losses_W", losses},
                  {"power_factor", o.powerFactor},
                  {"secondary_rms_current_A", o.secondaryRmsCurrent},
                  {"secondary_VA", o.secondaryVA}};
@@ -214,15 +242,32 @@ std::string reportJson(const SupplyReport& r) {
   return j.dump(2) + "\n";
 }
 
+namespace {
+
+/// One CSV field per RFC 4180 section 2: quoted when it holds a comma, a double quote or a line
+/// break (signal names such as "v:b,gnd" do), with each double quote doubled.
+std::string csvField(const std::string& text) {
+  if (text.find_first_of(",\"\r\n") == std::string::npos) return text;
+  std::string q = "\"";
+  for (char c : text) {
+    if (c == '"') q += '"';
+    q += c;
+  }
+  return q + '"';
+}
+
+}  // namespace
+
 std::string resultCsv(const Result& r) {
+  // RFC 4180: a header record, then one record per time point, each ended by CRLF.
   std::string s = "time [s]";
-  for (const auto& n : r.signals()) s += fmt::format(",{} [{}]", n, r.unit(n));
-  s += "\n";
+  for (const auto& n : r.signals()) s += "," + csvField(fmt::format("{} [{}]", n, r.unit(n)));
+  s += "\r\n";
   const auto& t = r.time();
   for (std::size_t k = 0; k < t.size(); ++k) {
     s += fmt::format("{:.12g}", t[k]);
     for (const auto& n : r.signals()) s += fmt::format(",{:.10g}", r[n][k]);
-    s += "\n";
+    s += "\r\n";
   }
   return s;
 }
@@ -388,6 +433,8 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   row("load current", fmt::format("{:.4f} A", o.loadCurrent));
   row("output / input power", fmt::format("{:.3f} W / {:.3f} W, efficiency {:.1f} %", o.outputPower,
                                           o.inputPower, 100 * o.efficiency));
+  if (!o.loadState.empty()) row("battery load", o.loadState);
+  if (!o.losses.empty()) row("losses", escapeHtml(lossSummary(o.losses)));
   row("input power factor", fmt::format("{:.3f}", o.powerFactor));
   if (o.hasTransformer)
     row("transformer secondary",

@@ -64,7 +64,7 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
       s.push_back("i2:" + d->name());
       s.push_back(fmt::format("v:{},{}", vname(c, t[2]), vname(c, t[3])));
     } else if (auto* st = dynamic_cast<const Stack*>(d.get())) {
-      for (const char* q : {"i", "vrev", "temp", "form", "pfwd", "prev"})
+      for (const char* q : {"i", "p", "vrev", "temp", "form", "pfwd", "prev"})
         s.push_back(fmt::format("{}:{}", q, d->name()));
       for (int m = 1; m <= st->options().arms; ++m)
         s.push_back(fmt::format("iarm:{}#{}", d->name(), m));
@@ -74,6 +74,14 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
         s.push_back(fmt::format("temp:{}#{}", d->name(), n));
       }
     }
+  }
+  // Every device's power, for the energy balance.
+  for (const auto& d : c.devices()) {
+    const auto probes = d->probes();
+    const std::string p = "p:" + d->name();
+    if (std::find(probes.begin(), probes.end(), "p") != probes.end() &&
+        std::find(s.begin(), s.end(), p) == s.end())
+      s.push_back(p);
   }
   return s;
 }
@@ -138,8 +146,20 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   double vrms = 0, irms = 0;
   for (const auto& d : c.devices()) {
     const auto& term = d->terminals();
-    if (dynamic_cast<const VoltageSource*>(d.get())) {
+    const bool isLoad = nl.output.given && d->name() == nl.output.load;
+    const bool isSource = dynamic_cast<const VoltageSource*>(d.get()) != nullptr ||
+                          dynamic_cast<const CurrentSource*>(d.get()) != nullptr;
+    if (isLoad) {
+      if (isSource) o.loadState = o.outputPower >= 0.0 ? "charging" : "discharging";
+      continue;
+    }
+    if (isSource) {
       o.inputPower += -measure::mean(t, r["p:" + d->name()], w0, w1);
+    } else if (r.has("p:" + d->name())) {
+      o.losses.push_back(
+          {d->name(), std::string(d->kind()), measure::mean(t, r["p:" + d->name()], w0, w1)});
+    }
+    if (dynamic_cast<const VoltageSource*>(d.get())) {
       if (vrms == 0.0) {
         vrms = measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))], w0,
                             w1);
@@ -153,7 +173,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
           measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[2]), vname(c, term[3]))], w0, w1);
     }
   }
-  o.efficiency = o.inputPower > 0 ? o.outputPower / o.inputPower : 0.0;
+  o.efficiency = o.inputPower > 0 && o.outputPower > 0 ? o.outputPower / o.inputPower : 0.0;
   o.powerFactor = vrms * irms > 0 ? o.inputPower / (vrms * irms) : 0.0;
 
   // Stacks.

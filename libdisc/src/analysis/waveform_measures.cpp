@@ -109,8 +109,14 @@ OutputFigures outputFigures(const std::vector<double>& t, const std::vector<doub
                     t.back() - t.front(), cycles, frequency));
   f.mean = mean(t, v, f.window0, f.window1);
   f.ripplePeakToPeak = maximum(t, v, f.window0, f.window1) - minimum(t, v, f.window0, f.window1);
-  const double r = rms(t, v, f.window0, f.window1);
-  f.rippleRms = std::sqrt(std::max(0.0, r * r - f.mean * f.mean));
+  // The rms of (v - mean), integrated directly: sqrt(rms^2 - mean^2) loses every digit of a
+  // small ripple on a high DC level.
+  double s = 0.0;
+  segments(t, v, f.window0, f.window1, [&](double a, double ya, double b, double yb) {
+    const double da = ya - f.mean, db = yb - f.mean;
+    s += (da * da + da * db + db * db) * (b - a) / 3.0;
+  });
+  f.rippleRms = std::sqrt(s / (f.window1 - f.window0));
   return f;
 }
 

@@ -36,8 +36,8 @@ void solveOperatingPoint(System& sys, LinearSolver& ls, std::vector<double>& x,
   // gmin stepping: a large conductance to gnd at every node makes the problem nearly linear;
   // relax it by decades, each solve starting from the last.
   x = guess;
-  bool ok = true;
-  for (double g = 1e-2; g >= options.gmin * 0.999; g /= 10.0) {
+  bool ok = options.gminStepping;
+  for (double g = 1e-2; ok && g >= options.gmin * 0.999; g /= 10.0) {
     ns.gmin = std::max(g, options.gmin);
     last = solveNewton(sys, ls, x, ctx, 0.0, nullptr, ns, stats);
     if (!last.converged) {
@@ -52,6 +52,13 @@ void solveOperatingPoint(System& sys, LinearSolver& ls, std::vector<double>& x,
   }
 
   // Source stepping: ramp every independent source from zero, shrinking the ramp step on failure.
+  if (!options.sourceStepping)
+    throw ConvergenceError(
+        fmt::format("no DC operating point found by Newton{}; the worst equation is {} with "
+                    "residual {:.3g}; allow source stepping",
+                    options.gminStepping ? " and gmin stepping" : "", sys.describe(last.worstRow),
+                    last.worstResidual),
+        last.worstRow >= 0 ? sys.unknownName(last.worstRow) : "", last.worstResidual);
   std::fill(x.begin(), x.end(), 0.0);
   sys.initialState(x);
   double scale = 0.0, step = 0.1;

@@ -1,0 +1,23 @@
+#!/usr/bin/env bash
+# Installs the configured build tree (cmake --install) into a scratch prefix, checks the
+# installed files, then configures, builds and runs tests/consumer against it with
+# find_package(disc). Usage: check.sh <build-dir>
+set -euo pipefail
+build="$1"
+here="$(cd "$(dirname "$0")" && pwd)"
+work="$(mktemp -d)"
+trap 'rm -rf "$work"' EXIT
+cmake --install "$build" --prefix "$work/prefix" >/dev/null
+for f in include/disc/disc.hpp include/disc/version.hpp bin/disc share/disc/plate-types.json; do
+  [ -s "$work/prefix/$f" ] || { echo "not installed: $f"; exit 1; }
+done
+libdir=$(dirname "$(find "$work/prefix" -name discConfig.cmake)")
+[ -f "$libdir/discTargets.cmake" ] || { echo "no discTargets.cmake beside discConfig.cmake"; exit 1; }
+ls "$libdir"/../../libdisc.* >/dev/null || { echo "library not installed"; exit 1; }
+"$work/prefix/bin/disc" --version
+generator=()
+command -v ninja >/dev/null && generator=(-G Ninja)
+cmake -S "$here" -B "$work/build" "${generator[@]}" -DCMAKE_BUILD_TYPE=Release \
+  -DCMAKE_PREFIX_PATH="$work/prefix" >/dev/null
+cmake --build "$work/build" >/dev/null
+"$work/build/consumer"
