@@ -26,6 +26,13 @@ struct RunArgs {
   bool quiet = false;
 };
 
+// --sandbox: include and use read only inside the netlist's folder (docs/limits.md).
+bool gSandbox = false;
+
+disc::IncludePolicy includePolicy() {
+  return gSandbox ? disc::IncludePolicy::Confined : disc::IncludePolicy::Trusted;
+}
+
 /// Progress on stderr for runs longer than a second, only when stderr is a terminal.
 class Progress {
  public:
@@ -52,11 +59,11 @@ class Progress {
 std::string stemOf(const std::string& path) {
   std::string name = path.substr(path.find_last_of('/') + 1);
   const auto dot = name.rfind('.');
-  return dot == std::string::npos || dot == 0 ? name : name.substr(0, dot);
+  return disc::safeFileStem(dot == std::string::npos || dot == 0 ? name : name.substr(0, dot));
 }
 
 int runFile(const RunArgs& a) {
-  disc::Netlist nl = disc::loadNetlist(a.file);
+  disc::Netlist nl = disc::loadNetlist(a.file, includePolicy());
   const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) : a.outDir;
   disc::RunOutcome out;
   {
@@ -89,7 +96,7 @@ int runFile(const RunArgs& a) {
 }
 
 int checkFile(const std::string& file) {
-  disc::Netlist nl = disc::loadNetlist(file);
+  disc::Netlist nl = disc::loadNetlist(file, includePolicy());
   fmt::print("{}: ok ({} elements, {} nodes, {} analyses{})\n", file, nl.circuit.devices().size(),
              nl.circuit.nodeCount(), nl.analyses.size(), nl.output.given ? ", output named" : "");
   return 0;
@@ -171,7 +178,7 @@ int runExample(const ExampleArgs& a) {
                         {"abstol", opt.tol.voltage},
                         {"wall_s", s.wallSeconds},
                         {"peak_rss_kib", peakRssKib()}};
-    std::cout << j.dump(2) << "\n";
+    std::cout << j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << "\n";
     return 0;
   }
   fmt::print("{}: {}\n", a.name, disc::reference::describe(a.name));
@@ -257,6 +264,9 @@ int main(int argc, char** argv) {
   CLI::App app{"disc: simulate power supplies with selenium and copper-oxide plate rectifiers"};
   app.set_version_flag("--version", std::string("disc ") + disc::kVersion);
   app.require_subcommand(1);
+  app.add_flag("--sandbox", gSandbox,
+               "Let include and use read only files inside the netlist's folder (for netlists "
+               "from other people)");
 
   RunArgs ra;
   auto* run = app.add_subcommand("run", "Simulate a netlist and print the supply report");
@@ -355,6 +365,8 @@ int main(int argc, char** argv) {
     const int code = app.exit(e);
     return code == 0 ? 0 : kExitInput;
   }
+  // The one error boundary: every failure becomes a message and exit code 2 (input) or 3
+  // (simulation); nothing escapes to std::terminate.
   try {
     if (run->parsed()) return runFile(ra);
     if (check->parsed()) return checkFile(checkPath);
@@ -370,13 +382,24 @@ int main(int argc, char** argv) {
       return runExample(ex);
     }
   } catch (const disc::NetlistError& e) {
-    fmt::print(stderr, "{}\n", e.what());
+    fmt::print(stderr, "{}\n", e.what());  // each diagnostic is bounded already
     return kExitInput;
   } catch (const disc::InputError& e) {
-    fmt::print(stderr, "disc: error: {}\n", e.what());
+    fmt::print(stderr, "disc: error: {}\n", disc::boundedMessage(e.what(), 2000));
     return kExitInput;
   } catch (const disc::Error& e) {
-    fmt::print(stderr, "disc: simulation failed: {}\n", e.what());
+    fmt::print(stderr, "disc: simulation failed: {}\n", disc::boundedMessage(e.what(), 2000));
+    return kExitSimulation;
+  } catch (const std::bad_alloc&) {
+    fmt::print(stderr,
+               "disc: simulation failed: out of memory; make the circuit or the run smaller\n");
+    return kExitSimulation;
+  } catch (const std::exception& e) {
+    fmt::print(stderr, "disc: internal error (please report it): {}\n",
+               disc::boundedMessage(e.what(), 2000));
+    return kExitSimulation;
+  } catch (...) {
+    fmt::print(stderr, "disc: internal error (please report it): unknown exception\n");
     return kExitSimulation;
   }
   return 0;

@@ -73,7 +73,7 @@ TEST_CASE("Each error class is located and explained", "[netlist][parser]") {
               "is a current, but this parameter is a voltage");
   expectError(kOk + "resistor R2 a gnd -5\n", 3, 19, "must be positive");
   expectError(kOk + "capacitor C1 a gnd 0F\n", 3, 20, "must be positive");
-  expectError(kOk + "stack S1 a gnd type=se-25mm-square plates=0\n", 3, 36, "at least 1");
+  expectError(kOk + "stack S1 a gnd type=se-25mm-square plates=0\n", 3, 36, "from 1 to 1000");
   expectError(kOk + "stack S1 a gnd type=se-25mm-sqare\n", 3, 16, "did you mean 'se-25mm-square'");
   expectError(kOk + "include \"missing.disc\"\n", 3, 9, "not found");
   expectError(kOk + "resistor R2 a danglng 1k\n", 3, 15, "connected only once");

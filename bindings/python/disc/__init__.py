@@ -22,14 +22,17 @@ Trace = _disc.Trace
 judge_plate_health = _disc.judge_plate_health
 
 
-def load(path):
-    """Reads and checks a .disc netlist file; raises NetlistError with file, line and column."""
-    return Circuit(_net=_disc.load(str(path)))
+def load(path, sandbox=False):
+    """Reads and checks a .disc netlist file; raises NetlistError with file, line and column.
+    With sandbox=True, include and use read only files inside the netlist's folder (for
+    netlists from other people, docs/limits.md)."""
+    return Circuit(_net=_disc.load(str(path), bool(sandbox)))
 
 
-def parse(text, name="<text>"):
-    """Parses netlist text."""
-    return Circuit(_net=_disc.parse(text, name))
+def parse(text, name="<text>", sandbox=False):
+    """Parses netlist text; with sandbox=True, include and use stay inside the folder of
+    `name`."""
+    return Circuit(_net=_disc.parse(text, name, bool(sandbox)))
 
 
 def plate_types():

@@ -206,9 +206,23 @@ void registerCircuit(py::module_& m) {
         return n;
       },
       py::arg("name"), "A reference circuit built in code (see `disc example list`).");
-  m.def("load", &loadNetlist, py::arg("path"), "Reads and checks a .disc netlist file.");
-  m.def("parse", &parseNetlist, py::arg("text"), py::arg("name") = "<text>",
-        "Parses netlist text.");
+  auto policy = [](bool sandbox) {
+    return sandbox ? IncludePolicy::Confined : IncludePolicy::Trusted;
+  };
+  m.def(
+      "load",
+      [policy](const std::string& path, bool sandbox) {
+        return loadNetlist(path, policy(sandbox));
+      },
+      py::arg("path"), py::arg("sandbox") = false,
+      "Reads and checks a .disc netlist file; sandbox confines include and use to its folder.");
+  m.def(
+      "parse",
+      [policy](const std::string& text, const std::string& name, bool sandbox) {
+        return parseNetlist(text, name, policy(sandbox));
+      },
+      py::arg("text"), py::arg("name") = "<text>", py::arg("sandbox") = false,
+      "Parses netlist text; sandbox confines include and use to the folder of `name`.");
 }
 
 }  // namespace disc::python

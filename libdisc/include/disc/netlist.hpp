@@ -9,6 +9,7 @@
 #include "disc/analysis.hpp"
 #include "disc/circuit.hpp"
 #include "disc/error.hpp"
+#include "disc/limits.hpp"
 #include "disc/plate_type.hpp"
 
 namespace disc {
@@ -24,7 +25,8 @@ struct SourceLocation {
 struct Diagnostic {
   SourceLocation where;
   std::string message;
-  std::string lineText;  ///< the offending source line, for the caret display
+  std::string lineText;  ///< the offending source line (at most about 80 bytes of it, escaped)
+  int caret = 0;         ///< display cell of lineText under which the caret stands
   /// "file:line:col: error: message", the line, and a caret under the fault.
   std::string format() const;
 };
@@ -72,7 +74,8 @@ Netlist emptyNetlist(const std::string& name = "<text>");
 /// Adds statements (any of the language) to a netlist, with the same checks and messages as a
 /// file; `name` stands for the text in messages. Throws NetlistError; the netlist keeps what
 /// was added before the failing text.
-void appendNetlist(Netlist& netlist, const std::string& text, const std::string& name = "<text>");
+void appendNetlist(Netlist& netlist, const std::string& text, const std::string& name = "<text>",
+                   IncludePolicy policy = IncludePolicy::Trusted);
 /// The whole-circuit checks (dangling nodes, parts without a path to gnd, loops of voltage
 /// sources and inductors). Throws NetlistError.
 void checkNetlist(const Netlist& netlist);
@@ -84,8 +87,10 @@ void addElement(Netlist& netlist, const std::string& kind, const std::string& na
 
 /// Parses netlist text; `name` stands for the file in messages and anchors relative paths of
 /// `include` and `use` (its directory). Throws NetlistError listing every problem found.
-Netlist parseNetlist(const std::string& text, const std::string& name = "<text>");
-/// Reads and parses a .disc file.
-Netlist loadNetlist(const std::string& path);
+/// `policy` says which files `include` and `use` may read (docs/limits.md).
+Netlist parseNetlist(const std::string& text, const std::string& name = "<text>",
+                     IncludePolicy policy = IncludePolicy::Trusted);
+/// Reads and parses a .disc file (a regular file of at most InputLimits::kNetlistBytes).
+Netlist loadNetlist(const std::string& path, IncludePolicy policy = IncludePolicy::Trusted);
 
 }  // namespace disc

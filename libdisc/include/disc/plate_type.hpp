@@ -103,7 +103,7 @@ class PlateLibrary {
   /// The built-in types (shipped JSON compiled into the library).
   static const PlateLibrary& builtIn();
   /// Parses a JSON document holding {"schema": 1, "types": [...]} or a single type object.
-  static PlateLibrary fromJson(const std::string& text, const std::string& origin = "<json>");
+  static PlateLibrary fromJson(std::string text, const std::string& origin = "<json>");
   static PlateLibrary load(const std::string& path);
 
   const PlateType& at(const std::string& name) const;  ///< throws InputError with suggestions

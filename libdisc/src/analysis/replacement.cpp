@@ -606,7 +606,7 @@ std::string replacementJson(const ReplacementDesign& r) {
   j["disclaimer"] = r.disclaimer;
   j["runs"] = r.runs;
   j["netlist"] = r.netlist;
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
 
 }  // namespace disc

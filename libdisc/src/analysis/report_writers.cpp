@@ -8,6 +8,7 @@
 #include <nlohmann/json.hpp>
 
 #include "disc/error.hpp"
+#include "disc/limits.hpp"
 #include "disc/session.hpp"
 
 #include "analysis/text_blocks.hpp"
@@ -239,7 +240,7 @@ std::string reportJson(const SupplyReport& r) {
               {"rejected_steps", r.stats.rejectedSteps},
               {"newton_iterations", r.stats.newtonIterations},
               {"wall_s", r.stats.wallSeconds}};
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
 
 namespace {
@@ -364,13 +365,14 @@ std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl,
                      svgPlot("Output voltage", "time (s)", "V", {{outSig, t, (*r)[outSig]}}));
   std::vector<PlotSeries> temps;
   for (const auto& st : rep.stacks) {
+    const std::string stem = safeFileStem(st.name);
     PlotSeries cur{"i:" + st.name, {}, {}}, rev{"vrev:" + st.name, {}, {}};
     window((*r)["i:" + st.name], cur.x, cur.y);
     window((*r)["vrev:" + st.name], rev.x, rev.y);
-    plots.emplace_back(st.name + "-current", svgPlot(st.name + ": current over the settled window",
-                                                     "time (s)", "A", {cur}));
+    plots.emplace_back(stem + "-current", svgPlot(st.name + ": current over the settled window",
+                                                  "time (s)", "A", {cur}));
     plots.emplace_back(
-        st.name + "-reverse-voltage",
+        stem + "-reverse-voltage",
         svgPlot(st.name + ": largest reverse voltage per plate", "time (s)", "V", {rev}));
     std::vector<PlotSeries> iv;
     const int traced = std::min(st.plates * st.arms, 12);
@@ -386,7 +388,7 @@ std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl,
       s.y = i;
       iv.push_back(std::move(s));
     }
-    plots.emplace_back(st.name + "-plate-iv",
+    plots.emplace_back(stem + "-plate-iv",
                        svgPlot(st.name + ": plate I-V trajectories", "plate voltage (V)", "A", iv));
     PlotSeries tp{"hottest plate of " + st.name, t, (*r)["temp:" + st.name]};
     for (double& v : tp.y) v -= 273.15;
@@ -511,6 +513,9 @@ std::vector<std::string> writeFiles(const std::string& dir,
   if (ec) throw Error(fmt::format("cannot create the output folder '{}': {}", dir, ec.message()));
   std::vector<std::string> written;
   for (const auto& [name, content] : files) {
+    // Names are file names, never paths: nothing is written outside `dir`.
+    if (name != safeFileStem(name))
+      throw InputError(fmt::format("'{}' is not a safe file name", excerpt(name)));
     const std::string path = (std::filesystem::path(dir) / name).string();
     writeFileAtomically(path, content);
     written.push_back(path);

@@ -4,12 +4,14 @@
 #include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <random>
 #include <type_traits>
 
 #include "check.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
+#include "disc/limits.hpp"
 #include "junction_math.hpp"
 #include "plate/plate_model.hpp"
 
@@ -63,6 +65,15 @@ void StackOptions::validate() const {
   if (plates < 1)
     throw InputError(fmt::format("a stack needs at least one plate per arm, got {}", plates));
   if (arms < 1) throw InputError(fmt::format("a stack needs at least one arm, got {}", arms));
+  if (plates > InputLimits::kPlatesPerArm)
+    throw InputError(fmt::format("{} plates per arm is above the limit of {}", plates,
+                                 InputLimits::kPlatesPerArm));
+  if (arms > InputLimits::kArms)
+    throw InputError(
+        fmt::format("{} parallel arms is above the limit of {}", arms, InputLimits::kArms));
+  if (plates * arms > InputLimits::kPlatesPerStack)
+    throw InputError(fmt::format("{} plates x {} arms is above the limit of {} plates per stack",
+                                 plates, arms, InputLimits::kPlatesPerStack));
   for (double s : {spread.js, spread.rs, spread.gsh})
     if (!(s >= 0.0 && s <= 3.0))
       throw InputError(fmt::format("spread sigmas must lie in [0, 3], got {}", s));
@@ -114,7 +125,9 @@ const std::vector<DeviceParameter>& Stack::parameterTable() const {
                              StackOptions o = s.opt_;
                              using T = std::remove_reference_t<decltype(o.*member)>;
                              if constexpr (std::is_integral_v<T>) {
-                               if (v != std::floor(v) || v < 0)
+                               // Checked before the cast: a value beyond T is undefined.
+                               if (v != std::floor(v) || v < 0 ||
+                                   v > static_cast<double>(std::numeric_limits<T>::max()))
                                  throw InputError(fmt::format(
                                      "{}: {} must be a whole number, got {}", s.name_, name, v));
                              }

@@ -31,6 +31,8 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
     }
   };
   for (const auto& spec : specs) {
+    // A signal asked for twice is one column: Result keeps one, so must the recorder.
+    if (result_.has(spec)) continue;
     const auto colon = spec.find(':');
     if (colon == std::string::npos || colon == 0 || colon + 1 == spec.size())
       throw InputError(fmt::format(

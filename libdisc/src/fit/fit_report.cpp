@@ -6,6 +6,7 @@
 #include <cmath>
 #include <nlohmann/json.hpp>
 
+#include "disc/limits.hpp"
 #include "disc/plate_fit.hpp"
 #include "disc/session.hpp"
 #include "disc/supply_report.hpp"
@@ -92,7 +93,7 @@ std::string fitReportJson(const PlateFit& fit) {
                  {"findings", h.findings}};
   j["cautions"] = safetyCautions(isSelenium(fit));
   j["disclaimer"] = simulationDisclaimer();
-  return j.dump(2) + "\n";
+  return j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
 
 std::vector<std::pair<std::string, std::string>> fitPlots(const PlateFit& fit) {
@@ -144,7 +145,7 @@ std::vector<std::pair<std::string, std::string>> fitPlots(const PlateFit& fit) {
 
 std::vector<std::string> writeFitFiles(const PlateFit& fit, const std::string& dir) {
   std::vector<std::pair<std::string, std::string>> files = {
-      {fit.type.name + ".json", PlateLibrary::toJson(fit.type)},
+      {safeFileStem(fit.type.name) + ".json", PlateLibrary::toJson(fit.type)},
       {"fit-report.txt", fitReportText(fit)},
       {"fit-report.json", fitReportJson(fit)}};
   for (const auto& [name, svg] : fitPlots(fit)) files.emplace_back(name + ".svg", svg);

@@ -12,6 +12,9 @@
 #include <optional>
 #include <sstream>
 
+#include "core/safe_io.hpp"
+#include "disc/limits.hpp"
+
 namespace disc {
 namespace {
 
@@ -124,7 +127,7 @@ Column parseHeaderCell(const std::string& cell, const std::string& file, int lin
       return c;
     }
   throw TraceError(file, line, col, cell,
-                   fmt::format("unknown unit '{}' for the {} column: use {}", unit,
+                   fmt::format("unknown unit '{}' for the {} column: use {}", excerpt(unit),
                                quantityName(*q), unitsOf(*q)));
 }
 
@@ -141,11 +144,12 @@ double parseCell(const std::string& cell, const std::string& file, int line, int
     const std::string hint =
         cell.find(',') != std::string::npos ? " (the decimal separator must be '.')" : "";
     throw TraceError(file, line, col, column.header,
-                     fmt::format("'{}' is not a number{}", cell, hint));
+                     fmt::format("'{}' is not a number{}", excerpt(cell), hint));
   }
   if (!std::isfinite(value))
-    throw TraceError(file, line, col, column.header,
-                     fmt::format("'{}' is not a finite number: remove or repair the row", cell));
+    throw TraceError(
+        file, line, col, column.header,
+        fmt::format("'{}' is not a finite number: remove or repair the row", excerpt(cell)));
   return value * column.scale + column.offset;
 }
 
@@ -153,16 +157,26 @@ double parseCell(const std::string& cell, const std::string& file, int line, int
 
 TraceError::TraceError(const std::string& file, int line, int column, const std::string& columnName,
                        const std::string& message)
-    : InputError(column > 0 ? fmt::format("{}:{}: column {} '{}': {}", file, line, column,
-                                          columnName, message)
-                 : line > 0 ? fmt::format("{}:{}: {}", file, line, message)
-                            : fmt::format("{}: {}", file, message)),
+    : InputError(column > 0 ? fmt::format("{}:{}: column {} '{}': {}", excerpt(file), line, column,
+                                          excerpt(columnName), message)
+                 : line > 0 ? fmt::format("{}:{}: {}", excerpt(file), line, message)
+                            : fmt::format("{}: {}", excerpt(file), message)),
       file_(file),
       line_(line),
       column_(column),
       columnName_(columnName) {}
 
-Trace parseTrace(const std::string& text, const std::string& name) {
+Trace parseTrace(const std::string& input, const std::string& name) {
+  std::string text = input;
+  detail::stripBom(text);
+  if (const std::size_t bad = detail::invalidUtf8At(text); bad != std::string::npos) {
+    int line = 0, col = 0;
+    detail::lineColumnOf(text, bad, line, col);
+    throw TraceError(name, line, 0, "",
+                     fmt::format("byte {} of the line (0x{:02x}) is not UTF-8 text: export the "
+                                 "trace as UTF-8 or ASCII CSV",
+                                 col, static_cast<unsigned char>(text[bad])));
+  }
   Trace trace;
   trace.source = name;
   std::istringstream in(text);
@@ -202,7 +216,7 @@ Trace parseTrace(const std::string& text, const std::string& name) {
                            fmt::format("the header names no {} column: a trace needs "
                                        "'voltage [V]' and 'current [mA]' (or other units) at "
                                        "least; the header read was '{}'",
-                                       quantityName(q), line));
+                                       quantityName(q), excerpt(line)));
       continue;
     }
     const auto cells = split(line, sep);
@@ -247,11 +261,16 @@ Trace parseTrace(const std::string& text, const std::string& name) {
 }
 
 Trace loadTrace(const std::string& path) {
-  std::ifstream f(path, std::ios::binary);
-  if (!f) throw TraceError(path, 0, 0, "", "cannot open the file for reading");
-  std::ostringstream text;
-  text << f.rdbuf();
-  return parseTrace(text.str(), path);
+  std::string text;
+  try {
+    text = detail::readInputFile(path, InputLimits::kTraceBytes, "trace file");
+  } catch (const InputError& e) {
+    std::string why = e.what();
+    const std::string self = excerpt(path) + ": ";
+    if (why.rfind(self, 0) == 0) why.erase(0, self.size());
+    throw TraceError(path, 0, 0, "", why);
+  }
+  return parseTrace(text, path);
 }
 
 }  // namespace disc

@@ -6,16 +6,18 @@
 #include <fstream>
 #include <sstream>
 
+#include "core/safe_io.hpp"
+
 namespace disc {
 
 std::string Diagnostic::format() const {
   std::string out =
-      fmt::format("{}:{}:{}: error: {}", where.file, where.line, where.column, message);
+      fmt::format("{}:{}:{}: error: {}", excerpt(where.file), where.line, where.column, message);
   if (!lineText.empty()) {
     out += "\n  " + lineText + "\n  ";
-    // Columns count bytes; keep tabs so the caret lines up under them.
-    for (int k = 1; k < where.column && k <= static_cast<int>(lineText.size()); ++k)
-      out += lineText[static_cast<std::size_t>(k - 1)] == '\t' ? '\t' : ' ';
+    // The caret sits under the display cell `caret` of lineText; tabs are kept so it lines up.
+    for (int k = 0; k < caret && k < static_cast<int>(lineText.size()); ++k)
+      out += lineText[static_cast<std::size_t>(k)] == '\t' ? '\t' : ' ';
     out += '^';
   }
   return out;
@@ -53,20 +55,104 @@ void Diagnostics::addFile(const std::string& file, const std::string& text) {
   files_.emplace_back(file, splitLines(text));
 }
 
-void Diagnostics::error(const SourceLocation& where, std::string message) {
-  Diagnostic d{where, std::move(message), ""};
+namespace {
+
+/// The part of a source line shown under a message: at most InputLimits::kQuote bytes around
+/// byte column `column`, control bytes escaped; `caret` is the column's cell in the result.
+std::string shownLine(const std::string& line, int column, int& caret) {
+  const std::size_t col = column > 0 ? static_cast<std::size_t>(column - 1) : 0;
+  const std::size_t half = InputLimits::kQuote / 2;
+  std::size_t start = col > half ? col - half : 0;
+  while (start > 0 && start < line.size() && (line[start] & 0xc0) == 0x80) --start;
+  std::size_t end = std::min(line.size(), start + InputLimits::kQuote);
+  while (end < line.size() && (line[end] & 0xc0) == 0x80) ++end;
+  std::string out = start > 0 ? "..." : "";
+  caret = static_cast<int>(out.size());
+  // A line that is not UTF-8 (the fault being reported) shows every non-ASCII byte escaped.
+  const bool utf8 = invalidUtf8At(line) == std::string::npos;
+  for (std::size_t k = start; k < end; ++k) {
+    const auto c = static_cast<unsigned char>(line[k]);
+    const std::string piece = (c < 0x20 && c != '\t') || c == 0x7f || (c >= 0x80 && !utf8)
+                                  ? fmt::format("\\x{:02x}", c)
+                                  : std::string(1, line[k]);
+    if (k < col && (c & 0xc0) != 0x80) caret += static_cast<int>(piece.size());
+    out += piece;
+  }
+  if (end < line.size()) out += "...";
+  return out;
+}
+
+}  // namespace
+
+void Diagnostics::error(const SourceLocation& where, std::string message, bool showLine) {
+  // A flood of errors (a file that is no netlist) is cut; the count of the rest is kept.
+  if (list_.size() >= kMaxShown) {
+    ++dropped_;
+    return;
+  }
+  Diagnostic d{where, boundedMessage(message), "", 0};
   for (const auto& [file, lines] : files_)
-    if (file == where.file && where.line >= 1 && where.line <= static_cast<int>(lines.size()))
-      d.lineText = lines[static_cast<std::size_t>(where.line - 1)];
+    if (showLine && file == where.file && where.line >= 1 &&
+        where.line <= static_cast<int>(lines.size()))
+      d.lineText =
+          shownLine(lines[static_cast<std::size_t>(where.line - 1)], where.column, d.caret);
   list_.push_back(std::move(d));
 }
 
-bool readFile(const std::string& path, std::string& text) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return false;
-  std::stringstream ss;
-  ss << in.rdbuf();
-  text = ss.str();
+std::vector<Diagnostic> Diagnostics::list() const {
+  std::vector<Diagnostic> out = list_;
+  if (dropped_ > 0 && !out.empty())
+    out.push_back({out.back().where,
+                   fmt::format("{} more error(s) not shown; mend the ones above first", dropped_),
+                   "", 0});
+  return out;
+}
+
+ReadContext ReadContext::start(const std::string& name, IncludePolicy policy) {
+  ReadContext c;
+  c.policy = policy;
+  const std::string real = realPath(name);
+  c.stack.push_back(real.empty() ? name : real);
+  const std::string dir = directoryOf(real.empty() ? name : real);
+  c.root = realPath(dir.empty() ? "." : dir);
+  return c;
+}
+
+bool ReadContext::open(const std::string& path, const SourceLocation& where, const char* what,
+                       std::size_t maxBytes, Diagnostics& diags, std::string& text,
+                       std::string& real) {
+  real = realPath(path);
+  if (real.empty()) {
+    diags.error(where, fmt::format("{} '{}' not found", what, excerpt(path)));
+    return false;
+  }
+  if (policy == IncludePolicy::Confined && !insideFolder(real, root)) {
+    diags.error(where, fmt::format("{} '{}' lies outside the netlist's folder, and reading is "
+                                   "confined to it (the sandbox): copy the file beside the "
+                                   "netlist",
+                                   what, excerpt(path)));
+    return false;
+  }
+  if (std::find(stack.begin(), stack.end(), real) != stack.end()) {
+    diags.error(where, fmt::format("include cycle: '{}' is already being read", excerpt(path)));
+    return false;
+  }
+  if (static_cast<int>(stack.size()) > InputLimits::kIncludeDepth) {
+    diags.error(where,
+                fmt::format("includes nest deeper than {} files", InputLimits::kIncludeDepth));
+    return false;
+  }
+  if (++filesRead > InputLimits::kFilesRead) {
+    diags.error(where, fmt::format("more than {} include and use files in one netlist",
+                                   InputLimits::kFilesRead));
+    return false;
+  }
+  try {
+    text = readInputFile(real, maxBytes, what);
+  } catch (const InputError& e) {
+    diags.error(where, e.what());
+    return false;
+  }
   return true;
 }
 
@@ -136,10 +222,26 @@ void tokenize(const std::vector<Char>& chars, const std::string& file, Diagnosti
 
 }  // namespace
 
-std::vector<Statement> lex(const std::string& text, const std::string& file, Diagnostics& diags,
-                           std::vector<std::string>& includeStack) {
+std::vector<Statement> lex(std::string text, const std::string& file, Diagnostics& diags,
+                           ReadContext& context) {
+  stripBom(text);
   diags.addFile(file, text);
   std::vector<Statement> statements;
+  if (const std::size_t bad = invalidUtf8At(text); bad != std::string::npos) {
+    int line = 0, col = 0;
+    lineColumnOf(text, bad, line, col);
+    diags.error({file, line, col},
+                fmt::format("byte 0x{:02x} is not UTF-8 text: save the file as UTF-8 (or plain "
+                            "ASCII)",
+                            static_cast<unsigned char>(text[bad])));
+    return statements;
+  }
+  if (const std::size_t nul = text.find('\0'); nul != std::string::npos) {
+    int line = 0, col = 0;
+    lineColumnOf(text, nul, line, col);
+    diags.error({file, line, col}, "a NUL byte: this is binary data, not a netlist");
+    return statements;
+  }
   const std::vector<std::string> lines = splitLines(text);
   std::vector<Char> logical;
   for (std::size_t li = 0; li < lines.size(); ++li) {
@@ -175,19 +277,13 @@ std::vector<Statement> lex(const std::string& text, const std::string& file, Dia
         continue;
       }
       const std::string target = resolvePath(file, st.tokens[1].text);
-      if (std::find(includeStack.begin(), includeStack.end(), target) != includeStack.end()) {
-        diags.error(st.tokens[1].where,
-                    fmt::format("include cycle: '{}' is already being read", st.tokens[1].text));
+      std::string inner, real;
+      if (!context.open(target, st.tokens[1].where, "include file", InputLimits::kNetlistBytes,
+                        diags, inner, real))
         continue;
-      }
-      std::string inner;
-      if (!readFile(target, inner)) {
-        diags.error(st.tokens[1].where, fmt::format("include file '{}' not found", target));
-        continue;
-      }
-      includeStack.push_back(target);
-      auto nested = lex(inner, target, diags, includeStack);
-      includeStack.pop_back();
+      context.stack.push_back(real);
+      auto nested = lex(std::move(inner), target, diags, context);
+      context.stack.pop_back();
       statements.insert(statements.end(), std::make_move_iterator(nested.begin()),
                         std::make_move_iterator(nested.end()));
       continue;

@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "disc/limits.hpp"
 #include "disc/netlist.hpp"
 
 namespace disc::detail {
@@ -27,22 +28,39 @@ struct Statement {
 class Diagnostics {
  public:
   void addFile(const std::string& file, const std::string& text);
-  void error(const SourceLocation& where, std::string message);
+  /// Records an error; `showLine` false leaves the source line out (a file that is no netlist).
+  void error(const SourceLocation& where, std::string message, bool showLine = true);
   bool empty() const { return list_.empty(); }
-  const std::vector<Diagnostic>& list() const { return list_; }
+  /// The diagnostics, the last one counting those cut after kMaxShown.
+  std::vector<Diagnostic> list() const;
+  static constexpr std::size_t kMaxShown = 50;
 
  private:
   std::vector<std::pair<std::string, std::vector<std::string>>> files_;
   std::vector<Diagnostic> list_;
+  std::size_t dropped_ = 0;
+};
+
+/// What one netlist reading has opened so far: the real paths of the files being read (for
+/// cycles), how many files were read, and who may be read.
+struct ReadContext {
+  std::vector<std::string> stack;  ///< real paths of the files being read, outermost first
+  int filesRead = 0;
+  IncludePolicy policy = IncludePolicy::Trusted;
+  std::string root;  ///< real folder a Confined reading stays inside
+  /// The ReadContext of a reading that starts at `name` (a file, or a name given for text).
+  static ReadContext start(const std::string& name, IncludePolicy policy);
+  /// Checks that `path` (written at `where`) may be read and reads it; on failure reports at
+  /// `where` and returns false. `what` names the file's role ("include file", "plate file").
+  bool open(const std::string& path, const SourceLocation& where, const char* what,
+            std::size_t maxBytes, Diagnostics& diags, std::string& text, std::string& real);
 };
 
 /// Splits text into statements, expanding `include "file"` (paths relative to the including
 /// file). Lexical errors go to `diags`.
-std::vector<Statement> lex(const std::string& text, const std::string& file, Diagnostics& diags,
-                           std::vector<std::string>& includeStack);
+std::vector<Statement> lex(std::string text, const std::string& file, Diagnostics& diags,
+                           ReadContext& context);
 
-/// Reads a whole file; returns false if it cannot be opened.
-bool readFile(const std::string& path, std::string& text);
 /// The directory part of a path ("" for a bare name).
 std::string directoryOf(const std::string& path);
 /// `relative` resolved against `base`'s directory (absolute paths unchanged).

@@ -7,6 +7,7 @@
 #include <numeric>
 #include <set>
 
+#include "core/safe_io.hpp"
 #include "core/text_match.hpp"
 #include "disc/devices/capacitor.hpp"
 #include "disc/devices/diode.hpp"
@@ -18,6 +19,7 @@
 #include "disc/devices/switch.hpp"
 #include "disc/devices/transformer.hpp"
 #include "disc/devices/valve_load.hpp"
+#include "disc/limits.hpp"
 #include "disc/netlist.hpp"
 #include "lexer.hpp"
 #include "units.hpp"
@@ -159,12 +161,12 @@ struct ParamError {
   std::string param, message;
 };
 
-int wholeNumber(const Params& p, const std::string& key, int fallback, int lo) {
+int wholeNumber(const Params& p, const std::string& key, int fallback, int lo, int hi) {
   if (!p.num.count(key)) return fallback;
   const double v = p.num.at(key);
-  if (v != std::floor(v) || v < lo || v > 1e9)
-    throw ParamError{key,
-                     fmt::format("{} must be a whole number of at least {}, got {}", key, lo, v)};
+  if (v != std::floor(v) || v < lo || v > hi)
+    throw ParamError{
+        key, fmt::format("{} must be a whole number from {} to {}, got {}", key, lo, hi, v)};
   return static_cast<int>(v);
 }
 
@@ -261,11 +263,13 @@ Waveform waveformOf(const Params& p, const std::string& shape, bool current) {
 /// Builds a netlist from statements, collecting every problem.
 class Builder {
  public:
-  Builder(Netlist& nl, Diagnostics& d) : nl_(nl), diags_(d) {}
+  Builder(Netlist& nl, Diagnostics& d, ReadContext* context = nullptr)
+      : nl_(nl), diags_(d), context_(context) {}
 
   /// Setup statements first, then elements, then output, record and run, so that order in the
   /// file does not matter.
-  void append(const std::vector<Statement>& statements) {
+  void append(std::vector<Statement> statements) {
+    dropNonNetlists(statements);
     for (const auto& s : statements)
       if (isSetup(word(s))) setup(s);
     for (const auto& s : statements)
@@ -292,6 +296,7 @@ class Builder {
  private:
   Netlist& nl_;
   Diagnostics& diags_;
+  ReadContext* context_;  // the reading, for `use`; null when only checking
   std::map<std::string, SourceLocation>& deviceWhere_ = nl_.elementWhere;
   std::map<std::string, std::vector<SourceLocation>>& nodeRefs_ = nl_.nodeRefs;
 
@@ -301,7 +306,37 @@ class Builder {
   static bool isSetup(const std::string& w) {
     return w == "title" || w == "ambient" || w == "plate-type" || w == "use";
   }
-  void error(const SourceLocation& at, std::string msg) { diags_.error(at, std::move(msg)); }
+  void error(const SourceLocation& at, std::string msg, bool showLine = true) {
+    diags_.error(at, std::move(msg), showLine);
+  }
+
+  static bool known(const Statement& s) {
+    const std::string w = word(s);
+    return isSetup(w) || kindOf(w) || w == "output" || w == "record" || w == "run";
+  }
+
+  /// A file most of whose statements start with no statement word is no netlist (a wrong
+  /// include, a binary or a text file): it is reported once, without echoing its lines.
+  void dropNonNetlists(std::vector<Statement>& statements) {
+    std::map<std::string, std::pair<int, int>> counts;  // file: (unknown, all)
+    for (const auto& s : statements) {
+      auto& c = counts[s.where.file];
+      c.first += known(s) ? 0 : 1;
+      ++c.second;
+    }
+    std::set<std::string> foreign;
+    for (const auto& [file, c] : counts)
+      if (c.first >= 3 && 2 * c.first > c.second) {
+        foreign.insert(file);
+        error({file, 1, 1},
+              fmt::format("this is not a netlist: {} of its {} lines start with no statement "
+                          "word (resistor, stack, run, ...); check the file name",
+                          c.first, c.second),
+              false);
+      }
+    if (foreign.empty()) return;
+    std::erase_if(statements, [&](const Statement& s) { return foreign.count(s.where.file) > 0; });
+  }
 
   void unknownStatement(const Statement& s) {
     const Token& t = s.tokens.front();
@@ -316,6 +351,15 @@ class Builder {
     }
     error(t.where, fmt::format("unknown statement or element kind '{}'{}", t.text,
                                didYouMean(t.text, statementWords())));
+  }
+
+  bool tooMany_ = false;  // the element limit was reported
+
+  static std::string nameRule(const std::string& what, const std::string& name) {
+    return fmt::format(
+        "'{}' is not a valid {} name: use 1 to {} ASCII letters, digits and _ - . +, starting "
+        "with a letter, digit or _",
+        name, what, InputLimits::kNameLength);
   }
 
   std::optional<double> number(const std::string& text, Dim dim, const SourceLocation& at) {
@@ -344,8 +388,17 @@ class Builder {
       if (t.size() != 2 || t[1].keyValue)
         return error(s.where, "use takes one file name: use \"plate.json\"");
       const std::string path = resolvePath(s.where.file, t[1].text);
+      std::string text, real;
+      if (!context_) return error(t[1].where, "use needs a file reading");
+      if (!context_->open(path, t[1].where, "plate file", InputLimits::kPlateFileBytes, diags_,
+                          text, real))
+        return;
       try {
-        const PlateLibrary lib = PlateLibrary::load(path);
+        const PlateLibrary lib = PlateLibrary::fromJson(text, path);
+        if (nl_.plateTypes.types().size() + lib.types().size() >
+            static_cast<std::size_t>(InputLimits::kPlateTypes))
+          return error(t[1].where, fmt::format("more than {} plate types in one netlist",
+                                               InputLimits::kPlateTypes));
         for (const auto& pt : lib.types()) nl_.plateTypes.add(pt);
       } catch (const InputError& e) {
         error(t[1].where, e.what());
@@ -353,6 +406,11 @@ class Builder {
     } else if (w == "plate-type") {
       if (t.size() < 3 || t[1].keyValue)
         return error(s.where, "plate-type NAME base=TYPE key=value ...");
+      if (!validName(t[1].text)) return error(t[1].where, nameRule("plate type", t[1].text));
+      if (nl_.plateTypes.types().size() >= static_cast<std::size_t>(InputLimits::kPlateTypes) &&
+          !nl_.plateTypes.find(t[1].text))
+        return error(t[1].where, fmt::format("more than {} plate types in one netlist",
+                                             InputLimits::kPlateTypes));
       std::string base;
       std::map<std::string, double> changes;
       std::map<std::string, SourceLocation> where;
@@ -399,6 +457,14 @@ class Builder {
     if (t.size() < 2 || t[1].keyValue)
       return error(s.where, fmt::format("a {} needs a name after the kind", spec.kind));
     const std::string name = t[1].text;
+    if (!validName(name)) return error(t[1].where, nameRule(spec.kind, name));
+    if (nl_.circuit.devices().size() >= static_cast<std::size_t>(InputLimits::kElements)) {
+      if (!tooMany_)
+        error(t[1].where,
+              fmt::format("more than {} elements in one circuit", InputLimits::kElements));
+      tooMany_ = true;
+      return;
+    }
     std::vector<const Token*> positional;
     Params p;
     std::string shape;
@@ -484,7 +550,14 @@ class Builder {
       return;
     }
     std::vector<std::string> nodes;
-    for (const Token* tok : positional) nodes.push_back(tok->text);
+    for (const Token* tok : positional) {
+      // A coupling names inductors: element names, which follow the same rule.
+      if (!validName(tok->text))
+        return error(
+            tok->where,
+            nameRule(std::string(spec.kind) == "coupling" ? "inductor" : "node", tok->text));
+      nodes.push_back(tok->text);
+    }
     try {
       auto device = build(spec, name, nodes, shape, p, s);
       if (!device) return;
@@ -575,8 +648,8 @@ class Builder {
         throw ParamError{"type", fmt::format("unknown plate type '{}'{}", typeName,
                                              didYouMean(typeName, nl_.plateTypes.names()))};
       StackOptions o;
-      o.plates = wholeNumber(p, "plates", 1, 1);
-      o.arms = wholeNumber(p, "parallel", 1, 1);
+      o.plates = wholeNumber(p, "plates", 1, 1, InputLimits::kPlatesPerArm);
+      o.arms = wholeNumber(p, "parallel", 1, 1, InputLimits::kArms);
       if (p.word.count("mode")) {
         const std::string m = p.word.at("mode");
         if (m == "per-plate")
@@ -589,7 +662,7 @@ class Builder {
       const double spread = p.get("spread", 0.0);
       o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread),
                   p.get("spread-gsh", spread)};
-      o.seed = static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0));
+      o.seed = static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0, 1000000000));
       o.forming = p.get("forming", 1.0);
       o.storedYears = p.get("stored-years", 0.0);
       o.ageHours = p.get("hours", 0.0);
@@ -861,11 +934,12 @@ Netlist emptyNetlist(const std::string& name) {
   return nl;
 }
 
-void appendNetlist(Netlist& nl, const std::string& text, const std::string& name) {
+void appendNetlist(Netlist& nl, const std::string& text, const std::string& name,
+                   IncludePolicy policy) {
   detail::Diagnostics diags;
-  std::vector<std::string> includeStack{name};
-  const auto statements = detail::lex(text, name, diags, includeStack);
-  detail::Builder(nl, diags).append(statements);
+  auto context = detail::ReadContext::start(name, policy);
+  auto statements = detail::lex(text, name, diags, context);
+  detail::Builder(nl, diags, &context).append(std::move(statements));
   if (!diags.empty()) throw NetlistError(diags.list());
 }
 
@@ -889,24 +963,22 @@ void addElement(Netlist& nl, const std::string& kind, const std::string& name,
   appendNetlist(nl, text, fmt::format("<{} {}>", kind, name));
 }
 
-Netlist parseNetlist(const std::string& text, const std::string& name) {
+Netlist parseNetlist(const std::string& text, const std::string& name, IncludePolicy policy) {
   detail::Diagnostics diags;
-  std::vector<std::string> includeStack{name};
-  const auto statements = detail::lex(text, name, diags, includeStack);
+  auto context = detail::ReadContext::start(name, policy);
+  auto statements = detail::lex(text, name, diags, context);
   Netlist nl = emptyNetlist(name);
-  detail::Builder b(nl, diags);
-  b.append(statements);
+  detail::Builder b(nl, diags, &context);
+  b.append(std::move(statements));
   b.topology();
   b.defaultAnalysis();
   if (!diags.empty()) throw NetlistError(diags.list());
   return nl;
 }
 
-Netlist loadNetlist(const std::string& path) {
-  std::string text;
-  if (!detail::readFile(path, text))
-    throw InputError(fmt::format("{}: cannot open the netlist file", path));
-  return parseNetlist(text, path);
+Netlist loadNetlist(const std::string& path, IncludePolicy policy) {
+  return parseNetlist(detail::readInputFile(path, InputLimits::kNetlistBytes, "netlist"), path,
+                      policy);
 }
 
 }  // namespace disc

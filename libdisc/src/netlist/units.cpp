@@ -9,6 +9,8 @@
 #include <utility>
 #include <vector>
 
+#include "disc/limits.hpp"
+
 namespace disc::detail {
 namespace {
 
@@ -133,7 +135,7 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
     while (k < text.size() && std::isdigit(static_cast<unsigned char>(text[k]))) ++k;
   }
   if (k == digitsStart || (k == digitsStart + 1 && text[digitsStart] == '.')) {
-    error = fmt::format("'{}' is not a number", text);
+    error = fmt::format("'{}' is not a number", excerpt(text));
     return std::nullopt;
   }
   if (k < text.size() && (text[k] == 'e' || text[k] == 'E')) {
@@ -164,13 +166,13 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
         error = fmt::format(
             "'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
             "units V A ohm F H Hz s min h W J K degC)",
-            text, suffix);
+            excerpt(text), excerpt(suffix));
         return std::nullopt;
       }
     }
   }
   if (unit && unit->dim != dim) {
-    error = fmt::format("'{}' is {}, but this parameter is {}{}", text, dimName(unit->dim),
+    error = fmt::format("'{}' is {}, but this parameter is {}{}", excerpt(text), dimName(unit->dim),
                         dimName(dim), dim == Dim::None ? "" : fmt::format(" ({})", dimUnit(dim)));
     return std::nullopt;
   }
@@ -181,12 +183,13 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
   else if (!unit && dim == Dim::Temperature && scale == 1.0) {
     // A bare temperature is taken as kelvin; a value below 150 is almost surely meant as degC.
     if (value < 150.0) {
-      error = fmt::format("'{}': give a unit for temperatures ({}degC or {}K)", text, text, text);
+      const std::string q = excerpt(text);
+      error = fmt::format("'{}': give a unit for temperatures ({}degC or {}K)", q, q, q);
       return std::nullopt;
     }
   }
   if (!std::isfinite(value)) {
-    error = fmt::format("'{}' is not a finite number", text);
+    error = fmt::format("'{}' is not a finite number", excerpt(text));
     return std::nullopt;
   }
   return value;

@@ -9,8 +9,10 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
+#include "core/safe_io.hpp"
 #include "core/text_match.hpp"
 #include "disc/error.hpp"
+#include "disc/limits.hpp"
 
 namespace disc {
 
@@ -134,21 +136,45 @@ double fromJsonUnit(const Field& f, double v) {
   return f.celsius ? v + 273.15 : v;
 }
 
-PlateType typeFromJson(const json& j, const std::string& origin) {
+/// "file:line:col" of the first `"key"` after the plate type named `typeName` in the JSON text
+/// (nlohmann's values carry no positions); the file alone when it cannot be found.
+std::string locate(const std::string& text, const std::string& origin, const std::string& typeName,
+                   const std::string& key) {
+  std::size_t from = 0;
+  if (!typeName.empty()) {
+    const std::size_t at = text.find("\"" + typeName + "\"");
+    if (at != std::string::npos) from = at;
+  }
+  std::size_t at = key.empty() ? std::string::npos : text.find("\"" + key + "\"", from);
+  if (at == std::string::npos) at = from;
+  if (at == 0 && typeName.empty() && key.empty()) return origin;
+  int line = 0, col = 0;
+  detail::lineColumnOf(text, at, line, col);
+  return fmt::format("{}:{}:{}", origin, line, col);
+}
+
+PlateType typeFromJson(const json& j, const std::string& origin, const std::string& text) {
   PlateType t;
-  auto where = [&](const std::string& what) {
-    return fmt::format("{}: plate type '{}': {}", origin, t.name, what);
+  auto where = [&](const std::string& key, const std::string& what) {
+    return fmt::format("{}: plate type '{}': {}", locate(text, origin, t.name, key), t.name, what);
   };
   if (!j.is_object()) throw InputError(origin + ": a plate type must be a JSON object");
   if (!j.contains("name") || !j["name"].is_string())
-    throw InputError(origin + ": a plate type needs a \"name\" string");
+    throw InputError(locate(text, origin, "", "name") + ": a plate type needs a \"name\" string");
   t.name = j["name"].get<std::string>();
+  if (!validName(t.name))
+    throw InputError(fmt::format(
+        "{}: '{}' is not a valid plate-type name: use 1 to {} ASCII letters, digits and _ - . +",
+        locate(text, origin, "", "name"), t.name, InputLimits::kNameLength));
+  for (const char* key : {"material", "description"})
+    if (j.contains(key) && !j[key].is_string())
+      throw InputError(where(key, fmt::format("\"{}\" must be a string", key)));
   t.material = j.value("material", std::string("selenium"));
   t.description = j.value("description", std::string());
   for (const char* group : {"physics", "thermal", "history", "ratings", "failure"}) {
     if (!j.contains(group)) continue;
     if (!j[group].is_object())
-      throw InputError(where(fmt::format("\"{}\" must be an object", group)));
+      throw InputError(where(group, fmt::format("\"{}\" must be an object", group)));
     for (const auto& [key, value] : j[group].items()) {
       if (std::string(group) == "failure" && (key == "fails_to" || key == "mechanism")) {
         if (!value.is_string())
@@ -161,21 +187,26 @@ PlateType typeFromJson(const json& j, const std::string& origin) {
       }
       const Field* f = fieldOf(key);
       if (!f || std::string(f->group) != group)
-        throw InputError(where(fmt::format("unknown parameter \"{}\" in \"{}\"{}", key, group,
-                                           detail::didYouMean(key, keys()))));
-      if (!value.is_number()) throw InputError(where(fmt::format("\"{}\" must be a number", key)));
-      t.set(key, value.get<double>());
+        throw InputError(where(key, fmt::format("unknown parameter \"{}\" in \"{}\"{}", key, group,
+                                                detail::didYouMean(key, keys()))));
+      if (!value.is_number())
+        throw InputError(where(key, fmt::format("\"{}\" must be a number", key)));
+      try {
+        t.set(key, value.get<double>());
+      } catch (const InputError& e) {
+        throw InputError(where(key, e.what()));
+      }
     }
   }
   if (j.contains("notes")) {
-    if (!j["notes"].is_object()) throw InputError(where("\"notes\" must be an object"));
+    if (!j["notes"].is_object()) throw InputError(where("notes", "\"notes\" must be an object"));
     for (const auto& [key, value] : j["notes"].items())
       if (value.is_string()) t.notes[key] = value.get<std::string>();
   }
   try {
     t.validate();
   } catch (const InputError& e) {
-    throw InputError(where(e.what()));
+    throw InputError(where("", e.what()));
   }
   return t;
 }
@@ -244,33 +275,66 @@ const PlateLibrary& PlateLibrary::builtIn() {
   return lib;
 }
 
-PlateLibrary PlateLibrary::fromJson(const std::string& text, const std::string& origin) {
+PlateLibrary PlateLibrary::fromJson(std::string text, const std::string& origin) {
+  detail::stripBom(text);
+  if (text.size() > InputLimits::kPlateFileBytes)
+    throw InputError(fmt::format("{}: {} bytes of plate types, above the limit of {} bytes", origin,
+                                 text.size(), InputLimits::kPlateFileBytes));
   json j;
   try {
     j = json::parse(text);
   } catch (const json::parse_error& e) {
-    throw InputError(fmt::format("{}: not valid JSON: {}", origin, e.what()));
+    int line = 0, col = 0;
+    detail::lineColumnOf(text, e.byte > 0 ? e.byte - 1 : 0, line, col);
+    // nlohmann's message repeats the position and quotes the text read; keep its reason only.
+    std::string why = e.what();
+    if (const auto colon = why.rfind(": "); colon != std::string::npos) why = why.substr(colon + 2);
+    throw InputError(
+        fmt::format("{}:{}:{}: not valid JSON: {}", origin, line, col, boundedMessage(why, 200)));
+  } catch (const json::exception& e) {
+    // A number out of range (1e400): nlohmann names the text, which locates it.
+    const std::string why = e.what();
+    const auto q0 = why.find('\''), q1 = why.rfind('\'');
+    std::string at = origin;
+    if (q0 != std::string::npos && q1 > q0 + 1)
+      if (const auto pos = text.find(why.substr(q0 + 1, q1 - q0 - 1)); pos != std::string::npos) {
+        int line = 0, col = 0;
+        detail::lineColumnOf(text, pos, line, col);
+        at = fmt::format("{}:{}:{}", origin, line, col);
+      }
+    throw InputError(fmt::format("{}: not usable JSON: {}", at, boundedMessage(why, 200)));
   }
   PlateLibrary lib;
-  if (j.is_object() && j.contains("types")) {
-    const int schema = j.value("schema", 1);
-    if (schema != 1)
-      throw InputError(
-          fmt::format("{}: plate-type schema {} is not supported (this is 1)", origin, schema));
-    if (!j["types"].is_array()) throw InputError(origin + ": \"types\" must be an array");
-    for (const auto& t : j["types"]) lib.add(typeFromJson(t, origin));
-  } else {
-    lib.add(typeFromJson(j, origin));
+  try {
+    if (j.is_object() && j.contains("types")) {
+      if (j.contains("schema") && !j["schema"].is_number_integer())
+        throw InputError(locate(text, origin, "", "schema") +
+                         ": \"schema\" must be a whole number");
+      const int schema = j.value("schema", 1);
+      if (schema != 1)
+        throw InputError(fmt::format("{}: plate-type schema {} is not supported (this is 1)",
+                                     locate(text, origin, "", "schema"), schema));
+      if (!j["types"].is_array())
+        throw InputError(locate(text, origin, "", "types") + ": \"types\" must be an array");
+      if (j["types"].size() > static_cast<std::size_t>(InputLimits::kPlateTypes))
+        throw InputError(fmt::format("{}: {} plate types, above the limit of {}",
+                                     locate(text, origin, "", "types"), j["types"].size(),
+                                     InputLimits::kPlateTypes));
+      for (const auto& t : j["types"]) lib.add(typeFromJson(t, origin, text));
+    } else {
+      lib.add(typeFromJson(j, origin, text));
+    }
+  } catch (const json::exception& e) {
+    // Every access above checks its type; this is the boundary for anything overlooked.
+    throw InputError(
+        fmt::format("{}: unusable plate-type JSON: {}", origin, boundedMessage(e.what(), 200)));
   }
   return lib;
 }
 
 PlateLibrary PlateLibrary::load(const std::string& path) {
-  std::ifstream in(path);
-  if (!in) throw InputError(fmt::format("cannot open plate-type file '{}'", path));
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return fromJson(ss.str(), path);
+  return fromJson(detail::readInputFile(path, InputLimits::kPlateFileBytes, "plate-type file"),
+                  path);
 }
 
 const PlateType* PlateLibrary::find(const std::string& name) const {
@@ -315,7 +379,7 @@ PlateType PlateLibrary::derive(const PlateType& base, const std::string& name,
 }
 
 std::string PlateLibrary::toJson(const PlateType& type) {
-  return typeToJson(type).dump(2);
+  return typeToJson(type).dump(2, ' ', false, nlohmann::json::error_handler_t::replace);
 }
 
 std::string PlateLibrary::toJson() const {
@@ -323,7 +387,7 @@ std::string PlateLibrary::toJson() const {
   j["schema"] = 1;
   j["types"] = json::array();
   for (const auto& t : types_) j["types"].push_back(typeToJson(t));
-  return j.dump(2);
+  return j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace);
 }
 
 void PlateLibrary::save(const PlateType& type, const std::string& path) {
