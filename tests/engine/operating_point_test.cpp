@@ -87,11 +87,11 @@ Circuit diodeString(int n, double volts, double ohms) {
 /// shunts and the 1 pS gmin change the answer by about 1e-9.
 double stringCurrent(int n, double volts, double ohms) {
   const DiodeParams d;
-  const double nvt = d.n * constants::thermalVoltage(kStringTemperature);
+  const double nvt = d.ideality * constants::thermalVoltage(kStringTemperature);
   double lo = 0.0, hi = volts / ohms;
   for (int k = 0; k < 300; ++k) {
     const double i = 0.5 * (lo + hi);
-    const double v = i * ohms + n * (nvt * std::log1p(i / d.is) + i * d.rs);
+    const double v = i * ohms + n * (nvt * std::log1p(i / d.saturationCurrent) + i * d.seriesResistance);
     (v < volts ? lo : hi) = i;
   }
   return 0.5 * (lo + hi);

@@ -4,7 +4,6 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <numbers>
-#include <algorithm>
 #include <string>
 
 #include "disc/disc.hpp"
@@ -18,8 +17,7 @@ struct Figures {
 };
 
 /// Mean and peak-to-peak of `v`, peak of |i| over [t0, t1].
-Figures figures(const Result& r, const std::string& v, const std::string& i, double t0,
-                double t1) {
+Figures figures(const Result& r, const std::string& v, const std::string& i, double t0, double t1) {
   Figures f;
   f.mean = measure::mean(r.time(), r[v], t0, t1);
   double lo = 1e300, hi = -1e300;
@@ -118,7 +116,8 @@ struct HeatedDiode {
 
 }  // namespace
 
-TEST_CASE("Warm-up: a self-heated diode follows the thermal RC closed form", "[periodic][envelope]") {
+TEST_CASE("Warm-up: a self-heated diode follows the thermal RC closed form",
+          "[periodic][envelope]") {
   const HeatedDiode d;
   double p0, p1;
   d.dissipation(p0, p1);

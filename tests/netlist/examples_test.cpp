@@ -285,6 +285,7 @@ TEST_CASE("Bring-up through a series lamp: variac steps, warming valves, a dim l
   // practice: a lamp glowing bright means a fault is drawing current).
   CHECK(measure::mean(t, res["p:LAMP"], 11.0, 12.0) < 0.3 * 60.0);
   CHECK(res["temp:LAMP"].back() < 2000.0);
+  checkEnergyBalance(r);
 }
 
 TEST_CASE("Every bundled supply has a test case that checks its energy balance",
@@ -295,7 +296,7 @@ TEST_CASE("Every bundled supply has a test case that checks its energy balance",
       "table-radio-half-wave.disc",      "battery-charger-12v.disc",
       "battery-charger-6v.disc",         "amplifier-centre-tap-choke.disc",
       "signalling-parallel-stacks.disc", "meter-rectifier-cuox.disc",
-      "hv-stack-half-wave.disc"};
+      "hv-stack-half-wave.disc",         "bring-up-series-lamp-variac.disc"};
   int supplies = 0;
   for (const auto& entry : std::filesystem::directory_iterator(DISC_NETLIST_DIR)) {
     if (entry.path().extension() != ".disc") continue;

@@ -216,6 +216,8 @@ TEST_CASE("A diode's nominal temperature is a parameter, 300.15 K unless given",
   CHECK(static_cast<const Diode&>(*nl.circuit.find("D2")).params().referenceTemperature ==
         Approx(300.0));
   CHECK(nl.circuit.find("D2")->parameter("nominal-temperature") == Approx(300.0));
+}
+
 TEST_CASE("Lamps, valve loads and level schedules in the language", "[netlist][parser]") {
   const Netlist nl = parseNetlist(
       "voltage MAINS line gnd mains rms=230V frequency=50Hz \\\n"

@@ -22,12 +22,13 @@ namespace {
 
 /// The engine's progress callback for a run with the GIL released. Taking the GIL at every
 /// step would stall the run behind any busy Python thread, so it is taken at most every 0.1 s
-/// of wall time: to let Python deliver Ctrl-C, and to call `callback(time, stop)` when one is
-/// given (a false return cancels the run). The caller keeps `callback` alive during the run.
+/// of wall time after the first step (so a short run still reports once): to let Python deliver
+/// Ctrl-C, and to call `callback(time, stop)` when one is given (a false return cancels the run).
+/// The caller keeps `callback` alive during the run.
 std::function<bool(double, double)> throttledProgress(py::handle callback) {
   using Clock = std::chrono::steady_clock;
   static constexpr auto kInterval = std::chrono::milliseconds(100);
-  auto next = std::make_shared<Clock::time_point>(Clock::now() + kInterval);
+  auto next = std::make_shared<Clock::time_point>(Clock::now());
   return [callback, next](double time, double stop) {
     const auto now = Clock::now();
     if (now < *next) return true;

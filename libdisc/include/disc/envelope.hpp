@@ -12,16 +12,23 @@
 
 namespace disc {
 
+/// The periodic options the envelope starts from: reltol 1e-4, absolute tolerances to match.
+inline PeriodicOptions envelopePeriodicDefaults() {
+  PeriodicOptions p;
+  p.tol = {1e-4, 1e-6, 1e-6, 1e-3, 1e-5};
+  return p;
+}
+
 /// Options of the slow-state envelope.
 struct EnvelopeOptions {
-  double duration = 0.0;     ///< s, simulated time (required)
+  double duration = 0.0;  ///< s, simulated time (required)
   /// Every periodic steady state (tolerances; warm-up of the first). Its reltol 1e-4 carries
   /// the period averages well inside the slow states' own 1e-3.
-  PeriodicOptions periodic{.tol = {1e-4, 1e-6, 1e-6, 1e-3, 1e-5}};
-  double reltol = 1e-3;            ///< slow states, relative
-  double temperatureTol = 0.02;    ///< K, absolute
-  double stateTol = 1e-4;          ///< forming and other dimensionless slow states, absolute
-  double maxStep = 0.0;            ///< s; 0 = a tenth of the duration
+  PeriodicOptions periodic = envelopePeriodicDefaults();
+  double reltol = 1e-3;          ///< slow states, relative
+  double temperatureTol = 0.02;  ///< K, absolute
+  double stateTol = 1e-4;        ///< forming and other dimensionless slow states, absolute
+  double maxStep = 0.0;          ///< s; 0 = a tenth of the duration
   /// Signals whose period mean, minimum and maximum are recorded at every slow step; empty =
   /// every slow unknown ("x:<unknown>").
   std::vector<std::string> record;
@@ -36,7 +43,7 @@ struct EnvelopeOptions {
 
 struct EnvelopeStats {
   long slowSteps = 0, rejectedSlowSteps = 0;
-  long periodicSolves = 0;     ///< periodic steady states solved
+  long periodicSolves = 0;  ///< periodic steady states solved
   long shootingIterations = 0;
   long periodIntegrations = 0;
   double wallSeconds = 0.0;

@@ -19,9 +19,9 @@ struct PeriodicOptions {
   /// Tighter than a transient's default: the figures of one period carry no averaging over
   /// many cycles, and the shooting update is judged against these tolerances.
   Tolerances tol = {1e-5, 1e-7, 1e-7, 1e-4, 1e-6};
-  double maxStep = 0.0;      ///< s; 0 = a hundredth of the period
-  int warmupPeriods = 3;     ///< transient periods before shooting (warm start)
-  int maxIterations = 40;    ///< shooting iterations
+  double maxStep = 0.0;                 ///< s; 0 = a hundredth of the period
+  int warmupPeriods = 3;                ///< transient periods before shooting (warm start)
+  int maxIterations = 40;               ///< shooting iterations
   Start start = Start::OperatingPoint;  ///< how the warm-up transient starts
   /// s, the slow clock held over the period (a variac schedule's time, a valve's warm-up).
   double slowTime = 0.0;
@@ -43,8 +43,8 @@ struct PeriodicStats {
 
 /// The settled period.
 struct PeriodicResult {
-  double period = 0.0;    ///< s
-  double startTime = 0.0; ///< s, where the period starts on the sources' clock
+  double period = 0.0;     ///< s
+  double startTime = 0.0;  ///< s, where the period starts on the sources' clock
   /// One period of the recorded signals, times from 0 to period (first and last rows agree to
   /// the tolerance).
   Result waveforms;

@@ -25,8 +25,8 @@ void EnvelopeOptions::validate() const {
   if (!(duration > 0.0) || !std::isfinite(duration))
     throw InputError(fmt::format("warm-up: duration must be positive, got {} s", duration));
   if (duration > 1e8)
-    throw InputError(fmt::format("warm-up: duration {:.3g} s is beyond 3 years; give at most 1e8 s",
-                                 duration));
+    throw InputError(
+        fmt::format("warm-up: duration {:.3g} s is beyond 3 years; give at most 1e8 s", duration));
   if (!(reltol > 0.0 && reltol < 0.1))
     throw InputError("warm-up: reltol must lie between 0 and 0.1");
   if (!(temperatureTol > 0.0 && temperatureTol <= 10.0))
@@ -91,8 +91,8 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
 
   std::vector<double> scale(ns);  // each slow state in units of its absolute tolerance
   for (std::size_t c = 0; c < ns; ++c)
-    scale[c] = sys.kind(slow[c]) == UnknownKind::Temperature ? options.temperatureTol
-                                                             : options.stateTol;
+    scale[c] =
+        sys.kind(slow[c]) == UnknownKind::Temperature ? options.temperatureTol : options.stateTol;
   std::vector<std::string> record = options.record;
   if (record.empty())
     for (int k : slow) record.push_back("x:" + sys.unknownName(k));
@@ -111,8 +111,8 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     try {
       solver.solve(x, t, nullptr, sol, stats, jacobian);
     } catch (const ConvergenceError& e) {
-      throw ConvergenceError(
-          fmt::format("warm-up at t = {:.6g} s: {}", t, e.what()), e.worstEquation(), e.residual());
+      throw ConvergenceError(fmt::format("warm-up at t = {:.6g} s: {}", t, e.what()),
+                             e.worstEquation(), e.residual());
     }
     ++es.periodicSolves;
     es.shootingIterations += sol.stats.iterations;
@@ -138,9 +138,9 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       jac->assign(ns * ns, 0.0);
       for (std::size_t r = 0; r < ns; ++r)
         for (std::size_t c = 0; c < ns; ++c)
-          (*jac)[r * ns + c] = -sol.slowJacobian(static_cast<Eigen::Index>(r),
-                                                 static_cast<Eigen::Index>(c)) /
-                               sol.slowCapacity[r] * scale[c] / scale[r];
+          (*jac)[r * ns + c] =
+              -sol.slowJacobian(static_cast<Eigen::Index>(r), static_cast<Eigen::Index>(c)) /
+              sol.slowCapacity[r] * scale[c] / scale[r];
     }
   };
 
@@ -194,7 +194,8 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     er.last.startTime = t0;
     er.last.stats = sol.stats;
   }
-  es.wallSeconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  es.wallSeconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
   er.last.waveforms.stats().wallSeconds = es.wallSeconds;
   return er;
 }

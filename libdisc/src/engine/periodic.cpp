@@ -24,6 +24,7 @@
 
 #include "disc/devices/sources.hpp"
 #include "disc/error.hpp"
+#include "failure_monitor.hpp"
 #include "operating_point.hpp"
 #include "periodic_solver.hpp"
 #include "transient_common.hpp"
@@ -33,9 +34,10 @@ namespace disc {
 void PeriodicOptions::validate() const {
   tol.validate();
   if (!(period >= 0.0) || !std::isfinite(period))
-    throw InputError(fmt::format("periodic: period must be zero (from the sources) or positive, "
-                                 "got {} s",
-                                 period));
+    throw InputError(
+        fmt::format("periodic: period must be zero (from the sources) or positive, "
+                    "got {} s",
+                    period));
   if (!(maxStep >= 0.0) || !std::isfinite(maxStep))
     throw InputError("periodic: maximum step must be zero (automatic) or positive");
   if (warmupPeriods < 0 || warmupPeriods > 10000)
@@ -195,7 +197,8 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
   {
     capacity_.assign(static_cast<std::size_t>(ns_), 0.0);
     for (const auto& e : sys_.frozenEntries())
-      if (e.col == slow_[static_cast<std::size_t>(e.row)]) capacity_[static_cast<std::size_t>(e.row)] = e.c;
+      if (e.col == slow_[static_cast<std::size_t>(e.row)])
+        capacity_[static_cast<std::size_t>(e.row)] = e.c;
   }
   Eigen::MatrixXd rowNow(ns_, cols);
 
@@ -300,23 +303,23 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     }
     pass.worstError = std::max(pass.worstError, err);
     if (sens) {
-    ls_.factor(sys_, a0, 0.0);
-    ls_.setFactoredA0(a0);
-    ++stats.factorizations;
-    // Sensitivities: (G + a0 C) S_k = -(a1 C_{k-1} S_{k-1} + a2 C_{k-2} S_{k-2}); a frozen
-    // row reads x_k - s_k = 0, so its column of the slow sensitivity is the unit vector.
-    rhs.setZero();
-    addChargeTimes(sys_, C0, -a1, S, rhs);
-    if (!euler) addChargeTimes(sys_, Cp, -a2, Sp, rhs);
-    for (int c = 0; c < ns_; ++c) rhs(slow_[static_cast<std::size_t>(c)], m_ + c) = 1.0;
-    for (int j = 0; j < cols; ++j) ls_.solve(rhs.col(j).data(), n);
-    Sp2.swap(Sp);
-    Sp.swap(S);
-    S.swap(rhs);
-    if (rhs.rows() != n) rhs.resize(n, cols);
-    Cp2.swap(Cp);
-    Cp.swap(C0);
-    C0 = sys_.C;
+      ls_.factor(sys_, a0, 0.0);
+      ls_.setFactoredA0(a0);
+      ++stats.factorizations;
+      // Sensitivities: (G + a0 C) S_k = -(a1 C_{k-1} S_{k-1} + a2 C_{k-2} S_{k-2}); a frozen
+      // row reads x_k - s_k = 0, so its column of the slow sensitivity is the unit vector.
+      rhs.setZero();
+      addChargeTimes(sys_, C0, -a1, S, rhs);
+      if (!euler) addChargeTimes(sys_, Cp, -a2, Sp, rhs);
+      for (int c = 0; c < ns_; ++c) rhs(slow_[static_cast<std::size_t>(c)], m_ + c) = 1.0;
+      for (int j = 0; j < cols; ++j) ls_.solve(rhs.col(j).data(), n);
+      Sp2.swap(Sp);
+      Sp.swap(S);
+      S.swap(rhs);
+      if (rhs.rows() != n) rhs.resize(n, cols);
+      Cp2.swap(Cp);
+      Cp.swap(C0);
+      C0 = sys_.C;
     }
     qp2.swap(qp);
     qp.swap(q0);
@@ -446,11 +449,12 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
     if (adaptive && norm < 100.0) adaptive = false;
   }
   throw ConvergenceError(
-      fmt::format("periodic: shooting did not converge in {} iterations: the last update was {:.3g} "
-                  "tolerances, largest at {}. The circuit may not settle to a periodic state at "
-                  "its present slow state (a subharmonic or unstable response, a slow state "
-                  "running away), or it needs a longer warm-up",
-                  o_.maxIterations, ps.residual, sys_.describe(worstState)),
+      fmt::format(
+          "periodic: shooting did not converge in {} iterations: the last update was {:.3g} "
+          "tolerances, largest at {}. The circuit may not settle to a periodic state at "
+          "its present slow state (a subharmonic or unstable response, a slow state "
+          "running away), or it needs a longer warm-up",
+          o_.maxIterations, ps.residual, sys_.describe(worstState)),
       worstState >= 0 ? sys_.unknownName(worstState) : "", ps.residual);
 }
 
@@ -461,7 +465,8 @@ void PeriodicSolver::finish(PeriodSolution& out, bool sens) {
   Eigen::MatrixXd P(m_, ns_);
   for (int j = 0; j < m_; ++j)
     for (int c = 0; c < ns_; ++c) P(j, c) = S_(states_[static_cast<std::size_t>(j)], m_ + c);
-  dzds_ = ns_ > 0 && m_ > 0 ? Eigen::MatrixXd(shootingLu_.solve(-P)) : Eigen::MatrixXd::Zero(m_, ns_);
+  dzds_ =
+      ns_ > 0 && m_ > 0 ? Eigen::MatrixXd(shootingLu_.solve(-P)) : Eigen::MatrixXd::Zero(m_, ns_);
   out.slowJacobian = avgRowSens_.rightCols(ns_) + avgRowSens_.leftCols(m_) * dzds_;
   out.hasJacobian = true;
   if (m_ > 0 && m_ <= 400) {
@@ -497,18 +502,21 @@ void PeriodicSolver::recordPeriod(const std::vector<double>& x, double slowTime,
                                   RunStats& stats) {
   std::vector<double> xr = x;
   if (!integrate(xr, false, slowTime, &rec, stats, false).ok)
-    throw ConvergenceError("periodic: the settled period could not be integrated again on its "
-                           "own step grid",
-                           "", 0.0);
+    throw ConvergenceError(
+        "periodic: the settled period could not be integrated again on its "
+        "own step grid",
+        "", 0.0);
 }
 
 void PeriodicSolver::predict(std::vector<double>& x, const std::vector<double>& ds) const {
   for (int c = 0; c < ns_; ++c)
-    x[static_cast<std::size_t>(slow_[static_cast<std::size_t>(c)])] += ds[static_cast<std::size_t>(c)];
+    x[static_cast<std::size_t>(slow_[static_cast<std::size_t>(c)])] +=
+        ds[static_cast<std::size_t>(c)];
   if (!solved_ || dzds_.cols() != ns_ || ns_ == 0) return;
   Eigen::VectorXd d = Eigen::Map<const Eigen::VectorXd>(ds.data(), ns_);
   Eigen::VectorXd dz = dzds_ * d;
-  for (int j = 0; j < m_; ++j) x[static_cast<std::size_t>(states_[static_cast<std::size_t>(j)])] += dz[j];
+  for (int j = 0; j < m_; ++j)
+    x[static_cast<std::size_t>(states_[static_cast<std::size_t>(j)])] += dz[j];
 }
 
 }  // namespace detail
@@ -535,7 +543,8 @@ double warmStart(System& sys, LinearSolver& ls, const PeriodicOptions& o, double
     to.recordFrom = to.stop;
     Result scratch;
     Recorder warm(sys, {}, scratch);
-    integrateStepping(sys, ls, to, x, warm, stats);
+    FailureMonitor monitor(sys);  // the slow states are frozen: nothing heats here
+    integrateStepping(sys, ls, to, x, warm, stats, monitor);
   }
   return start;
 }

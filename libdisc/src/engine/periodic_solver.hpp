@@ -44,8 +44,7 @@ class PeriodicSolver {
              RunStats& stats, bool needJacobian = true);
 
   /// Records one period from a settled start x (after solve()) on the settled step grid.
-  void recordPeriod(const std::vector<double>& x, double slowTime, Recorder& rec,
-                    RunStats& stats);
+  void recordPeriod(const std::vector<double>& x, double slowTime, Recorder& rec, RunStats& stats);
 
   /// Predicts the settled start state for slow values changed by ds (first order, from the
   /// last solve's sensitivity); x is updated in place, its slow entries included.
@@ -80,10 +79,10 @@ class PeriodicSolver {
   bool statesKnown_ = false;
   bool haveMonodromy_ = false;
   Eigen::PartialPivLU<Eigen::MatrixXd> shootingLu_;  // of M - I
-  int m_ = 0, ns_ = 0;          // shooting variables, slow unknowns
-  Eigen::MatrixXd S_;           // n x (m + ns) sensitivity at the end of the last pass
-  Eigen::MatrixXd dzds_;        // m x ns, settled state's response to the slow values
-  Eigen::MatrixXd monodromy_;   // m x m
+  int m_ = 0, ns_ = 0;                               // shooting variables, slow unknowns
+  Eigen::MatrixXd S_;          // n x (m + ns) sensitivity at the end of the last pass
+  Eigen::MatrixXd dzds_;       // m x ns, settled state's response to the slow values
+  Eigen::MatrixXd monodromy_;  // m x m
   // Period averages of the last pass.
   std::vector<double> avgCurrent_, capacity_;
   Eigen::MatrixXd avgRowSens_;  // ns x (m + ns): average of (frozen row of G) * S

@@ -65,8 +65,8 @@ double integrateSlowOde(const SlowOdeSystem& system, std::vector<double>& y, dou
   Bridge bridge{&system, {}, {}, {}};
   Vec x(y.size());
   std::copy(y.begin(), y.end(), x.begin());
-  auto stepper = odeint::make_controlled<odeint::rosenbrock4<double>>(settings.abstol,
-                                                                      settings.reltol);
+  auto stepper =
+      odeint::make_controlled<odeint::rosenbrock4<double>>(settings.abstol, settings.reltol);
   double t = t0;
   double dt = std::min(settings.firstStep, t1 - t0);
   long tries = 0;
@@ -76,7 +76,8 @@ double integrateSlowOde(const SlowOdeSystem& system, std::vector<double>& y, dou
     if (settings.maxStep > 0.0) dt = std::min(dt, settings.maxStep);
     const bool last = t + dt >= t1;
     if (last) dt = t1 - t;
-    const auto outcome = stepper.try_step(std::make_pair(Rhs{&bridge}, Jacobian{&bridge}), x, t, dt);
+    const auto outcome =
+        stepper.try_step(std::make_pair(Rhs{&bridge}, Jacobian{&bridge}), x, t, dt);
     if (outcome == odeint::fail) {
       ++stats.rejected;
       if (dt < 1e-9 * std::max(1.0, std::abs(t1 - t0)))

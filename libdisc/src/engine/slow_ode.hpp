@@ -19,7 +19,7 @@ struct SlowOdeSystem {
 
 struct SlowOdeSettings {
   double reltol = 1e-3;
-  double abstol = 1.0;     ///< on the scaled state (the envelope scales each state by its tolerance)
+  double abstol = 1.0;  ///< on the scaled state (the envelope scales each state by its tolerance)
   double firstStep = 1.0;  ///< s
   double maxStep = 0.0;    ///< s; 0 = no limit
   long maxSteps = 100000;

@@ -178,7 +178,7 @@ PlateType typeFromJson(const json& j, const std::string& origin, const std::stri
     for (const auto& [key, value] : j[group].items()) {
       if (std::string(group) == "failure" && (key == "fails_to" || key == "mechanism")) {
         if (!value.is_string())
-          throw InputError(where(fmt::format("\"{}\" must be a string", key)));
+          throw InputError(where(key, fmt::format("\"{}\" must be a string", key)));
         if (key == "fails_to")
           t.failure.mode = parseFailureMode(value.get<std::string>());
         else
