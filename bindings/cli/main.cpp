@@ -258,6 +258,56 @@ int replaceStacks(ReplaceArgs& a) {
   return 0;
 }
 
+struct CampaignArgs {
+  std::string file, outDir;
+  int builds = 0;
+  long long seed = -1;
+  std::vector<std::string> vary, tolerance;
+  bool keepPlates = false;
+  bool json = false;
+  bool quiet = false;
+  disc::CampaignOptions options;
+};
+
+int runCampaignFile(const CampaignArgs& a) {
+  disc::Netlist nl = disc::loadNetlist(a.file);
+  // The options become statements of the language, so they are checked and reported alike.
+  std::string extra;
+  for (const auto& v : a.vary) extra += "vary " + v + "\n";
+  for (const auto& t : a.tolerance) extra += "tolerance " + t + "\n";
+  std::string head;
+  if (a.builds > 0) head += fmt::format(" builds={}", a.builds);
+  if (a.seed >= 0) head += fmt::format(" seed={}", a.seed);
+  if (a.keepPlates) head += " plates=keep";
+  if (!head.empty()) extra += "campaign" + head + "\n";
+  if (!extra.empty()) disc::appendNetlist(nl, extra, "<command line>");
+  if (!nl.campaign.given)
+    throw disc::InputError(fmt::format(
+        "{} declares no campaign: add 'campaign builds=N' (and vary or tolerance statements) "
+        "to it, or give --builds, --vary or --tolerance",
+        a.file));
+  disc::CampaignOptions o = a.options;
+  const bool tty = isatty(fileno(stderr)) != 0 && !a.quiet;
+  if (tty)
+    o.progress = [](std::size_t done, std::size_t total) {
+      // From worker threads: one line rewritten, no shared state beyond stderr.
+      fmt::print(stderr, "\rcampaign: {} of {} variants", done, total);
+      return true;
+    };
+  const disc::CampaignTable table = disc::runCampaign(nl, nl.campaign, o);
+  if (tty) fmt::print(stderr, "\r{:50}\r", "");
+  const disc::CampaignSummary summary = disc::summariseCampaign(nl, nl.campaign, table);
+  const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) + "-campaign" : a.outDir;
+  const auto files = disc::writeFiles(dir, {{"campaign.csv", disc::campaignCsv(table)},
+                                            {"campaign.json", disc::campaignJson(summary)},
+                                            {"campaign.html", disc::campaignHtml(summary, table)}});
+  if (a.json)
+    std::cout << disc::campaignJson(summary) << "\n";
+  else if (!a.quiet)
+    fmt::print("{}\nwritten to {}/ ({} files)\n", disc::campaignText(summary), dir, files.size());
+  return 0;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -359,6 +409,31 @@ int main(int argc, char** argv) {
   replace->add_flag("--json", rp.json, "Print the design as JSON");
   replace->add_flag("-q,--quiet", rp.quiet, "Print nothing; only write the files");
 
+  CampaignArgs ca;
+  auto* campaign = app.add_subcommand(
+      "campaign", "Run a netlist's campaign: a parameter grid and Monte Carlo builds");
+  campaign->add_option("file", ca.file, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
+  campaign->add_option("--builds", ca.builds, "Monte Carlo builds per grid point")
+      ->check(CLI::Range(1, 100000000));
+  campaign->add_option("--seed", ca.seed, "Campaign seed (the same seed gives the same builds)")
+      ->check(CLI::NonNegativeNumber);
+  campaign->add_option("--vary", ca.vary,
+                       "A grid axis as in the netlist, e.g. \"RLOAD resistance 40 60 80\" "
+                       "(repeat for several)");
+  campaign->add_option("--tolerance", ca.tolerance,
+                       "A tolerance as in the netlist, e.g. \"C1 capacitance -20% +50%\" "
+                       "(repeat for several)");
+  campaign->add_flag("--keep-plates", ca.keepPlates,
+                     "Keep the netlist's plate seeds (vary only the tolerances)");
+  campaign->add_option("--threads", ca.options.threads, "Worker threads (default: every core)")
+      ->check(CLI::Range(1, 4096));
+  campaign
+      ->add_option("--stop", ca.options.stop, "Transient end time, s (default: the netlist's run)")
+      ->check(CLI::PositiveNumber);
+  campaign->add_option("-o,--out", ca.outDir, "Output folder (default out/<file stem>-campaign)");
+  campaign->add_flag("--json", ca.json, "Print the summary as JSON");
+  campaign->add_flag("-q,--quiet", ca.quiet, "Print nothing; only write the files");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -373,6 +448,7 @@ int main(int argc, char** argv) {
     if (plates->parsed()) return listPlates();
     if (fit->parsed()) return fitTraces(fa);
     if (replace->parsed()) return replaceStacks(rp);
+    if (campaign->parsed()) return runCampaignFile(ca);
     if (example->parsed()) {
       if (ex.name == "list") {
         for (const auto& n : disc::reference::names())

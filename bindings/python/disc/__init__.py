@@ -12,6 +12,7 @@ selenium gives off toxic fumes.
 """
 from . import _disc
 from ._errors import NetlistError, SimulationError, TraceError
+from .campaign import CampaignResult, campaign
 from .circuit import Circuit, Element, Result
 
 __version__ = _disc.__version__  # the project() version in CMakeLists.txt

@@ -13,4 +13,5 @@ PYBIND11_MODULE(_disc, m) {
   disc::python::registerCircuit(m);
   disc::python::registerFit(m);
   disc::python::registerReplace(m);
+  disc::python::registerCampaign(m);
 }

@@ -11,5 +11,6 @@ void registerResult(pybind11::module_& m);
 void registerCircuit(pybind11::module_& m);
 void registerFit(pybind11::module_& m);
 void registerReplace(pybind11::module_& m);
+void registerCampaign(pybind11::module_& m);
 
 }  // namespace disc::python

@@ -4,6 +4,8 @@
 #include "disc/analysis.hpp"
 #include "disc/periodic.hpp"
 #include "disc/envelope.hpp"
+#include "disc/campaign.hpp"
+#include "disc/campaign_spec.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
 #include "disc/device.hpp"

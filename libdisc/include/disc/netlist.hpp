@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "disc/analysis.hpp"
+#include "disc/campaign_spec.hpp"
 #include "disc/circuit.hpp"
 #include "disc/error.hpp"
 #include "disc/limits.hpp"
@@ -64,6 +65,7 @@ struct Netlist {
   std::vector<AnalysisRequest> analyses;
   std::vector<std::string> record;  ///< extra signals the file asks for
   OutputSpec output;
+  CampaignSpec campaign;  ///< the file's campaign, if it declares one (`campaign`, `vary`, ...)
   /// Where each element and each node reference was written (for topology messages).
   std::map<std::string, SourceLocation> elementWhere;
   std::map<std::string, std::vector<SourceLocation>> nodeRefs;

@@ -40,6 +40,13 @@ class Waveform {
   /// Largest step that resolves the waveform (a fraction of a sine period), or +inf.
   double naturalStep() const;
 
+  /// For parameter changes (a campaign's mains tolerance): the sine's amplitude and frequency
+  /// (InputError for other shapes), the DC value or the sine's offset.
+  void setAmplitude(double amplitude);
+  void setFrequency(double frequency);
+  void setOffset(double offset);
+  bool isSine() const { return shape_ == Shape::Sine; }
+
   double amplitude() const { return amplitude_; }
   double frequency() const { return frequency_; }
   double offset() const { return offset_; }

@@ -11,6 +11,7 @@
 #include "disc/limits.hpp"
 #include "disc/session.hpp"
 
+#include "analysis/csv_field.hpp"
 #include "analysis/text_blocks.hpp"
 #include "disc/version.hpp"
 
@@ -243,8 +244,6 @@ std::string reportJson(const SupplyReport& r) {
   return j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
 
-namespace {
-
 /// One CSV field per RFC 4180 section 2: quoted when it holds a comma, a double quote or a line
 /// break (signal names such as "v:b,gnd" do), with each double quote doubled.
 std::string csvField(const std::string& text) {
@@ -256,8 +255,6 @@ std::string csvField(const std::string& text) {
   }
   return q + '"';
 }
-
-}  // namespace
 
 std::string resultCsv(const Result& r) {
   // RFC 4180: a header record, then one record per time point, each ended by CRLF.

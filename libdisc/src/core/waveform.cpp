@@ -72,6 +72,25 @@ Waveform Waveform::points(std::vector<std::pair<double, double>> pts) {
   return w;
 }
 
+void Waveform::setAmplitude(double amplitude) {
+  if (shape_ != Shape::Sine) throw InputError("only a sine waveform has an amplitude");
+  if (!std::isfinite(amplitude)) throw InputError("sine amplitude must be finite");
+  amplitude_ = amplitude;
+}
+
+void Waveform::setFrequency(double frequency) {
+  if (shape_ != Shape::Sine) throw InputError("only a sine waveform has a frequency");
+  if (!(frequency > 0.0) || !std::isfinite(frequency))
+    throw InputError(fmt::format("sine frequency must be positive, got {} Hz", frequency));
+  frequency_ = frequency;
+}
+
+void Waveform::setOffset(double offset) {
+  if (shape_ == Shape::Points) throw InputError("a points waveform has no DC value to set");
+  if (!std::isfinite(offset)) throw InputError("DC value must be finite");
+  offset_ = offset;
+}
+
 Waveform& Waveform::gate(double on, double off) {
   if (!(off > on)) throw InputError("switch-off time must come after switch-on time");
   on_ = on;

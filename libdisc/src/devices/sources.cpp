@@ -1,7 +1,10 @@
 // Independent voltage and current sources.
 #include "disc/devices/sources.hpp"
 
+#include <numbers>
+
 #include "check.hpp"
+#include "disc/error.hpp"
 
 namespace disc {
 
@@ -16,6 +19,69 @@ void VoltageSource::setImpedance(double ohm, double henry) {
   detail::requireNonNegative(name_, "source inductance", henry, "H");
   r_ = ohm;
   l_ = henry;
+}
+
+const std::vector<DeviceParameter>& VoltageSource::parameterTable() const {
+  // Each setter changes a copy of the waveform, so a rejected value leaves the source as it was.
+  auto wave = [](const char* name, const char* unit, double (*get)(const Waveform&),
+                 void (*set)(Waveform&, double)) {
+    return DeviceParameter{
+        name,
+        [get](const Device& d) { return get(static_cast<const VoltageSource&>(d).waveform()); },
+        [set](Device& d, double v) {
+          auto& s = static_cast<VoltageSource&>(d);
+          Waveform w = s.waveform();
+          detail::namedChecks(s.name(), [&] { set(w, v); });
+          s.setWaveform(std::move(w));
+        },
+        unit,
+        {}};
+  };
+  static const std::vector<DeviceParameter> t = {
+      wave(
+          "rms", "V",
+          [](const Waveform& w) {
+            if (!w.isSine()) throw InputError("only a sine source has an rms value");
+            return w.amplitude() / std::numbers::sqrt2;
+          },
+          [](Waveform& w, double v) { w.setAmplitude(std::numbers::sqrt2 * v); }),
+      wave(
+          "amplitude", "V",
+          [](const Waveform& w) {
+            if (!w.isSine()) throw InputError("only a sine source has an amplitude");
+            return w.amplitude();
+          },
+          [](Waveform& w, double v) { w.setAmplitude(v); }),
+      wave(
+          "frequency", "Hz",
+          [](const Waveform& w) {
+            if (!w.isSine()) throw InputError("only a sine source has a frequency");
+            return w.frequency();
+          },
+          [](Waveform& w, double v) { w.setFrequency(v); }),
+      wave(
+          "dc", "V", [](const Waveform& w) { return w.offset(); },
+          [](Waveform& w, double v) { w.setOffset(v); }),
+      wave(
+          "emf", "V", [](const Waveform& w) { return w.offset(); },
+          [](Waveform& w, double v) { w.setOffset(v); }),
+      {"resistance",
+       [](const Device& d) { return static_cast<const VoltageSource&>(d).resistance(); },
+       [](Device& d, double v) {
+         auto& s = static_cast<VoltageSource&>(d);
+         s.setImpedance(v, s.inductance());
+       },
+       "ohm",
+       {}},
+      {"inductance",
+       [](const Device& d) { return static_cast<const VoltageSource&>(d).inductance(); },
+       [](Device& d, double v) {
+         auto& s = static_cast<VoltageSource&>(d);
+         s.setImpedance(s.resistance(), v);
+       },
+       "H",
+       {}}};
+  return t;
 }
 
 std::vector<UnknownSpec> VoltageSource::internalUnknowns() const {

@@ -138,8 +138,8 @@ const KindSpec* kindOf(const std::string& word) {
 }
 
 std::vector<std::string> statementWords() {
-  std::vector<std::string> w = {"title",   "ambient", "plate-type", "use",
-                                "include", "output",  "record",     "run"};
+  std::vector<std::string> w = {"title",  "ambient", "plate-type", "use",  "include",  "output",
+                                "record", "run",     "campaign",   "vary", "tolerance"};
   for (const auto& k : kinds()) w.emplace_back(k.kind);
   return w;
 }
@@ -278,6 +278,8 @@ class Builder {
       const std::string w = word(s);
       if (w == "output" || w == "record" || w == "run")
         late(s);
+      else if (w == "campaign" || w == "vary" || w == "tolerance")
+        campaign(s);
       else if (!isSetup(w) && !kindOf(w))
         unknownStatement(s);
     }
@@ -312,7 +314,8 @@ class Builder {
 
   static bool known(const Statement& s) {
     const std::string w = word(s);
-    return isSetup(w) || kindOf(w) || w == "output" || w == "record" || w == "run";
+    return isSetup(w) || kindOf(w) || w == "output" || w == "record" || w == "run" ||
+           w == "campaign" || w == "vary" || w == "tolerance";
   }
 
   /// A file most of whose statements start with no statement word is no netlist (a wrong
@@ -827,6 +830,133 @@ class Builder {
       }
       nl_.analyses.push_back(a);
     }
+  }
+
+  /// The campaign statements (docs/campaigns.md): `campaign builds=N seed=S plates=redraw|keep`,
+  /// `vary ELEMENT PARAMETER v1 v2 ...` (or from= to= steps=) and `tolerance ELEMENT PARAMETER
+  /// -20% +50% [law=uniform|normal]`.
+  void campaign(const Statement& s) {
+    const std::string w = word(s);
+    const auto& t = s.tokens;
+    CampaignSpec& spec = nl_.campaign;
+    if (w == "campaign") {
+      for (std::size_t k = 1; k < t.size(); ++k) {
+        const Token& tok = t[k];
+        if (!tok.keyValue)
+          return error(tok.where, "campaign takes builds=N, seed=N and plates=redraw|keep");
+        if (tok.key == "builds" || tok.key == "seed") {
+          auto v = number(tok.value, Dim::None, tok.valueWhere);
+          if (!v) continue;
+          const double lo = tok.key == "builds" ? 1.0 : 0.0;
+          if (*v != std::floor(*v) || *v < lo || *v > 9.007e15) {
+            error(tok.valueWhere,
+                  fmt::format("{} must be a whole number of at least {}", tok.key, lo));
+            continue;
+          }
+          if (tok.key == "builds") {
+            if (*v > 1e8) {
+              error(tok.valueWhere, "builds must be at most 1e8");
+              continue;
+            }
+            spec.builds = static_cast<int>(*v);
+          } else {
+            spec.seed = static_cast<std::uint64_t>(*v);
+          }
+        } else if (tok.key == "plates") {
+          if (tok.value != "redraw" && tok.value != "keep")
+            error(tok.valueWhere, "plates is redraw (new plates each build) or keep");
+          else
+            spec.redrawPlates = tok.value == "redraw";
+        } else {
+          error(tok.where, fmt::format("campaign has no parameter '{}'{}", tok.key,
+                                       didYouMean(tok.key, {"builds", "seed", "plates"})));
+        }
+      }
+      spec.given = true;
+      return;
+    }
+    if (t.size() < 4 || t[1].keyValue || t[2].keyValue)
+      return error(s.where, w == "vary"
+                                ? "vary ELEMENT PARAMETER v1 v2 ... (or from=A to=B steps=N)"
+                                : "tolerance ELEMENT PARAMETER -20% +50% (or one band: 10%)");
+    const std::string element = t[1].text, parameter = t[2].text;
+    const Device* d = nl_.circuit.find(element);
+    if (!d) return error(t[1].where, fmt::format("no element named '{}'", element));
+    const DeviceParameter* entry = d->findParameter(parameter);
+    if (!entry) {
+      std::string hint = retiredParameterHint(d->parameterTable(), parameter);
+      if (hint.empty()) hint = didYouMean(parameter, d->parameterNames());
+      return error(t[2].where, fmt::format("{} '{}' has no parameter '{}'{}", d->kind(), element,
+                                           parameter, hint));
+    }
+    const Dim dim = dimOfUnit(entry->unit);
+    if (w == "vary") {
+      CampaignAxis axis{element, parameter, {}};
+      std::optional<double> from, to;
+      int steps = 0;
+      for (std::size_t k = 3; k < t.size(); ++k) {
+        const Token& tok = t[k];
+        if (!tok.keyValue) {
+          if (auto v = number(tok.text, dim, tok.where)) axis.values.push_back(*v);
+        } else if (tok.key == "from" || tok.key == "to") {
+          (tok.key == "from" ? from : to) = number(tok.value, dim, tok.valueWhere);
+        } else if (tok.key == "steps") {
+          auto v = number(tok.value, Dim::None, tok.valueWhere);
+          if (v && (*v != std::floor(*v) || *v < 2 || *v > 1e6))
+            error(tok.valueWhere, "steps must be a whole number from 2 to 1e6");
+          else if (v)
+            steps = static_cast<int>(*v);
+        } else {
+          error(tok.where, fmt::format("vary has no parameter '{}'{}", tok.key,
+                                       didYouMean(tok.key, {"from", "to", "steps"})));
+        }
+      }
+      if (from || to || steps) {
+        if (!from || !to || steps == 0 || !axis.values.empty())
+          return error(s.where, "vary takes either a list of values or all of from=, to=, steps=");
+        for (int k = 0; k < steps; ++k)
+          axis.values.push_back(*from + (*to - *from) * k / (steps - 1));
+      }
+      if (axis.values.empty()) return error(s.where, "vary needs at least one value");
+      spec.axes.push_back(std::move(axis));
+      spec.given = true;
+      return;
+    }
+    // tolerance: one band "10%" (symmetric) or two "-20% +50%".
+    CampaignTolerance tol{element, parameter, 0.0, 0.0, CampaignTolerance::Law::Uniform};
+    std::vector<double> band;
+    for (std::size_t k = 3; k < t.size(); ++k) {
+      const Token& tok = t[k];
+      if (tok.keyValue) {
+        if (tok.key != "law") {
+          error(tok.where, fmt::format("tolerance has no parameter '{}'{}", tok.key,
+                                       didYouMean(tok.key, {"law"})));
+        } else if (tok.value == "uniform" || tok.value == "normal") {
+          tol.law = tok.value == "normal" ? CampaignTolerance::Law::Normal
+                                          : CampaignTolerance::Law::Uniform;
+        } else {
+          error(tok.valueWhere, "law is uniform or normal");
+        }
+        continue;
+      }
+      const std::string& x = tok.text;
+      if (x.size() < 2 || x.back() != '%') {
+        error(tok.where,
+              fmt::format("a tolerance is a percentage such as -20% or +50%, got '{}'", x));
+        continue;
+      }
+      if (auto v = number(x.substr(0, x.size() - 1), Dim::None, tok.where))
+        band.push_back(*v / 100.0);
+    }
+    if (band.size() == 1) band = {-std::abs(band[0]), std::abs(band[0])};
+    if (band.size() != 2)
+      return error(s.where, "tolerance takes one band (10%) or two limits (-20% +50%)");
+    tol.lower = band[0];
+    tol.upper = band[1];
+    if (!(tol.lower <= tol.upper) || !(tol.lower > -1.0))
+      return error(s.where, "give the lower limit first, above -100 %");
+    spec.tolerances.push_back(std::move(tol));
+    spec.given = true;
   }
 
   /// "" when a signal name refers to existing nodes and device quantities.

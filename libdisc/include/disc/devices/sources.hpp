@@ -26,6 +26,9 @@ class VoltageSource : public DeviceBase<VoltageSource> {
   double inductance() const { return l_; }
   void setImpedance(double ohm, double henry);
   int branch() const { return br_; }
+  /// rms, amplitude and frequency of a sine; dc (alias emf, for batteries) is the DC value or
+  /// the sine's offset; resistance and inductance of the source impedance.
+  const std::vector<DeviceParameter>& parameterTable() const override;
 
   std::vector<UnknownSpec> internalUnknowns() const override;
   void bind(const Binding& b) override;

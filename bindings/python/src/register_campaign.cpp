@@ -1,0 +1,89 @@
+// Campaigns: the table as columns (numpy arrays and lists, picklable for a cluster), the
+// summary from columns, and the counter-based generator (checked against numpy's).
+#include <pybind11/numpy.h>
+#include <pybind11/stl.h>
+
+#include "disc/campaign.hpp"
+#include "disc/error.hpp"
+#include "register.hpp"
+
+namespace py = pybind11;
+
+namespace disc::python {
+
+namespace {
+
+/// The table as [(name, unit, values)], values a float64 array or a list of str.
+py::list tableColumns(CampaignTable&& t) {
+  py::list out;
+  for (auto& c : t.columns) {
+    py::object values;
+    if (c.text)
+      values = py::cast(std::move(c.words));
+    else
+      values = py::array_t<double>(static_cast<py::ssize_t>(c.values.size()), c.values.data());
+    out.append(py::make_tuple(c.name, c.unit, values));
+  }
+  return out;
+}
+
+CampaignTable tableFrom(const py::list& columns) {
+  CampaignTable t;
+  for (const auto& item : columns) {
+    const auto tup = item.cast<py::tuple>();
+    CampaignColumn c;
+    c.name = tup[0].cast<std::string>();
+    c.unit = tup[1].cast<std::string>();
+    py::object values = tup[2];
+    if (py::isinstance<py::list>(values)) {
+      c.text = true;
+      c.words = values.cast<std::vector<std::string>>();
+    } else {
+      c.values = values.cast<std::vector<double>>();
+    }
+    t.columns.push_back(std::move(c));
+  }
+  return t;
+}
+
+}  // namespace
+
+void registerCampaign(py::module_& m) {
+  m.def(
+      "run_campaign",
+      [](const Netlist& n, int threads, double stop, std::size_t first, std::size_t count) {
+        CampaignOptions o;
+        o.threads = threads;
+        o.stop = stop;
+        const Netlist copy = n;  // copied under the GIL, run without it
+        CampaignTable t;
+        {
+          py::gil_scoped_release nogil;
+          t = runCampaign(copy, copy.campaign, o, first, count);
+        }
+        return tableColumns(std::move(t));
+      },
+      py::arg("netlist"), py::arg("threads") = 0, py::arg("stop") = 0.0, py::arg("first") = 0,
+      py::arg("count") = 0,
+      "Variants [first, first + count) of the netlist's campaign as [(name, unit, values)].");
+  m.def(
+      "campaign_variants", [](const Netlist& n) { return n.campaign.variants(); },
+      py::arg("netlist"));
+  m.def(
+      "campaign_summary",
+      [](const Netlist& n, const py::list& columns) {
+        const CampaignTable t = tableFrom(columns);
+        const CampaignSummary s = summariseCampaign(n, n.campaign, t);
+        return py::make_tuple(campaignText(s), campaignJson(s), campaignHtml(s, t), campaignCsv(t));
+      },
+      py::arg("netlist"), py::arg("columns"),
+      "(text, JSON, HTML, CSV) of a campaign table given as [(name, unit, values)].");
+  m.def(
+      "philox4x64",
+      [](std::array<std::uint64_t, 4> counter, std::array<std::uint64_t, 2> key) {
+        return philox4x64(counter, key);
+      },
+      py::arg("counter"), py::arg("key"), "Philox4x64-10: four 64-bit words of (counter, key).");
+}
+
+}  // namespace disc::python

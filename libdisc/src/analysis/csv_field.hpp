@@ -1,0 +1,12 @@
+// One CSV field per RFC 4180, shared by the result and campaign tables (private).
+#pragma once
+
+#include <string>
+
+namespace disc {
+
+/// The field, quoted when it holds a comma, a double quote or a line break, each double quote
+/// doubled (RFC 4180, section 2).
+std::string csvField(const std::string& text);
+
+}  // namespace disc
