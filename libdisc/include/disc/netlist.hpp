@@ -52,6 +52,7 @@ struct AnalysisRequest {
 /// The supply's DC output: the node pair and its load element.
 struct OutputSpec {
   std::string positive, negative, load;
+  std::string input;  ///< the source whose power is the input (empty: chosen by the report)
   enum class LoadKind { Auto, Capacitive, Resistive } kind = LoadKind::Auto;
   bool given = false;
 };

@@ -20,15 +20,17 @@ struct Verdict {
 };
 
 struct StackFigures {
-  std::string name, type, material, mode, loadKind;  ///< loadKind: "capacitive" or "resistive"
+  /// loadKind: "capacitive" or "resistive", for the stack's whole rectifier (docs/report.md)
+  std::string name, type, material, mode, loadKind;
+  std::string rectifier;  ///< the stacks joined to this one at a node, itself included, by name
   int plates = 1, arms = 1;
   double peakReverse = 0;                ///< V per plate, largest over plates, settled window
   double rmsReverse = 0;                 ///< V per plate, sine-equivalent AC rms for the load kind
   double rmsRating = 0, peakRating = 0;  ///< V per plate
   double currentAverage = 0, currentRms = 0, currentPeak = 0;  ///< A, whole stack, forward
-  double densityAverage = 0;                  ///< A/cm2, per plate area, average forward per arm
-  double densityRating = 0;                   ///< A/cm2, derated for the ambient
-  double surgePeak = 0;                       ///< A, largest stack current over the whole run
+  double densityAverage = 0;  ///< A/cm2, per plate area, average forward current of the busiest arm
+  double densityRating = 0;   ///< A/cm2, derated for the ambient
+  double surgePeak = 0;       ///< A, largest stack current over the whole run
   double powerForward = 0, powerReverse = 0;  ///< W, whole stack, settled averages
   double powerPerPlate = 0;                   ///< W, average per plate
   double temperatureEnd = 0;                  ///< K, hottest plate at the end of the run
@@ -49,15 +51,30 @@ struct PowerShare {
   double power = 0;  ///< W
 };
 
+/// A battery (a DC source that is neither the load nor the input): a load that charges or
+/// discharges.
+struct BatteryFigures {
+  std::string name;
+  double current = 0;  ///< A, mean, into its + terminal (charging) when positive
+  double power = 0;    ///< W, mean absorbed (charging) when positive
+  std::string state;   ///< "charging" or "discharging"
+};
+
 struct OutputFigures {
   double mean = 0, ripplePeakToPeak = 0, rippleRms = 0, rippleFactor = 0;  ///< V, V, V, -
-  /// inputPower: what the sources other than the load deliver (the mains, or a battery that
-  /// feeds the circuit); a battery named as the load is output, never input.
-  double loadCurrent = 0, outputPower = 0, inputPower = 0, efficiency = 0, powerFactor = 0;
+  /// inputPower: what the input delivers: the source named by `output ... input=`, else every
+  /// alternating source (the mains), else (a DC-fed circuit) every source other than the load.
+  /// A battery is never input unless named or the circuit has no alternating source.
+  double loadCurrent = 0, outputPower = 0, inputPower = 0, powerFactor = 0;
+  /// Useful power (the load's, when it absorbs, plus the charging batteries') over what the
+  /// input and any discharging battery deliver; 0 when the load delivers (a discharging battery).
+  double efficiency = 0;
   /// "charging" or "discharging" when the load is a source (a battery), else empty.
   std::string loadState;
-  /// Every other device's mean absorbed power: inputPower = outputPower + the sum of these,
-  /// within the run's tolerance (Tellegen's theorem).
+  std::vector<std::string> inputs;        ///< the sources counted as input
+  std::vector<BatteryFigures> batteries;  ///< the other DC sources
+  /// Every other device's mean absorbed power: inputPower = outputPower + the sum of these +
+  /// the batteries' power, within the run's tolerance (Tellegen's theorem).
   std::vector<PowerShare> losses;
   double secondaryRmsCurrent = 0, secondaryVA = 0;  ///< A, VA (0 without a transformer)
   bool hasTransformer = false;
@@ -88,8 +105,23 @@ std::vector<std::string> reportSignals(const Netlist& netlist);
 /// Computes the report from a transient result that recorded reportSignals().
 SupplyReport makeSupplyReport(const Netlist& netlist, const Result& transient);
 
-/// The safety cautions every report carries (the selenium-fume caution first when a selenium
-/// plate is involved).
+/// What in a circuit can hurt someone: chooses the cautions of a report.
+struct Hazards {
+  bool selenium = false;           ///< a selenium plate (fumes when overheated)
+  bool mains = false;              ///< a source above 50 V rms or 120 V DC, or a mains waveform
+  bool transformerless = false;    ///< mains with no transformer: the chassis may be live
+  bool valves = false;             ///< a valve load (HT)
+  bool chargedCapacitors = false;  ///< a capacitor above 50 V or holding more than 1 J
+  bool battery = false;            ///< a battery (gassing, short-circuit current)
+  /// Everything, for work whose circuit is not known (a fitted plate).
+  static Hazards all() { return {true, true, true, true, true, false}; }
+};
+/// What the circuit contains and the run reached (`transient` may be null: from the netlist).
+Hazards hazardsOf(const Netlist& netlist, const Result* transient);
+/// The safety cautions for those hazards (the selenium-fume caution first); the general
+/// electrical caution always.
+std::vector<std::string> safetyCautions(const Hazards& hazards);
+/// All cautions, with or without the selenium one (a plate of unknown circuit).
 std::vector<std::string> safetyCautions(bool selenium);
 /// The closing disclaimer of every report: a simulation defers to codes and technicians.
 std::string simulationDisclaimer();

@@ -127,8 +127,15 @@ std::string reportText(const SupplyReport& r) {
   line(fmt::format(
       "  output power          {:10.3f} W{}", o.outputPower,
       o.loadState.empty() ? "" : fmt::format(" (the load is a battery, {})", o.loadState)));
-  line(fmt::format("  input power           {:10.3f} W   efficiency {:.1f} %   power factor {:.3f}",
-                   o.inputPower, 100 * o.efficiency, o.powerFactor));
+  line(fmt::format(
+      "  input power           {:10.3f} W from {}   efficiency {}   power factor {:.3f}",
+      o.inputPower, o.inputs.empty() ? "no source" : fmt::format("{}", fmt::join(o.inputs, ", ")),
+      o.loadState == "discharging" ? std::string("none (the load discharges)")
+                                   : fmt::format("{:.1f} %", 100 * o.efficiency),
+      o.powerFactor));
+  for (const auto& b : o.batteries)
+    line(fmt::format("  battery {:<14}{:10.3f} W, {:.4g} A: {}", b.name, b.power, b.current,
+                     b.state));
   if (!o.losses.empty()) line("  losses                " + lossSummary(o.losses));
   if (o.hasTransformer)
     line(fmt::format("  transformer secondary {:10.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent,
@@ -184,6 +191,10 @@ std::string reportJson(const SupplyReport& r) {
   const auto& o = r.output;
   nlohmann::json losses = nlohmann::json::object();
   for (const auto& l : o.losses) losses[l.device] = l.power;
+  nlohmann::json batteries = nlohmann::json::array();
+  for (const auto& b : o.batteries)
+    batteries.push_back(
+        {{"name", b.name}, {"current_A", b.current}, {"power_W", b.power}, {"state", b.state}});
   j["output"] = {{"mean_V", o.mean},
                  {"ripple_pp_V", o.ripplePeakToPeak},
                  {"ripple_rms_V", o.rippleRms},
@@ -193,6 +204,8 @@ std::string reportJson(const SupplyReport& r) {
                  {"input_power_W", o.inputPower},
                  {"efficiency", o.efficiency},
                  {"load_state", o.loadState},
+                 {"inputs", o.inputs},
+                 {"batteries", batteries},
                  {"losses_W", losses},
                  {"power_factor", o.powerFactor},
                  {"secondary_rms_current_A", o.secondaryRmsCurrent},
@@ -206,6 +219,7 @@ std::string reportJson(const SupplyReport& r) {
                            {"material", s.material},
                            {"mode", s.mode},
                            {"load_kind", s.loadKind},
+                           {"rectifier", s.rectifier},
                            {"plates_per_arm", s.plates},
                            {"arms", s.arms},
                            {"peak_reverse_per_plate_V", s.peakReverse},
@@ -433,6 +447,10 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   row("output / input power", fmt::format("{:.3f} W / {:.3f} W, efficiency {:.1f} %", o.outputPower,
                                           o.inputPower, 100 * o.efficiency));
   if (!o.loadState.empty()) row("battery load", o.loadState);
+  if (!o.inputs.empty()) row("input", escapeHtml(fmt::format("{}", fmt::join(o.inputs, ", "))));
+  for (const auto& b : o.batteries)
+    row("battery " + escapeHtml(b.name),
+        fmt::format("{:.3f} W, {:.4g} A, {}", b.power, b.current, b.state));
   if (!o.losses.empty()) row("losses", escapeHtml(lossSummary(o.losses)));
   row("input power factor", fmt::format("{:.3f}", o.powerFactor));
   if (o.hasTransformer)

@@ -60,6 +60,8 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
       s.push_back("p:" + d->name());
       s.push_back("i:" + d->name());
       s.push_back(fmt::format("v:{},{}", vname(c, t[0]), vname(c, t[1])));
+    } else if (dynamic_cast<const Capacitor*>(d.get())) {
+      s.push_back(fmt::format("v:{},{}", vname(c, t[0]), vname(c, t[1])));
     } else if (dynamic_cast<const Transformer*>(d.get())) {
       s.push_back("i2:" + d->name());
       s.push_back(fmt::format("v:{},{}", vname(c, t[2]), vname(c, t[3])));
@@ -143,29 +145,47 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     o.loadCurrent = measure::mean(t, r["i:" + nl.output.load], w0, w1);
     o.outputPower = measure::mean(t, r["p:" + nl.output.load], w0, w1);
   }
-  double vrms = 0, irms = 0;
+  // Input: the named source, else the alternating sources (the mains), else every source; a
+  // DC source that is not input is a battery: a load that charges or discharges.
+  const auto sourceWave = [](const Device& d) -> const Waveform* {
+    if (auto* v = dynamic_cast<const VoltageSource*>(&d)) return &v->waveform();
+    if (auto* i = dynamic_cast<const CurrentSource*>(&d)) return &i->waveform();
+    return nullptr;
+  };
+  bool anyAlternating = false;
+  for (const auto& d : c.devices())
+    if (const Waveform* w = sourceWave(*d); w && w->frequency() > 0.0) anyAlternating = true;
+  double vrms = 0, irms = 0, charging = 0, discharging = 0;
   for (const auto& d : c.devices()) {
     const auto& term = d->terminals();
     const bool isLoad = nl.output.given && d->name() == nl.output.load;
-    const bool isSource = dynamic_cast<const VoltageSource*>(d.get()) != nullptr ||
-                          dynamic_cast<const CurrentSource*>(d.get()) != nullptr;
+    const Waveform* wave = sourceWave(*d);
     if (isLoad) {
-      if (isSource) o.loadState = o.outputPower >= 0.0 ? "charging" : "discharging";
+      if (wave) o.loadState = o.outputPower >= 0.0 ? "charging" : "discharging";
       continue;
     }
-    if (isSource) {
-      o.inputPower += -measure::mean(t, r["p:" + d->name()], w0, w1);
-    } else if (r.has("p:" + d->name())) {
-      o.losses.push_back(
-          {d->name(), std::string(d->kind()), measure::mean(t, r["p:" + d->name()], w0, w1)});
-    }
-    if (dynamic_cast<const VoltageSource*>(d.get())) {
-      if (vrms == 0.0) {
-        vrms = measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))], w0,
-                            w1);
-        irms = measure::rms(t, r["i:" + d->name()], w0, w1);
+    const double p = r.has("p:" + d->name()) ? measure::mean(t, r["p:" + d->name()], w0, w1) : 0;
+    if (wave) {
+      const bool input = !nl.output.input.empty() ? d->name() == nl.output.input
+                                                  : !anyAlternating || wave->frequency() > 0.0;
+      if (input) {
+        o.inputs.push_back(d->name());
+        o.inputPower += -p;
+        if (vrms == 0.0 && dynamic_cast<const VoltageSource*>(d.get())) {
+          vrms = measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))],
+                              w0, w1);
+          irms = measure::rms(t, r["i:" + d->name()], w0, w1);
+        }
+      } else {
+        BatteryFigures b{d->name(), measure::mean(t, r["i:" + d->name()], w0, w1), p,
+                         p >= 0.0 ? "charging" : "discharging"};
+        (p >= 0.0 ? charging : discharging) += std::abs(p);
+        o.batteries.push_back(b);
       }
-    } else if (dynamic_cast<const Transformer*>(d.get()) && !o.hasTransformer) {
+    } else if (r.has("p:" + d->name())) {
+      o.losses.push_back({d->name(), std::string(d->kind()), p});
+    }
+    if (dynamic_cast<const Transformer*>(d.get()) && !o.hasTransformer) {
       o.hasTransformer = true;
       o.secondaryRmsCurrent = measure::rms(t, r["i2:" + d->name()], w0, w1);
       o.secondaryVA =
@@ -173,30 +193,61 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
           measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[2]), vname(c, term[3]))], w0, w1);
     }
   }
-  o.efficiency = o.inputPower > 0 && o.outputPower > 0 ? o.outputPower / o.inputPower : 0.0;
+  const double supplied = std::max(0.0, o.inputPower) + discharging;
+  const double useful = std::max(0.0, o.outputPower) + charging;
+  o.efficiency = supplied > 0 && o.outputPower > 0 ? useful / supplied : 0.0;
   o.powerFactor = vrms * irms > 0 ? o.inputPower / (vrms * irms) : 0.0;
+  if (o.loadState == "discharging")
+    rep.warnings.push_back(fmt::format(
+        "the load {} is a battery that discharges ({:.3g} A out of it): the supply does not "
+        "charge it; check the mains, the transformer's tap and the rectifier",
+        nl.output.load, std::abs(o.loadCurrent)));
+  for (const auto& b : o.batteries)
+    if (b.state == "discharging")
+      rep.warnings.push_back(fmt::format("battery {} discharges: it delivers {:.3g} W ({:.3g} A)",
+                                         b.name, -b.power, std::abs(b.current)));
+
+  // Rectifiers: stacks joined at a node (ground included) work into the same load, so both
+  // halves of a doubler, the four arms of a bridge and paralleled stacks are judged alike. A
+  // rectifier works into a capacitive load when a capacitor connects to any of its stacks'
+  // terminals other than ground.
+  std::vector<const Stack*> stacks;
+  for (const auto& d : c.devices())
+    if (const auto* st = dynamic_cast<const Stack*>(d.get())) stacks.push_back(st);
+  std::vector<std::size_t> group(stacks.size());
+  for (std::size_t k = 0; k < stacks.size(); ++k) group[k] = k;
+  const auto root = [&](std::size_t k) {
+    while (group[k] != k) k = group[k] = group[group[k]];
+    return k;
+  };
+  for (std::size_t a = 0; a < stacks.size(); ++a)
+    for (std::size_t b = a + 1; b < stacks.size(); ++b)
+      for (NodeId na : stacks[a]->terminals())
+        for (NodeId nb : stacks[b]->terminals())
+          if (na == nb) group[root(a)] = root(b);
+  std::vector<bool> groupCapacitive(stacks.size(), false);
+  for (const auto& e : c.devices())
+    if (dynamic_cast<const Capacitor*>(e.get()))
+      for (NodeId n : e->terminals())
+        for (std::size_t k = 0; k < stacks.size(); ++k)
+          for (NodeId m : stacks[k]->terminals())
+            if (n != kGround && n == m) groupCapacitive[root(k)] = true;
 
   // Stacks.
-  bool selenium = false;
-  for (const auto& d : c.devices()) {
-    const auto* st = dynamic_cast<const Stack*>(d.get());
-    if (!st) continue;
+  for (std::size_t index = 0; index < stacks.size(); ++index) {
+    const Stack* st = stacks[index];
     const PlateType& pt = st->type();
-    selenium = selenium || pt.material == "selenium";
     StackFigures s;
+    for (std::size_t k = 0; k < stacks.size(); ++k)
+      if (root(k) == root(index))
+        s.rectifier += (s.rectifier.empty() ? "" : " ") + stacks[k]->name();
     s.name = st->name();
     s.type = pt.name;
     s.material = pt.material;
     s.plates = st->options().plates;
     s.arms = st->options().arms;
     s.mode = st->options().mode == StackMode::Lumped ? "lumped" : "per-plate";
-    // Load kind: capacitive when a capacitor hangs on either end of the stack, unless stated.
-    bool capacitive = false;
-    for (const auto& e : c.devices())
-      if (dynamic_cast<const Capacitor*>(e.get()))
-        for (NodeId n : e->terminals())
-          if (n != kGround && (n == st->terminals()[0] || n == st->terminals()[1]))
-            capacitive = true;
+    bool capacitive = groupCapacitive[root(index)];
     if (nl.output.kind != OutputSpec::LoadKind::Auto)
       capacitive = nl.output.kind == OutputSpec::LoadKind::Capacitive;
     s.loadKind = capacitive ? "capacitive" : "resistive";
@@ -214,7 +265,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     double surge = 0.0;
     for (double x : i) surge = std::max(surge, std::abs(x));
     s.surgePeak = surge;
-    s.densityAverage = s.currentAverage / s.arms / pt.physics.areaCm2;
+
     const double ta = c.ambient(), tmax = pt.ratings.maxPlateTemperature,
                  tref = pt.ratings.ambientReference;
     const double derate = ta <= tref ? 1.0 : std::clamp((tmax - ta) / (tmax - tref), 0.0, 1.0);
@@ -244,7 +295,10 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
       s.armShare.push_back(measure::mean(t, r[fmt::format("iarm:{}#{}", n, m)], w0, w1));
       armTotal += s.armShare.back();
     }
-    for (double& a : s.armShare) a = armTotal != 0.0 ? a / armTotal : 0.0;
+    for (double& a : s.armShare) a = armTotal != 0.0 ? a / armTotal : 1.0 / s.arms;
+    // The busiest arm is judged: its plates carry more than the average.
+    s.densityAverage = s.currentAverage * *std::max_element(s.armShare.begin(), s.armShare.end()) /
+                       pt.physics.areaCm2;
     s.formingStart = r["form:" + n].front();
     s.formingEnd = r["form:" + n].back();
 
@@ -257,7 +311,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
                                            capacitive ? "2 sqrt 2" : "sqrt 2", s.loadKind)));
     s.verdicts.push_back(judge(
         "average forward current density", s.densityAverage * 1e3, s.densityRating * 1e3, "mA/cm2",
-        "average forward current per arm over the plate area against the "
+        "average forward current of the busiest arm over the plate area against the "
         "rated density, derated linearly to zero at the plate limit above the "
         "reference ambient"));
     const Verdict tv = judge("plate temperature rise (steady-state estimate)",
@@ -298,24 +352,94 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
                                     "figures cover the run up to there",
                                     end));
 
-  rep.cautions = safetyCautions(selenium);
+  rep.cautions = safetyCautions(hazardsOf(nl, &r));
   rep.disclaimer = simulationDisclaimer();
   return rep;
 }
 
-std::vector<std::string> safetyCautions(bool selenium) {
-  std::vector<std::string> c = {
-      "Mains and the high voltages of valve equipment can kill; a transformerless (AC/DC) set can "
-      "have a live chassis: work through an isolation transformer.",
-      "Reservoir and filter capacitors stay charged after switch-off: discharge them through a "
-      "resistor and check with a meter before touching."};
-  if (selenium)
-    c.insert(c.begin(),
-             "An overheated or failing selenium rectifier releases toxic fumes with a strong foul "
-             "smell (the smell is no safe warning): switch off, ventilate, leave the room, do not "
-             "inhale, let it cool, and dispose of the plates as hazardous waste (they contain "
-             "selenium and cadmium).");
+Hazards hazardsOf(const Netlist& nl, const Result* r) {
+  // Thresholds: the extra-low-voltage band ends at 50 V AC rms and 120 V ripple-free DC (IEC
+  // 61140, docs/sources.md); a capacitor holding more than 1 J can burn and startle (common
+  // practice).
+  constexpr double kAcRms = 50.0, kDc = 120.0, kCapVolts = 50.0, kCapJoules = 1.0;
+  const Circuit& c = nl.circuit;
+  Hazards h;
+  bool transformer = false;
+  for (const auto& d : c.devices()) {
+    if (const auto* st = dynamic_cast<const Stack*>(d.get()))
+      h.selenium = h.selenium || st->type().material == "selenium";
+    transformer = transformer || dynamic_cast<const Transformer*>(d.get()) != nullptr;
+    h.valves = h.valves || d->kind() == "valve load";
+    const Waveform* w = nullptr;
+    if (auto* v = dynamic_cast<const VoltageSource*>(d.get())) w = &v->waveform();
+    if (auto* i = dynamic_cast<const CurrentSource*>(d.get())) w = &i->waveform();
+    if (w && dynamic_cast<const VoltageSource*>(d.get())) {
+      // The source's largest EMF: over the run when recorded (a mains switched on late, a
+      // schedule), else over its first second.
+      double peak = 0.0;
+      const auto& t = d->terminals();
+      const std::string sig = fmt::format("v:{},{}", c.nodeName(t[0]), c.nodeName(t[1]));
+      if (r && r->has(sig))
+        for (double x : (*r)[sig]) peak = std::max(peak, std::abs(x));
+      else
+        for (int k = 0; k <= 2000; ++k) peak = std::max(peak, std::abs(w->value(k / 2000.0)));
+      const bool alternating = w->frequency() > 0.0;
+      if (alternating ? peak / std::numbers::sqrt2 > kAcRms : peak > kDc) h.mains = true;
+      h.battery = h.battery || (!alternating && peak <= kDc);
+    }
+  }
+  h.transformerless = h.mains && !transformer;
+  for (const auto& d : c.devices()) {
+    const auto* cap = dynamic_cast<const Capacitor*>(d.get());
+    if (!cap) continue;
+    const auto& t = d->terminals();
+    const std::string sig = fmt::format("v:{},{}", c.nodeName(t[0]), c.nodeName(t[1]));
+    double v = 0.0;
+    if (r && r->has(sig))
+      for (double x : (*r)[sig]) v = std::max(v, std::abs(x));
+    else
+      v = h.mains || h.valves ? kCapVolts + 1.0 : 0.0;  // not run: assume the worst when HT
+    const double farad = d->parameter("capacitance");
+    if (v > kCapVolts || 0.5 * farad * v * v > kCapJoules) h.chargedCapacitors = true;
+  }
+  return h;
+}
+
+std::vector<std::string> safetyCautions(const Hazards& h) {
+  std::vector<std::string> c;
+  if (h.selenium)
+    c.push_back(
+        "An overheated or failing selenium rectifier releases toxic fumes with a strong foul "
+        "smell (the smell is no safe warning): switch off, ventilate, leave the room, do not "
+        "inhale, let it cool, and dispose of the plates as hazardous waste (they contain "
+        "selenium and cadmium).");
+  if (h.mains || h.valves)
+    c.push_back(std::string("Mains") +
+                (h.valves ? " and the high voltages of valve equipment" : "") + " can kill." +
+                (h.transformerless
+                     ? " This circuit has no mains transformer: the chassis can be live; work "
+                       "through an isolation transformer."
+                     : " Work with the set unplugged, or through an isolation transformer."));
+  if (h.chargedCapacitors)
+    c.push_back(
+        "Reservoir and filter capacitors stay charged after switch-off: discharge them through a "
+        "resistor and check with a meter before touching.");
+  if (h.battery)
+    c.push_back(
+        "A charging lead-acid battery gives off hydrogen, which explodes with a spark: ventilate, "
+        "connect the clamps before switching the charger on and disconnect them after switching "
+        "it off; a short circuit across a battery melts tools and rings; acid burns (wear "
+        "goggles).");
+  c.push_back(
+      "Work on live equipment only where you must, with one hand, and know where the switch "
+      "is.");
   return c;
+}
+
+std::vector<std::string> safetyCautions(bool selenium) {
+  Hazards h = Hazards::all();
+  h.selenium = selenium;
+  return safetyCautions(h);
 }
 
 std::string simulationDisclaimer() {

@@ -731,6 +731,14 @@ class Builder {
           if (!c.find(t[k].value))
             return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
           nl_.output.load = t[k].value;
+        } else if (t[k].keyValue && t[k].key == "input") {
+          const Device* d = c.find(t[k].value);
+          if (!d) return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
+          if (d->kind() != "voltage source" && d->kind() != "current source")
+            return error(t[k].valueWhere,
+                         fmt::format("input= names the source that feeds the supply; '{}' is a {}",
+                                     t[k].value, d->kind()));
+          nl_.output.input = t[k].value;
         } else if (t[k].keyValue && t[k].key == "kind") {
           if (t[k].value == "capacitive")
             nl_.output.kind = OutputSpec::LoadKind::Capacitive;
@@ -739,8 +747,9 @@ class Builder {
           else
             return error(t[k].valueWhere, "kind is capacitive or resistive");
         } else {
-          return error(t[k].where,
-                       fmt::format("unexpected '{}': output takes load= and kind=", t[k].text));
+          return error(
+              t[k].where,
+              fmt::format("unexpected '{}': output takes load=, kind= and input=", t[k].text));
         }
       }
       if (nl_.output.load.empty())
