@@ -52,6 +52,15 @@ double bisect(double lo, double hi, const std::function<double(double)>& f) {
   return 0.5 * (lo + hi);
 }
 
+// A 10 V source into two 1k resistors; the output is v:b.
+const std::string kDivider = R"(
+voltage VS a gnd dc=10V
+resistor R1 a b 1k
+resistor R2 b gnd 1k
+record v:b
+run operating-point
+)";
+
 }  // namespace
 
 TEST_CASE("Philox4x64-10 gives the published known answers", "[campaign]") {
@@ -96,13 +105,7 @@ TEST_CASE("A variant's numbers follow from the seed and its index alone", "[camp
 }
 
 TEST_CASE("Campaign statements declare the grid, the builds and the tolerances", "[campaign]") {
-  const Netlist nl = parseNetlist(R"(
-voltage VS a gnd dc=10V
-resistor R1 a b 1k
-resistor R2 b gnd 1k
-record v:b
-run operating-point
-campaign builds=4 seed=9 plates=keep
+  const Netlist nl = parseNetlist(kDivider + R"(campaign builds=4 seed=9 plates=keep
 vary R1 resistance 500 1k 2k
 vary R2 resistance from=1k to=3k steps=3
 tolerance VS dc 10%
@@ -335,13 +338,7 @@ TEST_CASE("The spread of a linear figure matches first-order propagation (GUM)",
   // with their +-5 % bands as 3 standard deviations. JCGM 100:2008 (GUM) 5.1.2: u_c^2 = sum
   // (df/dx_i)^2 u^2(x_i); 4.3.7: a rectangular distribution of half-width a has u = a / sqrt(3).
   // At the nominal 10 V, 1k, 1k: df/dVs = 1/2, df/dR1 = -df/dR2 = -2.5e-3 V/ohm.
-  const Netlist nl = parseNetlist(R"(
-voltage VS a gnd dc=10V
-resistor R1 a b 1k
-resistor R2 b gnd 1k
-record v:b
-run operating-point
-campaign builds=4000 seed=5
+  const Netlist nl = parseNetlist(kDivider + R"(campaign builds=4000 seed=5
 tolerance VS dc 10%
 tolerance R1 resistance 5% law=normal
 tolerance R2 resistance 5% law=normal

@@ -70,3 +70,22 @@ def test_dask_local_cluster_gives_the_local_table():
             distributed.Client(cluster) as client:
         remote = disc.campaign(SIGNALLING, client=client, chunk=1, **MC).table
     assert remote.equals(local)
+
+
+def test_progress_reports_and_cancels():
+    calls = []
+    disc.campaign(SIGNALLING, threads=1, progress=lambda d, t: calls.append((d, t)), **MC)
+    assert calls and calls[-1] == (4, 4)  # the last variant always reports
+    with pytest.raises(KeyboardInterrupt, match="cancelled"):
+        disc.campaign(SIGNALLING, threads=1, progress=lambda d, t: False, **MC)
+
+
+def test_a_circuit_runs_locally_but_not_on_a_cluster():
+    need_module("pandas")
+    c = disc.load(SIGNALLING)
+    c["RRELAYS"].resistance = 80.0  # the file no longer describes it
+    res = disc.campaign(c, threads=1, **MC)
+    t = res.table  # the changed load (Ohm's law), not the file's 60 ohm
+    np.testing.assert_allclose(t["output.load_current"], t["output.mean"] / 80.0, rtol=1e-6)
+    with pytest.raises(ValueError, match="not a Circuit"):
+        disc.campaign(c, client=object(), **MC)

@@ -28,7 +28,7 @@ def kernel(tmp_path_factory):
 
 
 @pytest.mark.parametrize("name", ["parallel-stacks.ipynb", "radio-pre-power-check.ipynb",
-                                  "fit-and-replace.ipynb"])
+                                  "fit-and-replace.ipynb", "three-columns-campaign.ipynb"])
 def test_notebook_runs(name, kernel):
     nb = nbformat.read(NOTEBOOKS / name, as_version=4)
     client = nbclient.NotebookClient(nb, timeout=600, kernel_name=kernel,

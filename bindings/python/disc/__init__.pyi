@@ -262,3 +262,21 @@ def model_current(type: PlateType, trace: Trace, plates: int = ...,
 def judge_plate_health(plate: PlateType, healthy: PlateType, kelvin: float = ...) -> PlateHealth: ...
 def replace_stacks(path: str | PathLike[str], stacks: str | Sequence[str], *,
                    diode: str | None = ..., loads: Iterable[float] = ...) -> ReplacementDesign: ...
+
+class CampaignResult:
+    text: str                   # the summary, the restorer's reading first
+    summary: dict[str, Any]     # the summary as campaign.json
+    html: str
+    csv: str
+    @property
+    def table(self) -> Any: ...  # pandas.DataFrame, one row per variant; units in .attrs["units"]
+    @property
+    def reading(self) -> list[str]: ...
+    def write(self, folder: str | PathLike[str]) -> list[str]: ...
+
+def campaign(source: str | PathLike[str] | Circuit, builds: int | None = ...,
+             seed: int | None = ..., vary: Sequence[str] | None = ...,
+             tolerance: Sequence[str] | None = ..., keep_plates: bool = ..., threads: int = ...,
+             stop: float = ..., progress: Callable[[int, int], bool | None] | None = ...,
+             client: Any = ..., chunk: int | None = ...,
+             worker_threads: int = ...) -> CampaignResult: ...

@@ -74,10 +74,9 @@ def _statements(builds, seed, vary, tolerance, keep_plates):
 def _source(source):
     """(netlist text or None, name, native netlist) of a path, netlist text or Circuit."""
     if isinstance(source, Circuit):
-        net = source._net.clone()
-        path = pathlib.Path(net.path)
-        text = path.read_text() if path.is_file() else None
-        return text, net.path, net
+        # A circuit may have been changed since it was read: it has no text a worker could
+        # rebuild it from.
+        return None, source._net.path, source._net.clone()
     if isinstance(source, pathlib.Path) or (isinstance(source, str) and "\n" not in source
                                             and source.endswith(".disc")):
         path = pathlib.Path(source)
@@ -108,35 +107,49 @@ def _join(parts):
 
 
 def campaign(source, builds=None, seed=None, vary=None, tolerance=None, keep_plates=False,
-             threads=0, stop=0.0, client=None, chunk=None, worker_threads=1):
+             threads=0, stop=0.0, progress=None, client=None, chunk=None, worker_threads=1):
     """Runs a campaign: the netlist's own (`campaign`, `vary`, `tolerance` statements) with these
     additions, in the language's words: vary=["RRELAYS resistance 40 60 80"],
     tolerance=["C1 capacitance -20% +50%", "MAINS rms 10%"], builds=1000, seed=7,
     keep_plates=True (no new plates per build).
 
     source: a .disc path, netlist text or a Circuit. threads: local worker threads (0: every
-    core). stop: transient end time, s (0: the netlist's run).
+    core). stop: transient end time, s (0: the netlist's run). progress(done, total): called at
+    most every 0.1 s locally, and as each chunk returns from a cluster; a False return cancels
+    a local run (KeyboardInterrupt, as Ctrl-C).
 
     client: a dask.distributed Client. The variants are sent in chunks of `chunk` indices
     (default: about four chunks per worker); each worker rebuilds the circuit from the netlist
     text (files it includes or uses must exist at the same paths on the workers) and runs its
     chunk with `worker_threads` threads. The rows come back in variant order, identical to a
-    local run's."""
+    local run's. A Circuit cannot go to a cluster (it may differ from its file): give the path
+    or the text."""
     text, name, net = _source(source)
     statements = _statements(builds, seed, vary, tolerance, keep_plates)
     for s in statements:
         net.statement(s)
     if client is None:
-        return CampaignResult(net, _disc.run_campaign(net, threads=int(threads), stop=float(stop)))
+        return CampaignResult(net, _disc.run_campaign(net, threads=int(threads), stop=float(stop),
+                                                      progress=progress))
     if text is None:
         raise ValueError("a cluster run rebuilds the circuit from netlist text on each worker: "
-                         "give a .disc path or netlist text, or load the circuit from a file")
+                         "give a .disc path or netlist text, not a Circuit")
     total = _disc.campaign_variants(net)
     if chunk is None:
         workers = max(1, len(client.scheduler_info().get("workers", {})))
         chunk = max(1, -(-total // (4 * workers)))
-    starts = list(range(0, total, int(chunk)))
-    futures = [client.submit(_chunk, text, name, statements, first, min(int(chunk), total - first),
+    chunk = int(chunk)
+    if chunk < 1:
+        raise ValueError(f"chunk must be at least 1 variant, got {chunk}")
+    starts = list(range(0, total, chunk))
+    futures = [client.submit(_chunk, text, name, statements, first, min(chunk, total - first),
                              float(stop), int(worker_threads), pure=False) for first in starts]
+    if progress is not None:
+        from distributed import as_completed
+
+        done = 0
+        for f in as_completed(futures):
+            done += min(chunk, total - starts[futures.index(f)])
+            progress(done, total)
     parts = client.gather(futures)  # in submission order: variant order
     return CampaignResult(net, _join(parts))

@@ -3,6 +3,10 @@
 #include <pybind11/numpy.h>
 #include <pybind11/stl.h>
 
+#include <chrono>
+#include <memory>
+#include <mutex>
+
 #include "disc/campaign.hpp"
 #include "disc/error.hpp"
 #include "register.hpp"
@@ -46,15 +50,46 @@ CampaignTable tableFrom(const py::list& columns) {
   return t;
 }
 
+/// The campaign's progress callback, called from its worker threads as variants finish. It
+/// takes the GIL at most every 0.1 s of wall time (and for the last variant), to let Python
+/// deliver Ctrl-C and to call `callback(done, total)` when one is given (a false return
+/// cancels the campaign). The lock keeps one worker at a time in here.
+std::function<bool(std::size_t, std::size_t)> campaignProgress(py::handle callback) {
+  using Clock = std::chrono::steady_clock;
+  struct State {
+    std::mutex lock;
+    Clock::time_point next = Clock::now();
+  };
+  auto state = std::make_shared<State>();
+  return [callback, state](std::size_t done, std::size_t total) {
+    const std::lock_guard<std::mutex> hold(state->lock);
+    const auto now = Clock::now();
+    if (now < state->next && done < total) return true;
+    state->next = now + std::chrono::milliseconds(100);
+    py::gil_scoped_acquire gil;
+    if (PyErr_CheckSignals() != 0) {
+      PyErr_Clear();
+      return false;
+    }
+    if (!callback.is_none()) {
+      py::object keepGoing = callback(done, total);
+      if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
+    }
+    return true;
+  };
+}
+
 }  // namespace
 
 void registerCampaign(py::module_& m) {
   m.def(
       "run_campaign",
-      [](const Netlist& n, int threads, double stop, std::size_t first, std::size_t count) {
+      [](const Netlist& n, int threads, double stop, std::size_t first, std::size_t count,
+         py::object progress) {
         CampaignOptions o;
         o.threads = threads;
         o.stop = stop;
+        o.progress = campaignProgress(progress);
         const Netlist copy = n;  // copied under the GIL, run without it
         CampaignTable t;
         {
@@ -64,8 +99,9 @@ void registerCampaign(py::module_& m) {
         return tableColumns(std::move(t));
       },
       py::arg("netlist"), py::arg("threads") = 0, py::arg("stop") = 0.0, py::arg("first") = 0,
-      py::arg("count") = 0,
-      "Variants [first, first + count) of the netlist's campaign as [(name, unit, values)].");
+      py::arg("count") = 0, py::arg("progress") = py::none(),
+      "Variants [first, first + count) of the netlist's campaign as [(name, unit, values)]; "
+      "progress(done, total) at most every 0.1 s (False cancels: KeyboardInterrupt).");
   m.def(
       "campaign_variants", [](const Netlist& n) { return n.campaign.variants(); },
       py::arg("netlist"));

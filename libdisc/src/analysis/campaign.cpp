@@ -13,7 +13,7 @@
 #include <limits>
 #include <numbers>
 
-#include "analysis/csv_field.hpp"
+#include "analysis/text_fields.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/error.hpp"
 #include "disc/measures.hpp"

@@ -6,6 +6,7 @@
 #include <cmath>
 #include <nlohmann/json.hpp>
 
+#include "analysis/text_fields.hpp"
 #include "disc/campaign.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/error.hpp"
@@ -169,8 +170,10 @@ CampaignSummary summariseCampaign(const Netlist& nl, const CampaignSpec& spec,
         sh.temperatureLimit - 273.15));
     if (sh.ratedCurrent > 0)
       out.reading.push_back(fmt::format(
-          "Derate {} to {:.3g} A average forward current ({} of its {:.3g} A equal-sharing "
-          "rating) to keep every column within its rating in 95 % of builds.",
+          "Derate {} to about {:.3g} A average forward current ({} of its {:.3g} A "
+          "equal-sharing rating) to keep its heaviest column within its share of the rating in "
+          "95 % of builds (first order, at the simulated load: confirm with a campaign at the "
+          "derated load).",
           sh.stack, sh.deratedCurrent, percent(sh.deratedCurrent / sh.ratedCurrent),
           sh.ratedCurrent));
   }
@@ -178,8 +181,16 @@ CampaignSummary summariseCampaign(const Netlist& nl, const CampaignSpec& spec,
   for (const auto& r : out.ratings)
     if (r.fractionExceeds > 0) {
       any = true;
-      out.reading.push_back(fmt::format("{}: {} exceeds its rating in {} of builds.", r.stack,
-                                        r.figure, percent(r.fractionExceeds)));
+      // An arm's verdict column ("arm2.verdict") reads as its column letter.
+      const bool arm = r.figure.rfind("arm", 0) == 0 && r.figure.size() > 11 &&
+                       r.figure.compare(r.figure.size() - 8, 8, ".verdict") == 0;
+      out.reading.push_back(
+          arm ? fmt::format("{} column {} exceeds its rating (hottest plate or current density) "
+                            "in {} of builds.",
+                            r.stack, armLetter(std::stoi(r.figure.substr(3))),
+                            percent(r.fractionExceeds))
+              : fmt::format("{}: {} exceeds its rating in {} of builds.", r.stack, r.figure,
+                            percent(r.fractionExceeds)));
     }
   if (!any && ran > 0 && !out.ratings.empty())
     out.reading.push_back(fmt::format("No rating is exceeded in any of the {} that ran.", builds));
@@ -268,21 +279,6 @@ std::string campaignJson(const CampaignSummary& s) {
 
 namespace {
 
-std::string escape(const std::string& s) {
-  std::string o;
-  for (char c : s) {
-    if (c == '<')
-      o += "&lt;";
-    else if (c == '>')
-      o += "&gt;";
-    else if (c == '&')
-      o += "&amp;";
-    else
-      o += c;
-  }
-  return o;
-}
-
 /// A histogram of each series over common bins, as bars side by side.
 std::string svgHistogram(const std::string& title, const std::string& xLabel,
                          const std::vector<std::pair<std::string, std::vector<double>>>& series) {
@@ -306,7 +302,7 @@ std::string svgHistogram(const std::string& title, const std::string& xLabel,
   std::string o = fmt::format(
       "<svg xmlns='http://www.w3.org/2000/svg' width='{}' height='{}' font-family='sans-serif' "
       "font-size='11'><text x='{}' y='15' font-weight='bold'>{}</text>",
-      W, H, L, escape(title));
+      W, H, L, escapeHtml(title));
   const double bw = (W - L - R) / kBins;
   for (std::size_t k = 0; k < series.size(); ++k) {
     for (int b = 0; b < kBins; ++b) {
@@ -316,7 +312,7 @@ std::string svgHistogram(const std::string& title, const std::string& xLabel,
                        L + b * bw + k * w, H - B - h, w, h, colours[k % 5]);
     }
     o += fmt::format("<text x='{}' y='{}' fill='{}'>{}</text>", W - R - 120, T + 14 * (k + 1),
-                     colours[k % 5], escape(series[k].first));
+                     colours[k % 5], escapeHtml(series[k].first));
   }
   o +=
       fmt::format("<line x1='{}' y1='{}' x2='{}' y2='{}' stroke='black'/>", L, H - B, W - R, H - B);
@@ -324,7 +320,7 @@ std::string svgHistogram(const std::string& title, const std::string& xLabel,
       "<text x='{}' y='{}'>{:.4g}</text><text x='{}' y='{}' text-anchor='end'>{:.4g}</text>", L,
       H - B + 14, lo, W - R, H - B + 14, hi);
   o += fmt::format("<text x='{}' y='{}' text-anchor='middle'>{}</text>", (L + W - R) / 2, H - 8,
-                   escape(xLabel));
+                   escapeHtml(xLabel));
   o += fmt::format(
       "<text x='12' y='{}' transform='rotate(-90 12 {})' text-anchor='middle'>builds (max "
       "{})</text>",
@@ -349,7 +345,7 @@ std::string svgScatter(
   std::string o = fmt::format(
       "<svg xmlns='http://www.w3.org/2000/svg' width='{}' height='{}' font-family='sans-serif' "
       "font-size='11'><text x='{}' y='15' font-weight='bold'>{}</text>",
-      W, H, L, escape(title));
+      W, H, L, escapeHtml(title));
   std::size_t k = 0;
   for (const auto& [name, xs, ys] : series) {
     for (std::size_t i = 0; i < xs.size(); ++i) {
@@ -359,7 +355,7 @@ std::string svgScatter(
                        H - B - (ys[i] - y0) / (y1 - y0) * (H - T - B), colours[k % 5]);
     }
     o += fmt::format("<text x='{}' y='{}' fill='{}'>{}</text>", W - R - 120, T + 14 * (k + 1),
-                     colours[k % 5], escape(name));
+                     colours[k % 5], escapeHtml(name));
     ++k;
   }
   o +=
@@ -373,10 +369,10 @@ std::string svgScatter(
       "text-anchor='end'>{:.4g}</text>",
       L - 4, H - B, y0, L - 4, T + 8, y1);
   o += fmt::format("<text x='{}' y='{}' text-anchor='middle'>{}</text>", (L + W - R) / 2, H - 8,
-                   escape(xLabel));
+                   escapeHtml(xLabel));
   o += fmt::format(
       "<text x='12' y='{}' transform='rotate(-90 12 {})' text-anchor='middle'>{}</text>",
-      (T + H - B) / 2, (T + H - B) / 2, escape(yLabel));
+      (T + H - B) / 2, (T + H - B) / 2, escapeHtml(yLabel));
   return o + "</svg>";
 }
 
@@ -389,10 +385,10 @@ std::string campaignHtml(const CampaignSummary& s, const CampaignTable& t) {
       "td,th{{padding:0 .6em;text-align:right}}td:first-child,th:first-child{{text-align:left}}"
       "</style></head><body><h1>Campaign: {}</h1><p>{} &middot; {} "
       "variant(s)</p><h2>Reading</h2><ul>",
-      escape(s.title), escape(s.title), escape(s.file), s.variants);
-  for (const auto& r : s.reading) o += "<li>" + escape(r) + "</li>";
+      escapeHtml(s.title), escapeHtml(s.title), escapeHtml(s.file), s.variants);
+  for (const auto& r : s.reading) o += "<li>" + escapeHtml(r) + "</li>";
   o += "</ul><h2>Varied</h2><ul>";
-  for (const auto& v : s.varied) o += "<li>" + escape(v) + "</li>";
+  for (const auto& v : s.varied) o += "<li>" + escapeHtml(v) + "</li>";
   o += "</ul>";
   if (!s.sharing.empty()) o += "<h2>Sharing</h2>";
   for (const auto& sh : s.sharing) {
@@ -406,7 +402,7 @@ std::string campaignHtml(const CampaignSummary& s, const CampaignTable& t) {
       shares.emplace_back("column " + armLetter(m), pct);
       scatter.emplace_back("column " + armLetter(m), pct, degC);
     }
-    o += fmt::format("<h3>{}</h3>", escape(sh.stack));
+    o += fmt::format("<h3>{}</h3>", escapeHtml(sh.stack));
     o += svgHistogram(sh.stack + ": share of the stack current per column", "share, %", shares);
     o += svgScatter(sh.stack + ": share against the column's hottest plate", "share, %",
                     "hottest plate, degC", scatter);
@@ -414,16 +410,16 @@ std::string campaignHtml(const CampaignSummary& s, const CampaignTable& t) {
   o += "<h2>Ratings</h2><table><tr><th>stack</th><th>figure</th><th>marginal</th><th>exceeds</th></"
        "tr>";
   for (const auto& r : s.ratings)
-    o += fmt::format("<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>", escape(r.stack),
-                     escape(r.figure), percent(r.fractionMarginal), percent(r.fractionExceeds));
+    o += fmt::format("<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>", escapeHtml(r.stack),
+                     escapeHtml(r.figure), percent(r.fractionMarginal), percent(r.fractionExceeds));
   o += "</table><h2>Figures</h2><table><tr><th>figure</th><th>mean</th><th>std</th><th>5 %</th>"
        "<th>50 %</th><th>95 %</th><th>unit</th></tr>";
   for (const auto& f : s.figures)
     o += fmt::format(
         "<tr><td>{}</td><td>{:.4g}</td><td>{:.3g}</td><td>{:.4g}</td><td>{:.4g}</td>"
         "<td>{:.4g}</td><td>{}</td></tr>",
-        escape(f.name), f.mean, f.stddev, f.p05, f.p50, f.p95, escape(f.unit));
-  o += "</table><p>" + escape(simulationDisclaimer()) + "</p></body></html>\n";
+        escapeHtml(f.name), f.mean, f.stddev, f.p05, f.p50, f.p95, escapeHtml(f.unit));
+  o += "</table><p>" + escapeHtml(simulationDisclaimer()) + "</p></body></html>\n";
   return o;
 }
 

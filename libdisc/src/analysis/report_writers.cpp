@@ -11,8 +11,8 @@
 #include "disc/limits.hpp"
 #include "disc/session.hpp"
 
-#include "analysis/csv_field.hpp"
 #include "analysis/text_blocks.hpp"
+#include "analysis/text_fields.hpp"
 #include "disc/version.hpp"
 
 namespace disc {
@@ -22,6 +22,9 @@ double toC(double kelvin) {
   return kelvin - 273.15;
 }
 
+}  // namespace
+
+/// HTML text with <, >, & and " escaped.
 std::string escapeHtml(const std::string& s) {
   std::string o;
   for (char c : s) {
@@ -44,6 +47,8 @@ std::string escapeHtml(const std::string& s) {
   }
   return o;
 }
+
+namespace {
 
 nlohmann::json verdictJson(const Verdict& v) {
   return {{"figure", v.figure}, {"value", v.value}, {"limit", v.limit},

@@ -1,4 +1,4 @@
-// One CSV field per RFC 4180, shared by the result and campaign tables (private).
+// Fields of CSV and HTML text, shared by the reports and the campaign tables (private).
 #pragma once
 
 #include <string>
@@ -8,5 +8,8 @@ namespace disc {
 /// The field, quoted when it holds a comma, a double quote or a line break, each double quote
 /// doubled (RFC 4180, section 2).
 std::string csvField(const std::string& text);
+
+/// HTML text with <, >, & and " escaped.
+std::string escapeHtml(const std::string& text);
 
 }  // namespace disc

@@ -1,0 +1,66 @@
+#!/usr/bin/env python3
+"""Campaign benchmark: Monte Carlo builds of the bundled signalling supply (four stacks of two
+paralleled columns) with `disc campaign`, on 1 and 2 threads; wall time, speed-up and peak RSS.
+
+Usage: /usr/bin/python3 benchmarks/campaign_bench.py [--build build-release] [--builds 1000]
+                                                      [--scaling-builds 200]
+Prints a Markdown table (the figures in docs/performance.md).
+"""
+import argparse
+import os
+import resource
+import subprocess
+import sys
+import tempfile
+import time
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+NETLIST = os.path.join(HERE, "..", "netlists", "signalling-parallel-stacks.disc")
+TOLERANCES = ["C1 capacitance -20% +50%", "MAINS rms 10%"]
+
+
+def run(cli, builds, threads):
+    """(wall s, CPU s, peak RSS MiB) of one campaign in a fresh process."""
+    with tempfile.TemporaryDirectory() as out:
+        cmd = [cli, "campaign", NETLIST, "--builds", str(builds), "--seed", "1",
+               "--threads", str(threads), "-q", "-o", out]
+        for t in TOLERANCES:
+            cmd += ["--tolerance", t]
+        # A child's peak RSS: run it under a fresh Python so RUSAGE_CHILDREN holds it alone.
+        probe = ("import resource, subprocess, sys, time; t = time.perf_counter(); "
+                 "subprocess.run(sys.argv[1:], check=True); "
+                 "u = resource.getrusage(resource.RUSAGE_CHILDREN); "
+                 "print(time.perf_counter() - t, u.ru_utime + u.ru_stime, u.ru_maxrss)")
+        res = subprocess.run([sys.executable, "-c", probe] + cmd, check=True, capture_output=True,
+                             text=True)
+        wall, cpu, rss_kib = res.stdout.split()
+        return float(wall), float(cpu), int(rss_kib) / 1024.0
+
+
+def main():
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--build", default="build-release")
+    ap.add_argument("--builds", type=int, default=1000)
+    ap.add_argument("--scaling-builds", type=int, default=200)
+    args = ap.parse_args()
+    cli = os.path.join(args.build, "bindings", "cli", "disc")
+    print(f"Load average before: {os.getloadavg()[0]:.2f}; {os.cpu_count()} cores; "
+          f"{time.strftime('%Y-%m-%d %H:%M')}\n")
+    # CPU time per variant shows the threads' efficiency whatever else the machine runs: equal
+    # on 1 and 2 threads means the 2-thread run would take half the time on idle cores.
+    print("| variants | threads | wall s | wall ms per variant | CPU ms per variant | peak RSS MiB |")
+    print("|---|---|---|---|---|---|")
+    rows = {}
+    for builds, threads in [(args.scaling_builds, 1), (args.scaling_builds, 2),
+                            (args.builds // 10, 2), (args.builds, 2)]:
+        wall, cpu, rss = run(cli, builds, threads)
+        rows[(builds, threads)] = wall
+        print(f"| {builds} | {threads} | {wall:.1f} | {1000 * wall / builds:.1f} | "
+              f"{1000 * cpu / builds:.1f} | {rss:.1f} |", flush=True)
+    one, two = rows[(args.scaling_builds, 1)], rows[(args.scaling_builds, 2)]
+    print(f"\nSpeed-up on 2 threads against 1 ({args.scaling_builds} variants): {one / two:.2f}")
+    print(f"Load average after: {os.getloadavg()[0]:.2f}")
+
+
+if __name__ == "__main__":
+    main()
