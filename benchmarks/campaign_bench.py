@@ -3,7 +3,7 @@
 paralleled columns) with `disc campaign`, on 1 and 2 threads; wall time, speed-up and peak RSS.
 
 Usage: /usr/bin/python3 benchmarks/campaign_bench.py [--build build-release] [--builds 1000]
-                                                      [--scaling-builds 200]
+                                                      [--scaling-builds 40] [--repeat 3]
 Prints a Markdown table (the figures in docs/performance.md).
 """
 import argparse
@@ -41,7 +41,8 @@ def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--build", default="build-release")
     ap.add_argument("--builds", type=int, default=1000)
-    ap.add_argument("--scaling-builds", type=int, default=200)
+    ap.add_argument("--scaling-builds", type=int, default=40)
+    ap.add_argument("--repeat", type=int, default=3, help="scaling runs of each thread count")
     args = ap.parse_args()
     cli = os.path.join(args.build, "bindings", "cli", "disc")
     print(f"Load average before: {os.getloadavg()[0]:.2f}; {os.cpu_count()} cores; "
@@ -50,15 +51,26 @@ def main():
     # on 1 and 2 threads means the 2-thread run would take half the time on idle cores.
     print("| variants | threads | wall s | wall ms per variant | CPU ms per variant | peak RSS MiB |")
     print("|---|---|---|---|---|---|")
-    rows = {}
-    for builds, threads in [(args.scaling_builds, 1), (args.scaling_builds, 2),
-                            (args.builds // 10, 2), (args.builds, 2)]:
-        wall, cpu, rss = run(cli, builds, threads)
-        rows[(builds, threads)] = wall
+
+    def row(builds, threads, wall, cpu, rss):
         print(f"| {builds} | {threads} | {wall:.1f} | {1000 * wall / builds:.1f} | "
               f"{1000 * cpu / builds:.1f} | {rss:.1f} |", flush=True)
-    one, two = rows[(args.scaling_builds, 1)], rows[(args.scaling_builds, 2)]
-    print(f"\nSpeed-up on 2 threads against 1 ({args.scaling_builds} variants): {one / two:.2f}")
+
+    # Scaling: 1 and 2 threads alternately, the fastest of each (a shared machine's other load
+    # only ever slows a run down).
+    best = {}
+    for _ in range(args.repeat):
+        for threads in (1, 2):
+            r = run(cli, args.scaling_builds, threads)
+            if threads not in best or r[0] < best[threads][0]:
+                best[threads] = r
+    for threads in (1, 2):
+        row(args.scaling_builds, threads, *best[threads])
+    # Memory: a tenth of the variants and all of them.
+    for builds in (args.builds // 10, args.builds):
+        row(builds, 2, *run(cli, builds, 2))
+    print(f"\nSpeed-up on 2 threads against 1 ({args.scaling_builds} variants, fastest of "
+          f"{args.repeat}): {best[1][0] / best[2][0]:.2f}")
     print(f"Load average after: {os.getloadavg()[0]:.2f}")
 
 

@@ -213,6 +213,13 @@ TEST_CASE("A campaign's table is the same on 1 thread, 2 and every core, in any 
   for (std::size_t r = 0; r < one.rows(); ++r)
     CHECK(one["SR1.arm1.share"].values[r] + one["SR1.arm2.share"].values[r] ==
           Approx(1.0).epsilon(1e-9));
+  // Columns hold the figures they name: the input delivers the output and the losses; a
+  // stack's rms current is at least its average (Cauchy-Schwarz); no plate failed.
+  for (std::size_t r = 0; r < one.rows(); ++r) {
+    CHECK(one["output.input_power"].values[r] > one["output.power"].values[r]);
+    CHECK(one["SR1.current_rms"].values[r] >= one["SR1.current_average"].values[r]);
+    CHECK(one["failures"].values[r] == 0);
+  }
   // The figures vary with the draws: the output follows the mains.
   const auto& mean = one["output.mean"].values;
   CHECK(*std::max_element(mean.begin(), mean.end()) > *std::min_element(mean.begin(), mean.end()));

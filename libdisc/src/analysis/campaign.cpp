@@ -253,25 +253,13 @@ class Layout {
       for (const Stack* s : stacks_)
         if (hasSpread(*s)) num(s->name() + ".seed", "");
     if (report_) {
-      num("output.mean", "V");
-      num("output.ripple_pp", "V");
-      num("output.ripple_rms", "V");
-      num("output.load_current", "A");
-      num("output.power", "W");
-      num("output.efficiency", "");
-      num("output.power_factor", "");
+      for (const auto& f : kOutputFigures) num(std::string("output.") + f.name, f.unit);
       num("output.settled", "");
+      num("failures", "");
       text("worst");
       for (const Stack* s : stacks_) {
         const std::string n = s->name();
-        num(n + ".peak_reverse", "V");
-        num(n + ".rms_reverse", "V");
-        num(n + ".current_average", "A");
-        num(n + ".current_peak", "A");
-        num(n + ".surge_peak", "A");
-        num(n + ".power_per_plate", "W");
-        num(n + ".hottest_end", "K");
-        num(n + ".hottest_steady", "K");
+        for (const auto& f : kStackFigures) num(n + "." + f.name, f.unit);
         for (const char* v : kVerdicts) {
           num(n + "." + v + ".ratio", "");
           text(n + "." + v);
@@ -360,6 +348,39 @@ class Layout {
   }
 
  private:
+  // The supply report's figures as table columns: (name, unit, field).
+  template <typename Figures>
+  struct Figure {
+    const char* name;
+    const char* unit;
+    double Figures::*member;
+  };
+  static constexpr Figure<OutputFigures> kOutputFigures[] = {
+      {"mean", "V", &OutputFigures::mean},
+      {"ripple_pp", "V", &OutputFigures::ripplePeakToPeak},
+      {"ripple_rms", "V", &OutputFigures::rippleRms},
+      {"load_current", "A", &OutputFigures::loadCurrent},
+      {"power", "W", &OutputFigures::outputPower},
+      {"efficiency", "", &OutputFigures::efficiency},
+      {"power_factor", "", &OutputFigures::powerFactor},
+      {"ripple_factor", "", &OutputFigures::rippleFactor},
+      {"input_power", "W", &OutputFigures::inputPower},
+      {"secondary_rms_current", "A", &OutputFigures::secondaryRmsCurrent},
+      {"secondary_va", "VA", &OutputFigures::secondaryVA}};
+  static constexpr Figure<StackFigures> kStackFigures[] = {
+      {"peak_reverse", "V", &StackFigures::peakReverse},
+      {"rms_reverse", "V", &StackFigures::rmsReverse},
+      {"current_average", "A", &StackFigures::currentAverage},
+      {"current_rms", "A", &StackFigures::currentRms},
+      {"current_peak", "A", &StackFigures::currentPeak},
+      {"density_busiest_arm", "A/cm2", &StackFigures::densityAverage},
+      {"surge_peak", "A", &StackFigures::surgePeak},
+      {"power_forward", "W", &StackFigures::powerForward},
+      {"power_reverse", "W", &StackFigures::powerReverse},
+      {"power_per_plate", "W", &StackFigures::powerPerPlate},
+      {"forming_end", "", &StackFigures::formingEnd},
+      {"hottest_end", "K", &StackFigures::temperatureEnd},
+      {"hottest_steady", "K", &StackFigures::temperatureSteady}};
   static constexpr const char* kVerdicts[] = {
       "peak_reverse_voltage_per_plate", "rms_reverse_voltage_per_plate",
       "average_forward_current_density", "plate_temperature_rise_steady_state_estimate"};
@@ -422,17 +443,15 @@ class Layout {
     const Result r = transient(variant.circuit, transientOptions(variant, o, extra));
     const SupplyReport rep = makeSupplyReport(variant, r);
     const auto& out = rep.output;
-    for (double x : {out.mean, out.ripplePeakToPeak, out.rippleRms, out.loadCurrent,
-                     out.outputPower, out.efficiency, out.powerFactor, rep.settled ? 1.0 : 0.0})
-      w.num(x);
+    for (const auto& f : kOutputFigures) w.num(out.*f.member);
+    w.num(rep.settled ? 1.0 : 0.0);
+    w.num(static_cast<double>(rep.failures.size()));
     w.word(rep.worst);
     const double ta = variant.circuit.ambient();
     for (std::size_t k = 0; k < stacks_.size(); ++k) {
       const StackFigures& f = rep.stacks[k];
       const auto* st = dynamic_cast<const Stack*>(variant.circuit.find(f.name));
-      for (double x : {f.peakReverse, f.rmsReverse, f.currentAverage, f.currentPeak, f.surgePeak,
-                       f.powerPerPlate, f.temperatureEnd, f.temperatureSteady})
-        w.num(x);
+      for (const auto& fig : kStackFigures) w.num(f.*fig.member);
       for (const char* key : kVerdicts) {
         const auto it = std::find_if(f.verdicts.begin(), f.verdicts.end(),
                                      [&](const Verdict& v) { return slug(v.figure) == key; });
