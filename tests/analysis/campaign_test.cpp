@@ -178,7 +178,7 @@ TEST_CASE("Campaign statements with mistakes are located errors", "[campaign]") 
 }
 
 TEST_CASE("A campaign's table is the same on 1 thread, 2 and every core, in any variant range",
-          "[campaign][concurrency]") {
+          "[campaign][threads]") {
   Netlist nl = signalling();
   appendNetlist(nl,
                 "campaign builds=6 seed=21\ntolerance C1 capacitance -20% +50%\n"
