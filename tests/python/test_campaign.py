@@ -68,8 +68,11 @@ def test_dask_local_cluster_gives_the_local_table():
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
                                   dashboard_address=None) as cluster, \
             distributed.Client(cluster) as client:
-        remote = disc.campaign(SIGNALLING, client=client, chunk=1, **MC).table
+        seen = []
+        remote = disc.campaign(SIGNALLING, client=client, chunk=1,
+                               progress=lambda d, t: seen.append((d, t)), **MC).table
     assert remote.equals(local)
+    assert seen == [(1, 4), (2, 4), (3, 4), (4, 4)]  # one call per returned chunk
 
 
 def test_progress_reports_and_cancels():
