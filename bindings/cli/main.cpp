@@ -400,6 +400,19 @@ int main(int argc, char** argv) {
   replace->add_option("--diode", rp.options.diode,
                       "Silicon diode parameters in netlist words, e.g. \"saturation-current=5n "
                       "ideality=1.8 series-resistance=0.05\"");
+  replace
+      ->add_option("--target", rp.options.target,
+                   "What to match: formed (the stacks re-formed; default), design (as new), "
+                   "present (as described), or a value such as 240V (4.5A for a charger)")
+      ->capture_default_str();
+  replace
+      ->add_option("--diode-rating", rp.options.diodeCurrentRating,
+                   "The diode's rated average forward current, A (default 1)")
+      ->check(CLI::PositiveNumber);
+  replace
+      ->add_option("--diode-surge", rp.options.diodeSurgeRating,
+                   "The diode's rated surge current, A (default 30)")
+      ->check(CLI::PositiveNumber);
   replace->add_option("--loads", rp.loads, "Load fractions of the comparison table")
       ->delimiter(',')
       ->check(CLI::Range(0.01, 3.0));

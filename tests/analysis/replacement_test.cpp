@@ -3,7 +3,10 @@
 // Schade's large-capacitor limit) and against the netlist's own output.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <fstream>
+#include <iterator>
 
+#include "disc/devices/diode.hpp"
 #include "disc/netlist.hpp"
 #include "disc/preferred_values.hpp"
 #include "disc/replacement.hpp"
@@ -108,6 +111,69 @@ TEST_CASE("replace: a battery charger's bridge is matched on its charging curren
   CHECK(std::abs(d.outputExact / d.target - 1.0) <= 0.005);
   REQUIRE(d.rows.size() == 1);  // a battery load cannot be scaled
   CHECK(d.rows[0].currentOriginal == Approx(d.target).epsilon(1e-9));
+}
+
+namespace {
+
+/// The table radio's netlist with its stack's statement given extra words.
+std::string radioWith(const std::string& words) {
+  std::ifstream in(std::string(DISC_NETLIST_DIR) + "/table-radio-half-wave.disc");
+  std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  const std::string stack = "type=se-25mm-36v plates=8";
+  text.replace(text.find(stack), stack.size(), stack + " " + words);
+  return text;
+}
+
+}  // namespace
+
+TEST_CASE("replace: the target is the formed stack's output unless told otherwise",
+          "[analysis][replace]") {
+  disc::ReplaceOptions o;
+  o.stacks = {"SR1"};
+  o.loadFractions = {1.0};
+  const std::string deformed = radioWith("forming=0.6");
+  const auto formed = disc::designReplacement(deformed, DISC_NETLIST_DIR "/deformed.disc", o);
+  CHECK(formed.targetKind == "formed");
+  // The same stack written fully formed, aimed at as described: the same runs, the same value.
+  o.target = "present";
+  const auto asNew =
+      disc::designReplacement(radioWith("forming=1"), DISC_NETLIST_DIR "/formed.disc", o);
+  CHECK(formed.target == Approx(asNew.target).epsilon(1e-9));
+  // A deformed stack leaks in reverse, so it gives less than re-formed (common practice).
+  CHECK(formed.present < formed.target);
+  CHECK(std::abs(formed.outputExact / formed.target - 1.0) <= 0.005);
+  const auto present = disc::designReplacement(deformed, DISC_NETLIST_DIR "/deformed.disc", o);
+  CHECK(present.target == Approx(formed.present).epsilon(1e-9));
+  // A value: matched within the design's 0.5 %.
+  o.target = "105V";
+  const auto value = disc::designReplacement(deformed, DISC_NETLIST_DIR "/deformed.disc", o);
+  CHECK(value.targetKind == "value");
+  CHECK(value.target == 105.0);
+  CHECK(std::abs(value.outputExact / 105.0 - 1.0) <= 0.005);
+  o.target = "105A";  // the radio is matched on voltage
+  CHECK_THROWS_WITH(disc::designReplacement(deformed, "x.disc", o),
+                    Catch::Contains("formed, design, present or a value in V"));
+  o.target = "reformed";
+  CHECK_THROWS_AS(disc::designReplacement(deformed, "x.disc", o), disc::InputError);
+
+  // The silicon parts' verdicts, at the chosen resistor.
+  REQUIRE(formed.verdicts.size() == 4);
+  CHECK(formed.verdicts[0].figure == "diode reverse voltage");
+  CHECK(formed.verdicts[0].value == Approx(formed.pivRequired));
+  CHECK(formed.verdicts[0].limit == disc::DiodeParams{}.breakdownVoltage);
+  // Half-wave: the diode carries the whole load current on average (Kirchhoff's current law;
+  // the reservoir's net charge over the settled window is small): within 2 %.
+  CHECK(formed.diodeCurrent == Approx(formed.rows[0].currentReplacement).epsilon(0.02));
+  CHECK(formed.verdicts[1].limit == 1.0);
+  CHECK(formed.verdicts[2].value == Approx(formed.surgeRequired));
+  CHECK(formed.verdicts[3].value == Approx(formed.resistorPower));
+  for (const auto& v : formed.verdicts) CHECK(v.level == "ok");
+  // A diode rated below the load current is judged to exceed.
+  o.target = "formed";
+  o.diodeCurrentRating = 0.02;
+  const auto small = disc::designReplacement(deformed, DISC_NETLIST_DIR "/deformed.disc", o);
+  CHECK(small.verdicts[1].level == "exceeds");
+  CHECK_THAT(disc::replacementText(small), Catch::Contains("[exceeds ] diode average forward"));
 }
 
 TEST_CASE("replace: inputs it cannot use are refused with a reason", "[analysis][replace]") {

@@ -127,6 +127,15 @@ def test_replace_through_python_matches_the_original_output():
     assert d.silicon_alone > d.target
     assert "SR1_SI" in d.netlist
     assert len(d.rows) == 1 and d.rows[0].load_fraction == 1.0
+    # The default target is the re-formed stack; the silicon parts carry verdicts.
+    assert d.target_kind == "formed"
+    assert [v["figure"] for v in d.verdicts][:3] == [
+        "diode reverse voltage", "diode average forward current", "diode surge current"]
+    assert all(v["level"] == "ok" for v in d.verdicts)
+    # A value target is matched within the design's 0.5 %.
+    v = disc.replace_stacks(ROOT / "netlists" / "table-radio-half-wave.disc", "SR1", loads=[1.0],
+                            target="100V")
+    assert v.target_kind == "value" and abs(v.output_exact / 100.0 - 1.0) <= 0.005
 
 
 def test_cli_fit_on_the_demo_trace_writes_a_usable_type(tmp_path):

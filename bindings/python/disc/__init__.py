@@ -108,13 +108,16 @@ def model_current(type, trace, plates=1, temperature_c=25.0):
     return _disc.model_current(type, trace, plates, temperature_c + 273.15)
 
 
-def replace_stacks(path, stacks, *, diode=None, loads=(0.5, 1.0, 1.2)):
+def replace_stacks(path, stacks, *, diode=None, loads=(0.5, 1.0, 1.2), target="formed"):
     """Designs a silicon diode and dropping resistor per stack so the supply of the netlist at
     ``path`` gives its original DC output (docs/replacement.md). ``stacks``: a name or a list.
-    Returns a ReplacementDesign; ``netlist`` is the replacement netlist's text."""
+    ``target``: "formed" (the stacks re-formed), "design" (as new), "present" (as described)
+    or a value such as "240V". Returns a ReplacementDesign; ``netlist`` is the replacement
+    netlist's text."""
     if isinstance(stacks, str):
         stacks = [stacks]
-    return _disc.design_replacement(str(path), list(stacks), diode or "", [float(x) for x in loads])
+    return _disc.design_replacement(str(path), list(stacks), diode or "", [float(x) for x in loads],
+                                    str(target))
 
 
 __all__ = ["Circuit", "Element", "Result", "PlateType", "PlateCurve", "Trace", "NetlistError",

@@ -227,6 +227,10 @@ class ReplacementDesign:
     quantity: str
     unit: str
     target: float
+    target_kind: str
+    present: float
+    diode_current: float
+    verdicts: list[dict[str, Any]]
     silicon_alone: float
     resistor_exact: float
     output_exact: float
@@ -261,7 +265,8 @@ def model_current(type: PlateType, trace: Trace, plates: int = ...,
                   temperature_c: float = ...) -> npt.NDArray[np.float64]: ...
 def judge_plate_health(plate: PlateType, healthy: PlateType, kelvin: float = ...) -> PlateHealth: ...
 def replace_stacks(path: str | PathLike[str], stacks: str | Sequence[str], *,
-                   diode: str | None = ..., loads: Iterable[float] = ...) -> ReplacementDesign: ...
+                   diode: str | None = ..., loads: Iterable[float] = ...,
+                   target: str = ...) -> ReplacementDesign: ...
 
 class CampaignResult:
     text: str                   # the summary, the restorer's reading first

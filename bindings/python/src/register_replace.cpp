@@ -28,6 +28,24 @@ void registerReplace(py::module_& m) {
       .def_readonly("quantity", &ReplacementDesign::quantity)
       .def_readonly("unit", &ReplacementDesign::unit)
       .def_readonly("target", &ReplacementDesign::target)
+      .def_readonly("target_kind", &ReplacementDesign::targetKind)
+      .def_readonly("present", &ReplacementDesign::present)
+      .def_readonly("diode_current", &ReplacementDesign::diodeCurrent)
+      .def_property_readonly("verdicts",
+                             [](const ReplacementDesign& d) {
+                               py::list l;
+                               for (const auto& v : d.verdicts) {
+                                 py::dict x;
+                                 x["figure"] = v.figure;
+                                 x["value"] = v.value;
+                                 x["limit"] = v.limit;
+                                 x["unit"] = v.unit;
+                                 x["level"] = v.level;
+                                 x["rule"] = v.rule;
+                                 l.append(x);
+                               }
+                               return l;
+                             })
       .def_readonly("silicon_alone", &ReplacementDesign::siliconAlone)
       .def_readonly("resistor_exact", &ReplacementDesign::resistorExact)
       .def_readonly("output_exact", &ReplacementDesign::outputExact)
@@ -52,8 +70,9 @@ void registerReplace(py::module_& m) {
   m.def(
       "design_replacement",
       [](const std::string& path, const std::vector<std::string>& stacks, const std::string& diode,
-         const std::vector<double>& loads) {
+         const std::vector<double>& loads, const std::string& target) {
         ReplaceOptions o;
+        o.target = target;
         o.stacks = stacks;
         o.diode = diode;
         o.loadFractions = loads;
@@ -68,7 +87,8 @@ void registerReplace(py::module_& m) {
         py::gil_scoped_release nogil;
         return designReplacementFile(path, o);
       },
-      py::arg("path"), py::arg("stacks"), py::arg("diode"), py::arg("loads"));
+      py::arg("path"), py::arg("stacks"), py::arg("diode"), py::arg("loads"),
+      py::arg("target") = "formed");
 }
 
 }  // namespace disc::python

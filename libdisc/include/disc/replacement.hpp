@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "disc/error.hpp"
+#include "disc/supply_report.hpp"
 
 namespace disc {
 
@@ -16,6 +17,15 @@ struct ReplaceOptions {
   /// series-resistance=0.05 breakdown-voltage=1500");
   /// empty: the library's general-purpose 1 A rectifier diode (DiodeParams defaults).
   std::string diode;
+  /// What the replacement aims at: "formed" (the original stacks re-formed: forming state 1,
+  /// no storage; the default), "design" (the original stacks as new: also no operating hours),
+  /// "present" (the stacks as the netlist describes them), or a value of the matched quantity
+  /// with its unit ("240V"; "4.5A" when the load is a battery).
+  std::string target = "formed";
+  /// The silicon diode's ratings, for its verdicts: average forward current (A) and
+  /// non-repetitive surge current (A); the defaults are those of a general-purpose 1 A
+  /// silicon rectifier (from memory, docs/sources.md).
+  double diodeCurrentRating = 1.0, diodeSurgeRating = 30.0;
   double tolerance = 0.001;  ///< the resistor's output matches the original within this fraction
   std::vector<double> loadFractions = {0.5, 1.0, 1.2};  ///< rows of the comparison table
   /// Repetitive peak reverse voltage asked of the diode: this factor times the simulated peak
@@ -50,7 +60,11 @@ struct ReplacementDesign {
   /// What is matched: "output voltage" (V), or "load current" (A) when the load is a battery,
   /// which pins the voltage (a charger is matched on its charging current).
   std::string quantity = "output voltage", unit = "V";
-  double target = 0;         ///< the original's settled value of that quantity
+  /// What was aimed at ("formed", "design", "present" or "value") and its value: the
+  /// original's settled value of the matched quantity in that state, or the value given.
+  std::string targetKind = "formed";
+  double target = 0;
+  double present = 0;        ///< the original stacks as the netlist describes them
   double siliconAlone = 0;   ///< the same with silicon diodes and no resistor
   double resistorExact = 0;  ///< ohm, per stack, the root-found value
   double outputExact = 0;    ///< the matched quantity with that value
@@ -63,6 +77,11 @@ struct ReplacementDesign {
   double pivRequired = 0;               ///< V
   double surgeSimulated = 0;            ///< A, largest simulated diode current (switch-on)
   double surgeRequired = 0;             ///< A
+  double diodeCurrent = 0;              ///< A, largest settled average forward current of a diode
+  /// The silicon parts judged at the chosen resistor: diode reverse voltage against its
+  /// breakdown voltage, diode average and surge currents against its ratings, resistor
+  /// dissipation against its rating (the levels of the supply report's verdicts).
+  std::vector<Verdict> verdicts;
   std::vector<ReplacementRow> rows;
   std::string netlist;  ///< the replacement netlist (E24 value), ready to save and run
   std::vector<std::string> warnings;

@@ -100,6 +100,10 @@ struct SupplyReport {
   RunStats stats;
 };
 
+/// A figure against its limit: "ok" up to 90 % of it, "marginal" to 100 %, "exceeds" above.
+Verdict judgeFigure(std::string figure, double value, double limit, std::string unit,
+                    std::string rule);
+
 /// Signals a supply report needs, beyond the user's.
 std::vector<std::string> reportSignals(const Netlist& netlist);
 /// Computes the report from a transient result that recorded reportSignals().

@@ -47,6 +47,7 @@ struct Figures {
   double loadCurrent = 0;  // A, settled mean magnitude
   double matched = 0;      // the quantity the design matches: output voltage or load current
   double resistorPower = 0;
+  double diodeAverage = 0;  // A, largest settled average forward current of a diode
   double conductionDrop = 0, conductionCurrent = 0;  // averages while conducting, per stack
 };
 
@@ -97,6 +98,24 @@ double settledMean(const std::vector<double>& t, const std::vector<double>& v, d
     return extrapolated;
   }
   return c;
+}
+
+/// A target value with its unit ("240V", "240 V", "4.5A"); the unit must be the matched one.
+double parseTargetValue(const std::string& text, const std::string& unit) {
+  std::size_t used = 0;
+  double v = NAN;
+  try {
+    v = std::stod(text, &used);
+  } catch (const std::exception&) {
+    used = 0;
+  }
+  std::string rest = text.substr(used);
+  rest.erase(0, rest.find_first_not_of(' '));
+  if (used == 0 || !(v > 0) || !std::isfinite(v) || (!rest.empty() && rest != unit))
+    throw InputError(fmt::format(
+        "replace: the target is formed, design, present or a value in {} (e.g. 240{}), got '{}'",
+        unit, unit, text));
+  return v;
 }
 
 class Designer {
@@ -191,9 +210,22 @@ class Designer {
     return out;
   }
 
+  /// The state the original stacks are run in: as written, re-formed, or as new.
+  enum class State { Present, Formed, Design };
+  void setState(State s) { state_ = s; }
+
   Figures run(double ohms, double loadFraction) {
     for (;;) {
       Netlist nl = parseNetlist(text(ohms, true), name_);
+      if (std::isnan(ohms) && state_ != State::Present)
+        for (const auto& s : sites_) {
+          auto& st = dynamic_cast<Stack&>(nl.circuit.at(s.name));
+          StackOptions so = st.options();
+          so.forming = 1.0;
+          so.storedYears = 0.0;
+          if (state_ == State::Design) so.ageHours = 0.0;
+          st.setOptions(so);
+        }
       auto& tr = nl.analyses.back().transient;
       tr.stop *= stopScale_;
       tr.tol.reltol = std::min(tr.tol.reltol, kDesignRelTol);
@@ -214,6 +246,7 @@ class Designer {
       }
       const RunOutcome out = runNetlist(nl);
       ++runs_;
+      if (std::isnan(ohms)) cautions_ = out.report.cautions;
       const Result& r = out.analyses.back().result;
       bool settled = false;
       Figures f;
@@ -251,6 +284,7 @@ class Designer {
         } else {
           const auto& i = r["i:" + s.diode];
           f.surge = std::max(f.surge, measure::maximum(t, i, t.front(), t.back()));
+          f.diodeAverage = std::max(f.diodeAverage, measure::mean(t, i, w0, w1));
           f.dissipation += measure::mean(t, r["p:" + s.diode], w0, w1);
           const auto& v = r[fmt::format("v:{},{}", s.anode, ohms > 0 ? s.mid : s.cathode)];
           f.peakReverse = std::max(f.peakReverse, -measure::minimum(t, v, t.front(), t.back()));
@@ -276,6 +310,9 @@ class Designer {
            amps * silicon_.seriesResistance;
   }
 
+  const DiodeParams& silicon() const { return silicon_; }
+  /// The cautions of the original circuit's report (what the circuit contains).
+  const std::vector<std::string>& cautions() const { return cautions_; }
   std::string diodeWords() const { return o_.diode.empty() ? "" : " " + o_.diode; }
 
   double stopScale() const { return stopScale_; }
@@ -284,12 +321,6 @@ class Designer {
   bool byCurrent() const { return byCurrent_; }
   int runs() const { return runs_; }
   const std::string& unsettled() const { return unsettled_; }
-  bool selenium() const {
-    for (const auto& s : sites_)
-      if (const auto* t = PlateLibrary::builtIn().find(s.type); !t || t->material == "selenium")
-        return true;
-    return false;
-  }
 
  private:
   static std::string freeName(const Netlist& nl, std::string name) {
@@ -342,6 +373,8 @@ class Designer {
   int extensions_ = 0;
   int runs_ = 0;
   std::string unsettled_;
+  State state_ = State::Formed;
+  std::vector<std::string> cautions_;
   DiodeParams silicon_;
   double siliconKelvin_ = 300.0;
 };
@@ -359,6 +392,8 @@ void ReplaceOptions::validate() const {
   for (double f : loadFractions)
     if (!(f > 0 && f <= 3))
       throw InputError("replace: load fractions must lie in (0, 3] (1 = the netlist's load)");
+  if (!(diodeCurrentRating > 0 && diodeSurgeRating > 0))
+    throw InputError("replace: the diode's current and surge ratings must be positive (A)");
   if (!(pivFactor >= 1 && surgeFactor >= 1 && powerMargin >= 1))
     throw InputError("replace: the safety factors must be at least 1");
 }
@@ -387,6 +422,17 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
   r.powerMargin = o.powerMargin;
   r.quantity = d.byCurrent() ? "load current" : "output voltage";
   r.unit = d.byCurrent() ? "A" : "V";
+  double targetValue = NAN;
+  if (o.target == "formed" || o.target == "design" || o.target == "present") {
+    r.targetKind = o.target;
+    d.setState(o.target == "present"  ? Designer::State::Present
+               : o.target == "design" ? Designer::State::Design
+                                      : Designer::State::Formed);
+  } else {
+    r.targetKind = "value";
+    d.setState(Designer::State::Present);
+    targetValue = parseTargetValue(o.target, r.unit);
+  }
 
   // The search runs at one run length; when a candidate needs a longer run to settle, the
   // target is measured again at that length and the search repeated.
@@ -396,7 +442,7 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
     const double scale = d.stopScale();
     r.resistorExact = r.outputExact = 0.0;
     original = d.run(NAN, 1.0);
-    r.target = original.matched;
+    r.target = std::isnan(targetValue) ? original.matched : targetValue;
     alone = d.run(0.0, 1.0);
     r.siliconAlone = alone.matched;
     // Rule of thumb (common practice): the resistor makes up the difference between the stack's
@@ -455,6 +501,18 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
     if (d.stopScale() == scale || attempt >= 3) break;
   }
   if (!noResistor.empty()) r.warnings.push_back(noResistor);
+  if (r.targetKind == "formed" || r.targetKind == "design") {
+    d.setState(Designer::State::Present);
+    r.present = d.run(NAN, 1.0).matched;
+    d.setState(r.targetKind == "design" ? Designer::State::Design : Designer::State::Formed);
+    if (std::abs(r.present - r.target) > o.tolerance * std::abs(r.target))
+      r.warnings.push_back(fmt::format(
+          "the stacks as the netlist describes them give {:.4g} {}; {} they give {:.4g} {}: the "
+          "replacement aims at that (--target present aims at the present value)",
+          r.present, r.unit, r.targetKind == "design" ? "as new" : "re-formed", r.target, r.unit));
+  } else {
+    r.present = original.matched;
+  }
 
   double chosen = 0;
   Figures full;
@@ -474,6 +532,32 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
   r.pivRequired = o.pivFactor * full.peakReverse;
   r.surgeSimulated = full.surge;
   r.surgeRequired = o.surgeFactor * full.surge;
+  r.diodeCurrent = full.diodeAverage;
+  const DiodeParams& si = d.silicon();
+  if (si.breakdownVoltage > 0)
+    r.verdicts.push_back(judgeFigure(
+        "diode reverse voltage", r.pivRequired, si.breakdownVoltage, "V",
+        fmt::format("{}x the simulated peak reverse voltage against the diode's breakdown voltage",
+                    o.pivFactor)));
+  r.verdicts.push_back(judgeFigure("diode average forward current", r.diodeCurrent,
+                                   o.diodeCurrentRating, "A",
+                                   "settled average forward current against the diode's rating"));
+  r.verdicts.push_back(
+      judgeFigure("diode surge current", r.surgeRequired, o.diodeSurgeRating, "A",
+                  fmt::format("{}x the simulated switch-on peak against the diode's surge rating",
+                              o.surgeFactor)));
+  if (r.resistorRating > 0)
+    r.verdicts.push_back(
+        judgeFigure("dropping resistor dissipation", r.resistorPower, r.resistorRating, "W",
+                    fmt::format("dissipation at full load against the chosen rating ({}x margin)",
+                                o.powerMargin)));
+  for (const auto& v : r.verdicts)
+    if (v.level != "ok")
+      r.warnings.push_back(
+          fmt::format("{} is {:.3g} {}, {} the {:.3g} {} limit ({}): choose a "
+                      "larger part",
+                      v.figure, v.value, v.unit, v.level == "exceeds" ? "above" : "close to",
+                      v.limit, v.unit, v.rule));
 
   for (double frac : o.loadFractions) {
     if (frac != 1.0 && !r.loadScalable) continue;
@@ -495,7 +579,7 @@ ReplacementDesign designReplacement(const std::string& text, const std::string& 
                   fmt::join(o.stacks, ", "), name, chosen, r.resistorRating) +
               d.text(chosen, false);
   r.runs = d.runs();
-  r.cautions = safetyCautions(d.selenium());
+  r.cautions = d.cautions();
   r.cautions.push_back(
       "Fit the replacement with the set unplugged and the capacitors discharged; check the "
       "diode's polarity (band = cathode, the + DC side) and measure the output on first power-up "
@@ -518,7 +602,10 @@ std::string replacementText(const ReplacementDesign& r) {
   s += fmt::format(
       "  matched quantity:              {} at {}{}\n", r.quantity, r.loadName,
       r.unit == "A" ? " (a battery pins the voltage: the charging current is matched)" : "");
-  s += fmt::format("  original:                      {:9.4g} {}\n", r.target, r.unit);
+  s += fmt::format("  target ({}):{:<{}}{:9.4g} {}\n", r.targetKind, "",
+                   std::max<int>(1, 22 - static_cast<int>(r.targetKind.size())), r.target, r.unit);
+  if (r.targetKind != "present")
+    s += fmt::format("  original as described:         {:9.4g} {}\n", r.present, r.unit);
   s += fmt::format("  silicon alone (no resistor):   {:9.4g} {} ({:+.3g} {})\n", r.siliconAlone,
                    r.unit, r.siliconAlone - r.target, r.unit);
   if (r.resistorExact > 0) {
@@ -544,6 +631,10 @@ std::string replacementText(const ReplacementDesign& r) {
       "  diode surge current:           {:9.2f} A or more ({}x the simulated "
       "switch-on peak {:.2f} A)\n",
       r.surgeRequired, r.surgeFactor, r.surgeSimulated);
+  if (!r.verdicts.empty()) s += "\nSILICON PARTS\n";
+  for (const auto& v : r.verdicts)
+    s += fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})\n", v.level, v.figure, v.value,
+                     v.unit, v.limit, v.unit);
   s += "\nORIGINAL AGAINST REPLACEMENT\n";
   s += fmt::format("  {:>6} {:>9} {:>9} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>8}\n", "load",
                    "out orig", "out new", "I orig", "I new", "rip orig", "rip new", "surge o",
@@ -571,6 +662,17 @@ std::string replacementJson(const ReplacementDesign& r) {
   j["matched_quantity"] = r.quantity;
   j["matched_unit"] = r.unit;
   j["target"] = r.target;
+  j["target_kind"] = r.targetKind;
+  j["present"] = r.present;
+  j["diode_current_A"] = r.diodeCurrent;
+  auto& verdicts = j["verdicts"] = nlohmann::json::array();
+  for (const auto& v : r.verdicts)
+    verdicts.push_back({{"figure", v.figure},
+                        {"value", v.value},
+                        {"limit", v.limit},
+                        {"unit", v.unit},
+                        {"level", v.level},
+                        {"rule", v.rule}});
   j["silicon_alone"] = r.siliconAlone;
   j["resistor_exact_ohm"] = r.resistorExact;
   j["matched_exact"] = r.outputExact;

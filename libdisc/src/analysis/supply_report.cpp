@@ -33,18 +33,19 @@ double mainsFrequency(const Circuit& c) {
   return f;
 }
 
-Verdict judge(std::string figure, double value, double limit, std::string unit, std::string rule) {
-  Verdict v{std::move(figure), value, limit, std::move(unit), "ok", std::move(rule)};
-  const double ratio = limit > 0.0 ? value / limit : 0.0;
-  v.level = ratio > 1.0 ? "exceeds" : ratio > 0.9 ? "marginal" : "ok";
-  return v;
-}
-
 int rank(const std::string& level) {
   return level == "fails" ? 3 : level == "exceeds" ? 2 : level == "marginal" ? 1 : 0;
 }
 
 }  // namespace
+
+Verdict judgeFigure(std::string figure, double value, double limit, std::string unit,
+                    std::string rule) {
+  Verdict v{std::move(figure), value, limit, std::move(unit), "ok", std::move(rule)};
+  const double ratio = limit > 0.0 ? value / limit : 0.0;
+  v.level = ratio > 1.0 ? "exceeds" : ratio > 0.9 ? "marginal" : "ok";
+  return v;
+}
 
 std::vector<std::string> reportSignals(const Netlist& nl) {
   std::vector<std::string> s;
@@ -303,21 +304,22 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     s.formingEnd = r["form:" + n].back();
 
     s.verdicts.push_back(
-        judge("peak reverse voltage per plate", s.peakReverse, s.peakRating, "V",
-              "largest reverse voltage on any plate against the type's peak rating"));
-    s.verdicts.push_back(judge("rms reverse voltage per plate", s.rmsReverse, s.rmsRating, "V",
-                               fmt::format("sine-equivalent rms (peak / {}) against the rms rating "
-                                           "for a {} load",
-                                           capacitive ? "2 sqrt 2" : "sqrt 2", s.loadKind)));
-    s.verdicts.push_back(judge(
+        judgeFigure("peak reverse voltage per plate", s.peakReverse, s.peakRating, "V",
+                    "largest reverse voltage on any plate against the type's peak rating"));
+    s.verdicts.push_back(
+        judgeFigure("rms reverse voltage per plate", s.rmsReverse, s.rmsRating, "V",
+                    fmt::format("sine-equivalent rms (peak / {}) against the rms rating "
+                                "for a {} load",
+                                capacitive ? "2 sqrt 2" : "sqrt 2", s.loadKind)));
+    s.verdicts.push_back(judgeFigure(
         "average forward current density", s.densityAverage * 1e3, s.densityRating * 1e3, "mA/cm2",
         "average forward current of the busiest arm over the plate area against the "
         "rated density, derated linearly to zero at the plate limit above the "
         "reference ambient"));
-    const Verdict tv = judge("plate temperature rise (steady-state estimate)",
-                             s.temperatureSteady - ta, tmax - ta, "K",
-                             "hottest plate's rise above ambient (average dissipation x thermal "
-                             "resistance) against the room left below the type's limit");
+    const Verdict tv = judgeFigure(
+        "plate temperature rise (steady-state estimate)", s.temperatureSteady - ta, tmax - ta, "K",
+        "hottest plate's rise above ambient (average dissipation x thermal "
+        "resistance) against the room left below the type's limit");
     s.verdicts.push_back(tv);
     for (const auto& v : s.verdicts) {
       if (v.level == "ok") continue;
