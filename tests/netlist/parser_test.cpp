@@ -1,5 +1,6 @@
 // The netlist parser: every error class reported with its location and an actionable message.
 #include <fmt/format.h>
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <filesystem>
 
@@ -87,12 +88,95 @@ TEST_CASE("Each error class is located and explained", "[netlist][parser]") {
 TEST_CASE("Several errors are reported in one pass, nothing is built", "[netlist][parser]") {
   const auto d =
       errorsOf("voltage V1 a gnd dc=10V\nresistor R1 a gnd 1q\ncapacitor C1 a gnd -1u\nfoo bar\n");
-  CHECK(d.size() >= 3);  // and the node left dangling by the rejected elements
+  // One each: the nodes and names of the rejected elements are not reported again.
+  CHECK(d.size() == 3);
   // The message carries the line and a caret under the fault.
   const std::string text = d.front().format();
   CHECK_THAT(text, Contains("t.disc:2:19: error:"));
   CHECK_THAT(text, Contains("resistor R1 a gnd 1q\n"));
   CHECK_THAT(text, Contains("^"));
+}
+
+TEST_CASE("One error per cause: a statement that failed does not cascade",
+          "[netlist][parser][mistakes]") {
+  // A bad value (1.25K read as kelvin) rejects RLOAD: the output naming it and the node only
+  // it joined are not reported again.
+  auto d = errorsOf(
+      "voltage V1 line gnd mains rms=120V frequency=60Hz\nstack SR1 line top "
+      "type=se-25mm-36v plates=8\nresistor RLOAD top out 1.25K\nresistor RB out gnd 10\n"
+      "output top gnd load=RLOAD\nrecord i:RLOAD p:RLOAD\nvary RLOAD resistance 1k 2k\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("did you mean 1.25k (kilo is a lower-case k)"));
+  // A misspelt plate type: one error, not the stack's signals and dangling node as well.
+  d = errorsOf(
+      "voltage V1 line gnd mains rms=120V frequency=60Hz\nstack SR1 line top "
+      "type=se-25mm-63v plates=8\nresistor RL top gnd 1k\noutput top gnd load=RL\n"
+      "record i:SR1 temp:SR1#2\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("unknown plate type 'se-25mm-63v'"));
+  // A bad stop time: its own error, not "needs stop=" as well.
+  d = errorsOf(kOk + "run transient stop=3sec\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("did you mean 3s?"));
+}
+
+TEST_CASE("Hints for the slips people make", "[netlist][parser][mistakes]") {
+  // Unit look-alikes: period and everyday spellings, and units in the wrong case.
+  for (auto [text, hint] :
+       {std::pair{"ambient 40C\n", "did you mean 40degC?"},
+        std::pair{"capacitor C1 a gnd 100mfd\n", "did you mean 100uF?"},
+        std::pair{"capacitor C1 a gnd 500mmfd\n", "did you mean 500pF?"},
+        std::pair{"capacitor C1 a gnd 8uf\n", "did you mean 8uF?"},
+        std::pair{"resistor R2 a gnd 47ohms\n", "did you mean 47ohm?"},
+        std::pair{"voltage V2 b gnd sine rms=6volts frequency=50Hz\nresistor R3 b gnd 1k\n",
+                  "did you mean 6V?"},
+        std::pair{"voltage V2 b gnd sine rms=6V frequency=50cps\nresistor R3 b gnd 1k\n",
+                  "did you mean 50Hz?"},
+        std::pair{"run transient stop=2sec\n", "did you mean 2s?"}}) {
+    INFO(text);
+    const auto d = errorsOf(kOk + text);
+    REQUIRE(d.size() == 1);
+    CHECK_THAT(d[0].message, Contains(hint));
+  }
+  // No guess where none fits: 1x5 is no look-alike.
+  CHECK_THAT(errorsOf(kOk + "resistor R2 a gnd 1x5\n")[0].message, !Contains("did you mean"));
+  // 0 and GND as ground: each named once, no dangling or no-path errors on top.
+  auto d = errorsOf("voltage V1 line 0 dc=10V\nresistor R1 line top 1k\nresistor R2 top GND 1k\n");
+  REQUIRE(d.size() == 2);
+  CHECK_THAT(d[0].message, Contains("node '0' is an ordinary node, not ground"));
+  CHECK_THAT(d[1].message, Contains("node 'GND'"));
+  CHECK_THAT(d[1].message, Contains("written gnd"));
+  // A capacitor named as the load, with the element across the output suggested.
+  d = errorsOf(kOk + "capacitor C1 a gnd 10uF\noutput a gnd load=C1\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("'C1' is a capacitor"));
+  CHECK_THAT(d[0].message, Contains("did you mean load=R1"));
+}
+
+TEST_CASE("A reversed stack is named in the report's warnings", "[netlist][mistakes]") {
+  // The stack written cathode first: the output goes negative (a half-wave rectifier the other
+  // way round), and the report asks whether a stack is reversed.
+  Netlist nl = parseNetlist(
+      "voltage V1 line gnd mains rms=120V frequency=60Hz resistance=1ohm\n"
+      "stack SR1 top line type=se-25mm-36v plates=8\ncapacitor C1 top gnd 50uF\n"
+      "resistor RL top gnd 2k\noutput top gnd load=RL\nrun transient stop=0.2s\n",
+      "reversed.disc");
+  const RunOutcome out = runNetlist(nl);
+  REQUIRE(out.hasReport);
+  CHECK(out.report.output.mean < 0.0);
+  CHECK(std::any_of(
+      out.report.warnings.begin(), out.report.warnings.end(),
+      [](const std::string& w) { return w.find("is a stack reversed?") != std::string::npos; }));
+  // The same stack the right way round: no such warning.
+  nl = parseNetlist(
+      "voltage V1 line gnd mains rms=120V frequency=60Hz resistance=1ohm\n"
+      "stack SR1 line top type=se-25mm-36v plates=8\ncapacitor C1 top gnd 50uF\n"
+      "resistor RL top gnd 2k\noutput top gnd load=RL\nrun transient stop=0.2s\n",
+      "forward.disc");
+  const RunOutcome good = runNetlist(nl);
+  CHECK(good.report.output.mean > 0.0);
+  CHECK(std::none_of(good.report.warnings.begin(), good.report.warnings.end(),
+                     [](const std::string& w) { return w.find("reversed") != std::string::npos; }));
 }
 
 TEST_CASE("Includes resolve relative to the including file and cycles are caught",
@@ -211,8 +295,7 @@ TEST_CASE("A diode's nominal temperature is a parameter, 300.15 K unless given",
   const Netlist nl = parseNetlist(
       "current I1 gnd a dc=1mA\ndiode D1 a gnd saturation-current=1e-6 temperature=300K\n"
       "diode D2 a gnd saturation-current=1e-6 temperature=300K nominal-temperature=300K\n");
-  CHECK(static_cast<const Diode&>(*nl.circuit.find("D1")).params().referenceTemperature ==
-        300.15);
+  CHECK(static_cast<const Diode&>(*nl.circuit.find("D1")).params().referenceTemperature == 300.15);
   CHECK(static_cast<const Diode&>(*nl.circuit.find("D2")).params().referenceTemperature ==
         Approx(300.0));
   CHECK(nl.circuit.find("D2")->parameter("nominal-temperature") == Approx(300.0));

@@ -145,6 +145,16 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     o.rippleFactor = std::abs(f.mean) > 0 ? f.rippleRms / std::abs(f.mean) : 0.0;
     o.loadCurrent = measure::mean(t, r["i:" + nl.output.load], w0, w1);
     o.outputPower = measure::mean(t, r["p:" + nl.output.load], w0, w1);
+    // A rectifier's output is positive at the output's first node and mostly DC; a negative or
+    // mostly-AC output means a stack, or the output statement, the wrong way round.
+    bool hasStack = false;
+    for (const auto& d : c.devices()) hasStack = hasStack || d->kind() == "stack";
+    if (hasStack && (o.mean < 0.0 || o.rippleRms > std::abs(o.mean)))
+      rep.warnings.push_back(fmt::format(
+          "the output {} {} is {:.4g} V DC with {:.4g} V rms ripple: is a stack reversed? A "
+          "stack's first node is its anode (the AC side), the second its cathode (the + DC "
+          "side); the output statement names the + node first",
+          nl.output.positive, nl.output.negative, o.mean, o.rippleRms));
   }
   // Input: the named source, else the alternating sources (the mains), else every source; a
   // DC source that is not input is a battery: a load that charges or discharges.

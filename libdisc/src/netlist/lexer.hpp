@@ -31,6 +31,8 @@ class Diagnostics {
   /// Records an error; `showLine` false leaves the source line out (a file that is no netlist).
   void error(const SourceLocation& where, std::string message, bool showLine = true);
   bool empty() const { return list_.empty(); }
+  /// Errors recorded so far, the cut ones included (to tell whether a statement failed).
+  std::size_t count() const { return list_.size() + dropped_; }
   /// The diagnostics, the last one counting those cut after kMaxShown.
   std::vector<Diagnostic> list() const;
   static constexpr std::size_t kMaxShown = 50;

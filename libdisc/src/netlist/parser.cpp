@@ -1,6 +1,7 @@
 // Netlist statements into a circuit, analyses and an output description.
 #include <fmt/format.h>
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <functional>
 #include <map>
@@ -273,7 +274,17 @@ class Builder {
     for (const auto& s : statements)
       if (isSetup(word(s))) setup(s);
     for (const auto& s : statements)
-      if (kindOf(word(s))) element(s);
+      if (kindOf(word(s))) {
+        // A statement that failed is reported once: what names it, or its nodes, is not
+        // reported again as missing or dangling.
+        const std::size_t before = diags_.count();
+        element(s);
+        if (diags_.count() != before && s.tokens.size() >= 2 && !s.tokens[1].keyValue) {
+          failedElements_.insert(s.tokens[1].text);
+          for (std::size_t k = 2; k < s.tokens.size(); ++k)
+            if (!s.tokens[k].keyValue) failedNodes_.insert(s.tokens[k].text);
+        }
+      }
     for (const auto& s : statements) {
       const std::string w = word(s);
       if (w == "output" || w == "record" || w == "run")
@@ -301,6 +312,12 @@ class Builder {
   ReadContext* context_;  // the reading, for `use`; null when only checking
   std::map<std::string, SourceLocation>& deviceWhere_ = nl_.elementWhere;
   std::map<std::string, std::vector<SourceLocation>>& nodeRefs_ = nl_.nodeRefs;
+  std::set<std::string> failedElements_, failedNodes_;  // of element statements that failed
+
+  /// "no element named 'X'", unless X's own statement failed (then it was reported there).
+  void noElement(const SourceLocation& at, const std::string& name) {
+    if (!failedElements_.count(name)) error(at, fmt::format("no element named '{}'", name));
+  }
 
   static std::string word(const Statement& s) {
     return s.tokens.front().keyValue ? std::string() : s.tokens.front().text;
@@ -728,12 +745,14 @@ class Builder {
       nl_.output.negative = t[2].text;
       for (std::size_t k = 3; k < t.size(); ++k) {
         if (t[k].keyValue && t[k].key == "load") {
-          if (!c.find(t[k].value))
-            return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
+          const Device* load = c.find(t[k].value);
+          if (!load) return noElement(t[k].valueWhere, t[k].value);
+          if (load->kind() == "capacitor")
+            return error(t[k].valueWhere, capacitorLoadHint(t[k].value, t[1].text, t[2].text));
           nl_.output.load = t[k].value;
         } else if (t[k].keyValue && t[k].key == "input") {
           const Device* d = c.find(t[k].value);
-          if (!d) return error(t[k].valueWhere, fmt::format("no element named '{}'", t[k].value));
+          if (!d) return noElement(t[k].valueWhere, t[k].value);
           if (d->kind() != "voltage source" && d->kind() != "current source")
             return error(t[k].valueWhere,
                          fmt::format("input= names the source that feeds the supply; '{}' is a {}",
@@ -759,7 +778,9 @@ class Builder {
       if (t.size() < 2)
         return error(s.where, "record takes one or more signals: record v:out i:SR1");
       for (std::size_t k = 1; k < t.size(); ++k) {
-        if (auto msg = checkSignal(t[k].text); !msg.empty())
+        if (auto msg = checkSignal(t[k].text); msg == "-")
+          continue;  // names an element whose statement failed: reported there
+        else if (!msg.empty())
           error(t[k].where, msg);
         else
           nl_.record.push_back(t[k].text);
@@ -782,6 +803,7 @@ class Builder {
             return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
           if (tok.key == "stop" || tok.key == "max-step") {
             auto v = number(tok.value, Dim::Time, tok.valueWhere);
+            haveStop = haveStop || tok.key == "stop";  // a bad value is reported on its own
             if (!v) continue;
             if (!(*v > 0.0)) {
               error(tok.valueWhere, fmt::format("{} must be positive", tok.key));
@@ -890,7 +912,7 @@ class Builder {
                                 : "tolerance ELEMENT PARAMETER -20% +50% (or one band: 10%)");
     const std::string element = t[1].text, parameter = t[2].text;
     const Device* d = nl_.circuit.find(element);
-    if (!d) return error(t[1].where, fmt::format("no element named '{}'", element));
+    if (!d) return noElement(t[1].where, element);
     const DeviceParameter* entry = d->findParameter(parameter);
     if (!entry) {
       std::string hint = retiredParameterHint(d->parameterTable(), parameter);
@@ -968,6 +990,31 @@ class Builder {
     spec.given = true;
   }
 
+  /// The message for `output ... load=C1` naming a capacitor, with the element across the
+  /// output nodes that is more likely the load.
+  std::string capacitorLoadHint(const std::string& cap, const std::string& pos,
+                                const std::string& neg) {
+    std::string suggestion;
+    const Circuit& c = nl_.circuit;
+    // Passive parts first; a source (a battery) only when nothing else sits across.
+    for (const bool sources : {false, true})
+      for (const auto& d : c.devices()) {
+        const auto& t = d->terminals();
+        const bool source = d->kind() == "voltage source" || d->kind() == "current source";
+        if (!suggestion.empty() || t.size() != 2 || source != sources || d->kind() == "capacitor" ||
+            d->kind() == "stack")
+          continue;
+        const std::string a = c.nodeName(t[0]), b = c.nodeName(t[1]);
+        if ((a == pos && b == neg) || (a == neg && b == pos))
+          suggestion = fmt::format("; did you mean load={} (the {} across {} and {})?", d->name(),
+                                   d->kind(), pos, neg);
+      }
+    return fmt::format(
+        "'{}' is a capacitor: the load is what the supply feeds (a resistor, valve load, lamp or "
+        "battery), the reservoir and filter capacitors belong to the supply{}",
+        cap, suggestion);
+  }
+
   /// "" when a signal name refers to existing nodes and device quantities.
   std::string checkSignal(const std::string& sig) {
     const auto colon = sig.find(':');
@@ -996,7 +1043,10 @@ class Builder {
     }
     const std::string deviceName = target.substr(0, target.find('#'));
     const Device* d = c.find(deviceName);
-    if (!d) return fmt::format("signal '{}': no element named '{}'", sig, deviceName);
+    if (!d)
+      return failedElements_.count(deviceName)
+                 ? "-"
+                 : fmt::format("signal '{}': no element named '{}'", sig, deviceName);
     const auto probes = d->probes();
     if (std::find(probes.begin(), probes.end(), kind) == probes.end()) {
       std::string list;
@@ -1011,9 +1061,23 @@ class Builder {
   /// Whole-circuit checks: dangling nodes, parts without a path to gnd, voltage loops.
   void topology() {
     Circuit& c = nl_.circuit;
-    // A node connected only once is a dangling end, usually a misspelt name.
+    // Ground is written gnd; 0, GND or ground are ordinary nodes, each reported once here and
+    // not again as dangling or floating.
+    std::set<std::string> groundLike;
+    for (const auto& [node, refs] : nodeRefs_) {
+      std::string lower = node;
+      for (char& ch : lower) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+      if (node != "gnd" && (lower == "0" || lower == "gnd" || lower == "ground")) {
+        groundLike.insert(node);
+        error(refs.front(), fmt::format("node '{}' is an ordinary node, not ground: ground is "
+                                        "written gnd (lower case); write gnd here",
+                                        node));
+      }
+    }
+    // A node connected only once is a dangling end, usually a misspelt name (unless the other
+    // connection sat in a statement that failed).
     for (const auto& [node, refs] : nodeRefs_)
-      if (refs.size() == 1)
+      if (refs.size() == 1 && !failedNodes_.count(node) && !groundLike.count(node))
         error(refs.front(),
               fmt::format("node '{}' is connected only once (a dangling end): check its spelling",
                           node));
@@ -1055,6 +1119,10 @@ class Builder {
     for (NodeId k = 0; k < n; ++k)
       if (find(parent, k) != find(parent, n)) islands[find(parent, k)].push_back(c.nodeName(k));
     for (const auto& [root, names] : islands) {
+      if (std::any_of(names.begin(), names.end(), [&](const std::string& x) {
+            return failedNodes_.count(x) || groundLike.count(x);
+          }))
+        continue;  // a failed statement or a ground spelling, reported already
       std::string list;
       list = fmt::format("{}", fmt::join(names, ", "));
       const auto& refs = nodeRefs_[names.front()];

@@ -58,6 +58,70 @@ const Unit* unitOf(const std::string& s) {
   return nullptr;
 }
 
+/// The unit a look-alike suffix most likely means ("C" degC, "mfd" uF, "sec" s ...), or "":
+/// period and everyday spellings, and known units in the wrong case.
+std::string lookAlike(const std::string& suffix, Dim dim) {
+  struct Alias {
+    const char* spelling;
+    const char* unit;
+    Dim dim;
+  };
+  static const std::vector<Alias> aliases = {{"c", "degC", Dim::Temperature},
+                                             {"degc", "degC", Dim::Temperature},
+                                             {"deg", "degC", Dim::Temperature},
+                                             {"mfd", "uF", Dim::Capacitance},
+                                             {"mf", "uF", Dim::Capacitance},
+                                             {"ufd", "uF", Dim::Capacitance},
+                                             {"mmfd", "pF", Dim::Capacitance},
+                                             {"mmf", "pF", Dim::Capacitance},
+                                             {"uuf", "pF", Dim::Capacitance},
+                                             {"pfd", "pF", Dim::Capacitance},
+                                             {"sec", "s", Dim::Time},
+                                             {"secs", "s", Dim::Time},
+                                             {"msec", "ms", Dim::Time},
+                                             {"usec", "us", Dim::Time},
+                                             {"mins", "min", Dim::Time},
+                                             {"hr", "h", Dim::Time},
+                                             {"hrs", "h", Dim::Time},
+                                             {"hour", "h", Dim::Time},
+                                             {"hours", "h", Dim::Time},
+                                             {"ohms", "ohm", Dim::Resistance},
+                                             {"r", "ohm", Dim::Resistance},
+                                             {"kohms", "kohm", Dim::Resistance},
+                                             {"megohm", "Mohm", Dim::Resistance},
+                                             {"meg", "Mohm", Dim::Resistance},
+                                             {"amp", "A", Dim::Current},
+                                             {"amps", "A", Dim::Current},
+                                             {"volt", "V", Dim::Voltage},
+                                             {"volts", "V", Dim::Voltage},
+                                             {"watt", "W", Dim::Power},
+                                             {"watts", "W", Dim::Power},
+                                             {"cps", "Hz", Dim::Frequency},
+                                             {"kc", "kHz", Dim::Frequency}};
+  std::string lower = suffix;
+  for (char& ch : lower) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+  for (const auto& a : aliases)
+    if (lower == a.spelling && a.dim == dim) return a.unit;
+  // A known unit, or a prefix and a unit, written in another case ("uf", "KV", "hz").
+  for (const auto& u : units()) {
+    std::string ul = u.symbol;
+    for (char& ch : ul) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+    if (lower == ul && u.dim == dim) return u.symbol;
+    if (!u.prefixable || u.dim != dim) continue;
+    for (const auto& [p, factor] : prefixes()) {
+      std::string pl = p;
+      for (char& ch : pl) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+      if (lower == pl + ul) {
+        // m and M differ only in case: with that prefix in the wrong case there is no guess.
+        return (p == "M" && suffix[0] == 'm') || (p == "m" && suffix[0] == 'M')
+                   ? ""
+                   : std::string(p) + u.symbol;
+      }
+    }
+  }
+  return "";
+}
+
 }  // namespace
 
 const char* dimName(Dim d) {
@@ -163,17 +227,26 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
         }
       }
       if (scale == 1.0 && !unit) {
+        const std::string like = lookAlike(suffix, dim);
         error = fmt::format(
             "'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
-            "units V A ohm F H Hz s min h W J K degC)",
-            excerpt(text), excerpt(suffix));
+            "units V A ohm F H Hz s min h W J K degC){}",
+            excerpt(text), excerpt(suffix),
+            like.empty() ? "" : fmt::format("; did you mean {}{}?", text.substr(0, k), like));
         return std::nullopt;
       }
     }
   }
   if (unit && unit->dim != dim) {
-    error = fmt::format("'{}' is {}, but this parameter is {}{}", excerpt(text), dimName(unit->dim),
-                        dimName(dim), dim == Dim::None ? "" : fmt::format(" ({})", dimUnit(dim)));
+    // 1.25K (kelvin) for 1.25k (kilo), 1F for 1fF ...: the prefix in the wrong case.
+    std::string like;
+    if (scale == 1.0 && suffix == "K" && dim != Dim::Temperature && dim != Dim::None)
+      like = fmt::format("; did you mean {}k (kilo is a lower-case k)?", text.substr(0, k));
+    else if (scale == 1.0 && suffix == "C" && dim == Dim::Temperature)
+      like = fmt::format("; did you mean {}degC?", text.substr(0, k));
+    error =
+        fmt::format("'{}' is {}, but this parameter is {}{}{}", excerpt(text), dimName(unit->dim),
+                    dimName(dim), dim == Dim::None ? "" : fmt::format(" ({})", dimUnit(dim)), like);
     return std::nullopt;
   }
   value *= scale * (unit ? unit->factor : 1.0);
