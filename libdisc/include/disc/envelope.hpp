@@ -56,7 +56,12 @@ struct EnvelopeResult {
   PeriodicResult last;    ///< the settled period at the end time
   double endTime = 0.0;   ///< s, where the run ended (the duration unless stopped)
   std::string stoppedBy;  ///< empty, or why the run ended early
+  /// Runaways detected and bodies destroyed, in order of time. A destruction ends the run at
+  /// its located crossing (the series' last row), so no temperature past destruction appears.
+  std::vector<FailureEvent> failures;
   EnvelopeStats stats;
+  /// True when a body was destroyed.
+  bool failed() const;
 };
 
 /// Integrates the slow states over options.duration. Each slow state k follows

@@ -53,11 +53,12 @@ enum Probe {
   kAge,
   kPfwd,
   kPrev,
+  kIrev,
   kProbeCount
 };
-const char* const kProbeNames[] = {"i",    "p",      "vstack", "temp", "form", "iarm",
-                                   "vrev", "pplate", "vj",     "age",  "pfwd", "prev"};
-const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", "", "W", "W"};
+const char* const kProbeNames[] = {"i",      "p",  "vstack", "temp", "form", "iarm", "vrev",
+                                   "pplate", "vj", "age",    "pfwd", "prev", "irev"};
+const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", "", "W", "W", "A"};
 
 }  // namespace
 
@@ -450,6 +451,8 @@ int Stack::probeInstances(int k) const {
     case kVrev:
     case kPplate:
     case kVj:
+    case kPfwd:
+    case kPrev:
       return plateCount();
     case kIarm:
       return opt_.arms;
@@ -487,11 +490,14 @@ double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
       return -(x[p.a] - x[p.kk]) / sc;
     case kVj:
       return x[p.j];
-    case kPplate: {
+    case kPplate:
+    case kPfwd:
+    case kPrev: {
+      const double vt = (x[p.a] - x[p.kk]) / sc;
       detail::PlateState st;
-      detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th], x[p.f],
-                            st, &p.cache);
-      return st.p;
+      detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st, &p.cache);
+      if (k == kPplate) return st.p;
+      return (vt >= 0.0) == (k == kPfwd) ? st.p : 0.0;
     }
     default:
       return probe(k, ctx);
@@ -553,6 +559,9 @@ double Stack::probe(int k, const EvalContext& ctx) const {
       return fwd;
     case kPrev:
       return rev;
+    case kIrev:
+      // The stack's reverse (leakage) current, zero while it conducts forward.
+      return std::max(0.0, -total);
     default:
       return 0.0;
   }

@@ -13,7 +13,9 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <functional>
 
+#include "disc/device.hpp"
 #include "disc/error.hpp"
 #include "periodic_solver.hpp"
 #include "slow_ode.hpp"
@@ -66,6 +68,11 @@ void appendRow(Result& series, double t, const Result& period, bool first) {
 }
 
 }  // namespace
+
+bool EnvelopeResult::failed() const {
+  return std::any_of(failures.begin(), failures.end(),
+                     [](const FailureEvent& e) { return e.kind == ThermalCondition::Destroyed; });
+}
 
 EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   options.validate();
@@ -144,10 +151,45 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     }
   };
 
+  // Plates and other heated bodies whose temperature is a slow state: destruction is located
+  // between slow steps, runaway judged on the period-averaged heat balance.
+  struct BodyWatch {
+    HeatedBody body;
+    std::size_t slowIndex = 0;
+    std::vector<std::size_t> sameDevice;  // slow indices of the device's temperatures
+    bool runaway = false;
+  };
+  std::vector<BodyWatch> bodies;
+  {
+    std::vector<HeatedBody> found;
+    for (const Device* d : sys.devices()) {
+      found.clear();
+      d->heatedBodies(found);
+      std::vector<std::size_t> temps;
+      const std::size_t firstBody = bodies.size();
+      for (HeatedBody& b : found) {
+        const auto it = std::find(slow.begin(), slow.end(), b.unknown);
+        if (it == slow.end()) continue;  // a temperature held by the device, not a slow state
+        BodyWatch w;
+        w.slowIndex = static_cast<std::size_t>(it - slow.begin());
+        w.body = std::move(b);
+        temps.push_back(w.slowIndex);
+        bodies.push_back(std::move(w));
+      }
+      for (std::size_t k = firstBody; k < bodies.size(); ++k) bodies[k].sameDevice = temps;
+    }
+  }
+  auto temperatureOf = [&](const BodyWatch& w, const std::vector<double>& yy) {
+    return w.body.ambient + yy[w.slowIndex] * scale[w.slowIndex];
+  };
+
   // Each accepted slow step: the settled period recorded, reduced into the series.
   bool first = true;
-  auto observe = [&](double t, const std::vector<double>& y) {
-    settle(t, y, false);
+  double tPrev = 0.0;
+  std::vector<double> yPrev;
+  std::function<bool(double, const std::vector<double>&)> observe;
+  auto recordRow = [&](double t, const std::vector<double>& yy) {
+    settle(t, yy, false);
     Result period;
     {
       detail::Recorder rec(sys, record, period);
@@ -157,6 +199,94 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     appendRow(er.series, t, period, first);
     first = false;
     er.endTime = t;
+  };
+  // A body past destruction: the row at the located crossing ends the series, so no
+  // temperature beyond destruction is ever recorded.
+  auto destroyed = [&](double t, const std::vector<double>& yy) {
+    double theta = 2.0;
+    const BodyWatch* hit = nullptr;
+    for (const BodyWatch& w : bodies) {
+      const double now = temperatureOf(w, yy);
+      if (now < w.body.destruction) continue;
+      const double before = yPrev.empty() ? now : temperatureOf(w, yPrev);
+      const double th = !std::isfinite(now) || before >= w.body.destruction
+                            ? 0.0
+                            : (w.body.destruction - before) / (now - before);
+      if (th < theta) theta = th, hit = &w;
+    }
+    if (!hit) return false;
+    std::vector<double> yc = yy;
+    double tc = t;
+    if (!yPrev.empty()) {
+      for (std::size_t c = 0; c < ns; ++c) yc[c] = yPrev[c] + theta * (yy[c] - yPrev[c]);
+      tc = tPrev + theta * (t - tPrev);
+    }
+    if (!yPrev.empty() && theta == 0.0)
+      settle(tPrev, yPrev, false);  // at destruction already at the last row: it ends the series
+    else
+      recordRow(tc, yc);
+    FailureEvent e;
+    e.kind = ThermalCondition::Destroyed;
+    e.body = hit->body.label;
+    e.device = hit->body.device;
+    e.plates = hit->body.plates;
+    e.time = tc;
+    e.temperature = hit->body.destruction;
+    e.destruction = hit->body.destruction;
+    e.mode = hit->body.mode;
+    e.mechanism = hit->body.mechanism;
+    e.cause = hit->runaway ? "thermal runaway" : "overheating";
+    er.failures.push_back(e);
+    er.stoppedBy = e.verdict();
+    return true;
+  };
+  // Above its rating a body is watched for runaway: heating, and heating faster as its
+  // device's temperatures rise together (the row sum of their block of the slow Jacobian).
+  auto checkRunaway = [&](double t, const std::vector<double>& yy) {
+    bool any = false;
+    for (const BodyWatch& w : bodies)
+      any = any || (!w.runaway && temperatureOf(w, yy) > w.body.serviceLimit);
+    if (!any) return;
+    std::vector<double> rate, jac;
+    ode.evaluate(t, yy, rate, &jac);
+    for (BodyWatch& w : bodies) {
+      const double temperature = temperatureOf(w, yy);
+      if (w.runaway || !(temperature > w.body.serviceLimit)) continue;
+      const std::size_t r = w.slowIndex;
+      const double heating = w.body.heatCapacity * rate[r] * scale[r];  // W, net
+      double together = 0.0;  // d(dT_r/dt)/dT, all the device's temperatures moving alike
+      for (std::size_t c : w.sameDevice) together += jac[r * ns + c] * scale[r] / scale[c];
+      HeatState h;
+      h.temperature = temperature;
+      h.dissipation = heating + w.body.lossConductance * (temperature - w.body.ambient);
+      h.dissipationSlope = w.body.heatCapacity * together + w.body.lossConductance;
+      const ThermalCheck c = checkHeat(w.body, h);
+      if (c.condition != ThermalCondition::Runaway) continue;
+      w.runaway = true;
+      FailureEvent e;
+      e.kind = ThermalCondition::Runaway;
+      e.body = w.body.label;
+      e.device = w.body.device;
+      e.plates = w.body.plates;
+      e.time = t;
+      e.temperature = temperature;
+      e.destruction = w.body.destruction;
+      e.mode = w.body.mode;
+      e.mechanism = w.body.mechanism;
+      e.cause = fmt::format(
+          "over a mains period its dissipation, {:.3g} W, grows by {:.3g} W/K, faster than its "
+          "cooling ({:.3g} W/K); at this rate it reaches destruction within {}",
+          h.dissipation, h.dissipationSlope, w.body.lossConductance,
+          formatDuration(c.timeToDestruction));
+      er.failures.push_back(e);
+    }
+  };
+  observe = [&](double t, const std::vector<double>& yy) {
+    if (destroyed(t, yy)) return false;
+    checkRunaway(t, yy);
+    recordRow(t, yy);
+    tPrev = t;
+    yPrev = yy;
     bool go = true;
     if (options.onPeriod) {
       Result own;
@@ -180,7 +310,33 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     settings.maxStep = options.maxStep > 0.0 ? options.maxStep : options.duration / 10.0;
     settings.firstStep = std::min(settings.maxStep, 10.0 * period);
     detail::SlowOdeStats os;
-    detail::integrateSlowOde(ode, y, 0.0, options.duration, settings, os, observe);
+    try {
+      detail::integrateSlowOde(ode, y, 0.0, options.duration, settings, os, observe);
+    } catch (const ConvergenceError& e) {
+      // A body heating past its rating with no periodic steady state ahead is the runaway
+      // itself, not a numerical failure: the run ends at the last settled row.
+      const BodyWatch* hot = nullptr;
+      for (const BodyWatch& w : bodies)
+        if (!yPrev.empty() && (w.runaway || temperatureOf(w, yPrev) > w.body.serviceLimit))
+          hot = &w;
+      if (!hot) throw;
+      FailureEvent ev;
+      ev.kind = ThermalCondition::Runaway;
+      ev.body = hot->body.label;
+      ev.device = hot->body.device;
+      ev.plates = hot->body.plates;
+      ev.time = tPrev;
+      ev.temperature = temperatureOf(*hot, yPrev);
+      ev.destruction = hot->body.destruction;
+      ev.mode = hot->body.mode;
+      ev.mechanism = hot->body.mechanism;
+      ev.cause =
+          "beyond this time no periodic steady state exists: the heating outruns the "
+          "cooling";
+      if (!hot->runaway) er.failures.push_back(ev);
+      er.stoppedBy = ev.verdict();
+      settle(tPrev, yPrev, false);
+    }
     es.slowSteps = os.accepted;
     es.rejectedSlowSteps = os.rejected;
   }
