@@ -9,6 +9,7 @@
 #include "disc/analysis.hpp"
 #include "disc/campaign_spec.hpp"
 #include "disc/circuit.hpp"
+#include "disc/envelope.hpp"
 #include "disc/error.hpp"
 #include "disc/limits.hpp"
 #include "disc/plate_type.hpp"
@@ -44,8 +45,12 @@ class NetlistError : public InputError {
 
 /// An analysis requested by a `run` statement.
 struct AnalysisRequest {
-  enum class Kind { OperatingPoint, Transient } kind = Kind::Transient;
+  enum class Kind { OperatingPoint, Transient, Periodic, WarmUp } kind = Kind::Transient;
   TransientOptions transient;  ///< for Kind::Transient (stop, method, start, max step, reltol)
+  PeriodicOptions periodic;    ///< for Kind::Periodic (tolerances, slow clock, warm start)
+  /// For Kind::WarmUp: duration and slow tolerances; its `periodic` member sets every periodic
+  /// steady state along the way. The callbacks stay empty (the session fills them).
+  EnvelopeOptions warmUp;
   SourceLocation where;
 };
 
@@ -56,6 +61,10 @@ struct OutputSpec {
   enum class LoadKind { Auto, Capacitive, Resistive } kind = LoadKind::Auto;
   bool given = false;
 };
+
+/// The word of an analysis kind in the language: "operating-point", "transient", "periodic",
+/// "warm-up".
+const char* analysisWord(AnalysisRequest::Kind kind);
 
 /// A parsed, validated netlist, ready to run.
 struct Netlist {

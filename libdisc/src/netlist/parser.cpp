@@ -787,13 +787,63 @@ class Builder {
       }
     } else if (w == "run") {
       if (t.size() < 2 || t[1].keyValue)
-        return error(s.where, "run operating-point, or run transient stop=TIME ...");
+        return error(s.where,
+                     "run operating-point, run transient stop=TIME, run periodic, or run warm-up "
+                     "duration=TIME");
       AnalysisRequest a;
       a.where = s.where;
-      if (t[1].text == "operating-point") {
+      // Keys every time-domain analysis shares; false when the key is not one of them.
+      auto timeKey = [&](const Token& tok, Tolerances& tol, double& maxStep, Start* start) {
+        if (tok.key == "max-step") {
+          auto v = number(tok.value, Dim::Time, tok.valueWhere);
+          if (v && !(*v > 0.0))
+            error(tok.valueWhere, "max-step must be positive");
+          else if (v)
+            maxStep = *v;
+        } else if (tok.key == "start" && start) {
+          if (tok.value == "cold")
+            *start = Start::Cold;
+          else if (tok.value == "operating-point")
+            *start = Start::OperatingPoint;
+          else
+            error(tok.valueWhere, "start is cold or operating-point");
+        } else if (tok.key == "reltol") {
+          auto v = number(tok.value, Dim::None, tok.valueWhere);
+          if (v && (*v <= 0.0 || *v >= 0.1))
+            error(tok.valueWhere, "reltol must lie between 0 and 0.1");
+          else if (v)
+            tol.reltol = *v;
+        } else if (tok.key == "abstol") {
+          // One absolute floor for voltages (V) and currents (A): below about 1e-6 relative
+          // accuracy it, not reltol, sets the error.
+          auto v = number(tok.value, Dim::None, tok.valueWhere);
+          if (v && (*v <= 0.0 || *v > 1e-3))
+            error(tok.valueWhere, "abstol must lie above 0 and at most 1e-3");
+          else if (v)
+            tol.voltage = tol.current = *v;
+        } else if (tok.key == "temperature-abstol") {
+          // Kelvin: temperatures have their own absolute floor (a thermal rise of a few kelvin
+          // needs a finer one than a volt does).
+          auto v = number(tok.value, Dim::None, tok.valueWhere);
+          if (v && (*v <= 0.0 || *v > 1.0))
+            error(tok.valueWhere, "temperature-abstol (K) must lie above 0 and at most 1");
+          else if (v)
+            tol.temperature = *v;
+        } else {
+          return false;
+        }
+        return true;
+      };
+      auto unknownKey = [&](const Token& tok, const char* analysis,
+                            const std::vector<std::string>& keys) {
+        error(tok.where, fmt::format("run {} has no parameter '{}'{}", analysis, tok.key,
+                                     didYouMean(tok.key, keys)));
+      };
+      const std::string& kindWord = t[1].text;
+      if (kindWord == "operating-point") {
         a.kind = AnalysisRequest::Kind::OperatingPoint;
         if (t.size() > 2) return error(t[2].where, "run operating-point takes no parameters");
-      } else if (t[1].text == "transient") {
+      } else if (kindWord == "transient") {
         a.kind = AnalysisRequest::Kind::Transient;
         a.transient.start = Start::Cold;
         bool haveStop = false;
@@ -801,63 +851,108 @@ class Builder {
           const Token& tok = t[k];
           if (!tok.keyValue)
             return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
-          if (tok.key == "stop" || tok.key == "max-step") {
+          if (timeKey(tok, a.transient.tol, a.transient.maxStep, &a.transient.start)) continue;
+          if (tok.key == "stop") {
             auto v = number(tok.value, Dim::Time, tok.valueWhere);
             haveStop = haveStop || tok.key == "stop";  // a bad value is reported on its own
             if (!v) continue;
             if (!(*v > 0.0)) {
-              error(tok.valueWhere, fmt::format("{} must be positive", tok.key));
+              error(tok.valueWhere, "stop must be positive");
               continue;
             }
-            (tok.key == "stop" ? a.transient.stop : a.transient.maxStep) = *v;
-            haveStop = haveStop || tok.key == "stop";
+            a.transient.stop = *v;
+            haveStop = true;
           } else if (tok.key == "method") {
             if (tok.value == "trap" || tok.value == "bdf2" || tok.value == "ida")
               a.transient.method = parseMethod(tok.value);
             else
               error(tok.valueWhere,
                     fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
-          } else if (tok.key == "start") {
-            if (tok.value == "cold")
-              a.transient.start = Start::Cold;
-            else if (tok.value == "operating-point")
-              a.transient.start = Start::OperatingPoint;
-            else
-              error(tok.valueWhere, "start is cold or operating-point");
+          } else {
+            unknownKey(tok, "transient",
+                       {"stop", "max-step", "method", "start", "reltol", "abstol",
+                        "temperature-abstol"});
+          }
+        }
+        if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
+      } else if (kindWord == "periodic") {
+        a.kind = AnalysisRequest::Kind::Periodic;
+        PeriodicOptions& po = a.periodic;
+        for (std::size_t k = 2; k < t.size(); ++k) {
+          const Token& tok = t[k];
+          if (!tok.keyValue)
+            return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
+          if (timeKey(tok, po.tol, po.maxStep, &po.start)) continue;
+          if (tok.key == "at") {
+            // The slow clock: where a variac schedule or a valve's warm-up is read and held.
+            auto v = number(tok.value, Dim::Time, tok.valueWhere);
+            if (v && !(*v >= 0.0))
+              error(tok.valueWhere, "at must be a time of at least 0 s");
+            else if (v)
+              po.slowTime = *v;
+          } else if (tok.key == "warm-up-periods") {
+            auto v = number(tok.value, Dim::None, tok.valueWhere);
+            if (v && (*v != std::floor(*v) || *v < 0 || *v > 10000))
+              error(tok.valueWhere, "warm-up-periods must be a whole number from 0 to 10000");
+            else if (v)
+              po.warmupPeriods = static_cast<int>(*v);
+          } else {
+            unknownKey(tok, "periodic",
+                       {"at", "max-step", "start", "reltol", "abstol", "temperature-abstol",
+                        "warm-up-periods"});
+          }
+        }
+      } else if (kindWord == "warm-up") {
+        a.kind = AnalysisRequest::Kind::WarmUp;
+        EnvelopeOptions& eo = a.warmUp;
+        bool haveDuration = false;
+        for (std::size_t k = 2; k < t.size(); ++k) {
+          const Token& tok = t[k];
+          if (!tok.keyValue)
+            return error(tok.where, fmt::format("expected key=value, got '{}'", tok.text));
+          if (tok.key == "duration" || tok.key == "max-step") {
+            auto v = number(tok.value, Dim::Time, tok.valueWhere);
+            if (!v) continue;
+            if (!(*v > 0.0)) {
+              error(tok.valueWhere, fmt::format("{} must be positive", tok.key));
+              continue;
+            }
+            if (tok.key == "duration" && *v > 1e8) {
+              error(tok.valueWhere, "duration is beyond 3 years; give at most 1e8 s");
+              continue;
+            }
+            (tok.key == "duration" ? eo.duration : eo.maxStep) = *v;
+            haveDuration = haveDuration || tok.key == "duration";
           } else if (tok.key == "reltol") {
             auto v = number(tok.value, Dim::None, tok.valueWhere);
             if (v && (*v <= 0.0 || *v >= 0.1))
               error(tok.valueWhere, "reltol must lie between 0 and 0.1");
             else if (v)
-              a.transient.tol.reltol = *v;
-          } else if (tok.key == "abstol") {
-            // One absolute floor for voltages (V) and currents (A): below about 1e-6 relative
-            // accuracy it, not reltol, sets the error.
+              eo.reltol = *v;
+          } else if (tok.key == "temperature-tolerance") {
             auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && (*v <= 0.0 || *v > 1e-3))
-              error(tok.valueWhere, "abstol must lie above 0 and at most 1e-3");
+            if (v && (*v <= 0.0 || *v > 10.0))
+              error(tok.valueWhere, "temperature-tolerance (K) must lie above 0 and at most 10");
             else if (v)
-              a.transient.tol.voltage = a.transient.tol.current = *v;
-          } else if (tok.key == "temperature-abstol") {
-            // Kelvin: temperatures have their own absolute floor (a thermal rise of a few kelvin
-            // needs a finer one than a volt does).
+              eo.temperatureTol = *v;
+          } else if (tok.key == "periodic-reltol") {
             auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && (*v <= 0.0 || *v > 1.0))
-              error(tok.valueWhere, "temperature-abstol (K) must lie above 0 and at most 1");
+            if (v && (*v <= 0.0 || *v >= 0.1))
+              error(tok.valueWhere, "periodic-reltol must lie between 0 and 0.1");
             else if (v)
-              a.transient.tol.temperature = *v;
+              eo.periodic.tol.reltol = *v;
           } else {
-            error(tok.where,
-                  fmt::format("run transient has no parameter '{}'{}", tok.key,
-                              didYouMean(tok.key, {"stop", "max-step", "method", "start", "reltol",
-                                                   "abstol", "temperature-abstol"})));
+            unknownKey(tok, "warm-up",
+                       {"duration", "max-step", "reltol", "temperature-tolerance",
+                        "periodic-reltol"});
           }
         }
-        if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
+        if (!haveDuration)
+          return error(s.where, "run warm-up needs duration=TIME, e.g. duration=1h");
       } else {
-        return error(t[1].where,
-                     fmt::format("unknown analysis '{}'{}", t[1].text,
-                                 didYouMean(t[1].text, {"operating-point", "transient"})));
+        return error(t[1].where, fmt::format("unknown analysis '{}'{}", kindWord,
+                                             didYouMean(kindWord, {"operating-point", "transient",
+                                                                   "periodic", "warm-up"})));
       }
       nl_.analyses.push_back(a);
     }
@@ -1186,6 +1281,20 @@ Netlist parseNetlist(const std::string& text, const std::string& name, IncludePo
 Netlist loadNetlist(const std::string& path, IncludePolicy policy) {
   return parseNetlist(detail::readInputFile(path, InputLimits::kNetlistBytes, "netlist"), path,
                       policy);
+}
+
+const char* analysisWord(AnalysisRequest::Kind kind) {
+  switch (kind) {
+    case AnalysisRequest::Kind::OperatingPoint:
+      return "operating-point";
+    case AnalysisRequest::Kind::Transient:
+      return "transient";
+    case AnalysisRequest::Kind::Periodic:
+      return "periodic";
+    case AnalysisRequest::Kind::WarmUp:
+      return "warm-up";
+  }
+  return "transient";
 }
 
 }  // namespace disc
