@@ -71,6 +71,10 @@ int runFile(const RunArgs& a) {
     out = disc::runNetlist(nl, [&progress](double t, double stop) { return progress(t, stop); });
   }
   const auto files = disc::writeRunFiles(nl, out, dir);
+  if (!a.quiet)
+    for (const auto& an : out.analyses)
+      if (an.request.kind == disc::AnalysisRequest::Kind::WarmUp)
+        fmt::print("{}\n", disc::warmUpText(an.warmUp));
   if (out.hasReport) {
     if (!a.quiet) fmt::print("{}", disc::reportText(out.report));
   } else if (!a.quiet) {
@@ -78,13 +82,10 @@ int runFile(const RunArgs& a) {
   }
   // Runaways and destructions of every analysis (the report shows its own transient's).
   bool failure = false;
-  std::size_t lastTransient = out.analyses.size();
-  for (std::size_t k = 0; k < out.analyses.size(); ++k)
-    if (out.analyses[k].request.kind == disc::AnalysisRequest::Kind::Transient) lastTransient = k;
   for (std::size_t k = 0; k < out.analyses.size(); ++k) {
     const auto& events = out.analyses[k].result.failures();
     failure = failure || !events.empty();
-    const bool reported = out.hasReport && k == lastTransient;
+    const bool reported = out.hasReport && k == out.reportAnalysis;
     if (a.quiet || events.empty() || reported) continue;
     fmt::print("FAILURE in analysis {}:\n", k + 1);
     for (const auto& v : disc::failureVerdicts(events)) fmt::print("  {}\n", v);

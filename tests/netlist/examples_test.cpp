@@ -404,6 +404,45 @@ TEST_CASE("Cautions follow what the circuit contains", "[netlist][examples][figu
   CHECK_FALSE(hasCaution(charger.out.report, "valve"));
 }
 
+TEST_CASE("Table radio warm-up: the report from one settled period balances, the plates warm",
+          "[netlist][examples][periodic]") {
+  // The file's own order: run periodic, then run warm-up. The energy balance is checked on the
+  // periodic steady state alone (the warm-up's series holds period averages, not waveforms).
+  Run r{loadNetlist(std::string(DISC_NETLIST_DIR) + "/table-radio-warm-up.disc"), {}};
+  REQUIRE(r.nl.analyses.size() == 2);
+  REQUIRE(r.nl.analyses[0].kind == AnalysisRequest::Kind::Periodic);
+  REQUIRE(r.nl.analyses[1].kind == AnalysisRequest::Kind::WarmUp);
+  CHECK(r.nl.analyses[1].warmUp.duration == Approx(3600.0));
+  Netlist periodicOnly = r.nl;
+  periodicOnly.analyses.pop_back();
+  Run p{periodicOnly, {}};
+  for (const auto& d : p.nl.circuit.devices())
+    if (d->kind() == "resistor") p.nl.record.push_back("i:" + d->name());
+  p.out = runNetlist(p.nl);
+  REQUIRE(p.out.hasReport);
+  CHECK(p.out.report.basis == "periodic");
+  CHECK(p.out.report.settled);
+  for (const auto& st : p.out.report.stacks) CHECK_FALSE(st.surgeKnown);
+  checkEnergyBalance(p);
+
+  r.out = runNetlist(r.nl);
+  REQUIRE(r.out.hasReport);
+  CHECK(r.out.reportAnalysis == 1);
+  const WarmUpSummary& w = r.out.analyses[1].warmUp;
+  CHECK(w.endTime == Approx(3600.0));
+  CHECK(w.failures.empty());
+  // The hour warms the plates above the 30 degC ambient; reverse leakage rises with
+  // temperature (a selenium plate's leakage grows with heat, common practice).
+  const auto& temp = r.result()["temp:SR1"];
+  const auto& leak = r.result()["irev:SR1"];
+  CHECK(temp.front() == Approx(303.15).margin(0.5));
+  CHECK(temp.back() > temp.front() + 5.0);
+  CHECK(leak.back() > leak.front());
+  // The report at the end is the warm settled period: its hottest plate is the series' last.
+  CHECK(r.out.report.stacks.at(0).temperatureEnd == Approx(temp.back()).margin(0.05));
+  CHECK(warmUpText(w).find("WARM-UP over 1 h 0 min") != std::string::npos);
+}
+
 TEST_CASE("Every bundled supply has a test case that checks its energy balance",
           "[netlist][examples]") {
   // The test cases above call checkEnergyBalance() for exactly these files; a new example
@@ -413,7 +452,8 @@ TEST_CASE("Every bundled supply has a test case that checks its energy balance",
       "battery-charger-6v.disc",         "amplifier-centre-tap-choke.disc",
       "signalling-parallel-stacks.disc", "meter-rectifier-cuox.disc",
       "hv-stack-half-wave.disc",         "bring-up-series-lamp-variac.disc",
-      "tv-doubler-half-wave.disc",       "exchange-float-charger.disc"};
+      "tv-doubler-half-wave.disc",       "exchange-float-charger.disc",
+      "table-radio-warm-up.disc"};
   int supplies = 0;
   for (const auto& entry : std::filesystem::directory_iterator(DISC_NETLIST_DIR)) {
     if (entry.path().extension() != ".disc") continue;

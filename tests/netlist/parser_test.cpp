@@ -346,3 +346,34 @@ TEST_CASE("Lamp, valve load and schedule errors are located and explained", "[ne
   expectError("voltage V1 a gnd dc=10V schedule=\"0 1V, 2mins 2V\"\nresistor R1 a gnd 1k\n", 1, 25,
               "neither an SI prefix nor a unit");
 }
+
+TEST_CASE("run periodic and run warm-up in the language", "[netlist][parser][periodic]") {
+  const Netlist nl = parseNetlist(kOk +
+                                  "run periodic reltol=1e-6 at=2min warm-up-periods=5 "
+                                  "temperature-abstol=1e-3 start=cold\n"
+                                  "run warm-up duration=2h reltol=1e-4 temperature-tolerance=0.01 "
+                                  "periodic-reltol=1e-5 max-step=10min\n");
+  REQUIRE(nl.analyses.size() == 2);
+  const auto& p = nl.analyses[0];
+  CHECK(p.kind == AnalysisRequest::Kind::Periodic);
+  CHECK(p.periodic.tol.reltol == 1e-6);
+  CHECK(p.periodic.slowTime == Approx(120.0));
+  CHECK(p.periodic.warmupPeriods == 5);
+  CHECK(p.periodic.tol.temperature == 1e-3);
+  CHECK(p.periodic.start == Start::Cold);
+  const auto& w = nl.analyses[1];
+  CHECK(w.kind == AnalysisRequest::Kind::WarmUp);
+  CHECK(w.warmUp.duration == Approx(7200.0));
+  CHECK(w.warmUp.reltol == 1e-4);
+  CHECK(w.warmUp.temperatureTol == 0.01);
+  CHECK(w.warmUp.periodic.tol.reltol == 1e-5);
+  CHECK(w.warmUp.maxStep == Approx(600.0));
+  CHECK(std::string(analysisWord(w.kind)) == "warm-up");
+
+  expectError(kOk + "run warm-up\n", 3, 1, "run warm-up needs duration=TIME");
+  expectError(kOk + "run warm-up duration=-1h\n", 3, 22, "duration must be positive");
+  expectError(kOk + "run warm-up duration=1h reltool=1e-3\n", 3, 25, "did you mean 'reltol'");
+  expectError(kOk + "run periodic stop=1s\n", 3, 14, "run periodic has no parameter 'stop'");
+  expectError(kOk + "run periodic warm-up-periods=2.5\n", 3, 30, "whole number");
+  expectError(kOk + "run perodic\n", 3, 5, "did you mean 'periodic'");
+}

@@ -11,16 +11,50 @@
 
 namespace disc {
 
+/// A rating first reached during a warm-up (the supply report's verdicts, judged at every slow
+/// step, and the hottest plate's own temperature against its limit).
+struct LimitCrossing {
+  std::string what;  ///< "SR1: peak reverse voltage per plate"
+  double time = 0;   ///< s, interpolated between the slow steps around the crossing
+  double limit = 0;
+  std::string unit;
+};
+
+/// A figure at the start and at the end of a warm-up.
+struct WarmUpTrend {
+  std::string what, unit;
+  double start = 0, end = 0;
+};
+
+/// What a warm-up found, beyond its series.
+struct WarmUpSummary {
+  double duration = 0, endTime = 0;  ///< s
+  std::string stoppedBy;             ///< empty, or why it ended early
+  std::vector<LimitCrossing> firstLimits;
+  std::vector<WarmUpTrend> trends;
+  std::vector<FailureEvent> failures;
+  EnvelopeStats stats;
+};
+
 struct AnalysisOutcome {
   AnalysisRequest request;
+  /// Transient and operating point: the run; periodic: one settled period; warm-up: its series
+  /// (one row per slow step: mean, min() and max() of each signal over the settled period).
   Result result;
+  WarmUpSummary warmUp;  ///< for a warm-up
 };
 
 struct RunOutcome {
   std::vector<AnalysisOutcome> analyses;
-  bool hasReport = false;  ///< a supply report exists (an output statement and a transient)
+  /// A supply report exists: an output statement and a transient, periodic or warm-up analysis
+  /// (the last one feeds it; a warm-up's from its settled period at the end).
+  bool hasReport = false;
+  std::size_t reportAnalysis = 0;  ///< index in `analyses` of the one behind the report
   SupplyReport report;
 };
+
+/// The warm-up block of the text report: trends, first limits, failures.
+std::string warmUpText(const WarmUpSummary& summary);
 
 /// Runs every analysis of the netlist; the last transient feeds the supply report when the
 /// netlist names its output. `progress(time, stop)` may return false to cancel.

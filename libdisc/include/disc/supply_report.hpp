@@ -31,6 +31,9 @@ struct StackFigures {
   double densityAverage = 0;  ///< A/cm2, per plate area, average forward current of the busiest arm
   double densityRating = 0;   ///< A/cm2, derated for the ambient
   double surgePeak = 0;       ///< A, largest stack current over the whole run
+  /// False when the report comes from a periodic steady state: it has no switch-on, so
+  /// surgePeak is only the settled period's peak.
+  bool surgeKnown = true;
   double powerForward = 0, powerReverse = 0;  ///< W, whole stack, settled averages
   double powerPerPlate = 0;                   ///< W, average per plate
   double temperatureEnd = 0;                  ///< K, hottest plate at the end of the run
@@ -85,6 +88,9 @@ struct SupplyReport {
   std::string title, file;
   double ambient = 0;    ///< K
   double frequency = 0;  ///< Hz of the mains (0 for DC supplies)
+  /// "transient", or "periodic" when the figures come from one periodic steady-state period
+  /// (run periodic, or the end of a warm-up).
+  std::string basis = "transient";
   bool settled = false;
   int cycles = 0;                   ///< settled cycles the figures use
   double window0 = 0, window1 = 0;  ///< s

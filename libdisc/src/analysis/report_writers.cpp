@@ -113,7 +113,12 @@ std::string reportText(const SupplyReport& r) {
   line(r.title.empty() ? std::string("libdisc supply report")
                        : fmt::format("libdisc supply report: {}", r.title));
   line(fmt::format("file {}, ambient {:.1f} degC", r.file, toC(r.ambient)));
-  if (r.frequency > 0)
+  if (r.basis == "periodic")
+    line(
+        fmt::format("figures over one period of the periodic steady state at {:g} Hz (no "
+                    "switch-on surge: run a transient from cold for it)",
+                    r.frequency));
+  else if (r.frequency > 0)
     line(fmt::format("figures over {} settled cycle(s) of {:g} Hz, {:.4f} to {:.4f} s{}", r.cycles,
                      r.frequency, r.window0, r.window1, r.settled ? "" : " (NOT settled)"));
   line("");
@@ -149,10 +154,10 @@ std::string reportText(const SupplyReport& r) {
     line("");
     line(fmt::format("STACK {}: {} x {} plate(s) of {} ({}, {}), {} load", st.name, st.arms,
                      st.plates, st.type, st.material, st.mode, st.loadKind));
-    line(
-        fmt::format("  forward current       {:.4f} A average, {:.4f} A rms, {:.4f} A peak; "
-                    "switch-on surge {:.3f} A",
-                    st.currentAverage, st.currentRms, st.currentPeak, st.surgePeak));
+    line(fmt::format(
+        "  forward current       {:.4f} A average, {:.4f} A rms, {:.4f} A peak{}",
+        st.currentAverage, st.currentRms, st.currentPeak,
+        st.surgeKnown ? fmt::format("; switch-on surge {:.3f} A", st.surgePeak) : std::string()));
     line(fmt::format(
         "  dissipation           {:.3f} W forward + {:.3f} W reverse ({:.3f} W per plate)",
         st.powerForward, st.powerReverse, st.powerPerPlate));
@@ -190,6 +195,7 @@ std::string reportJson(const SupplyReport& r) {
   j["file"] = r.file;
   j["ambient_K"] = r.ambient;
   j["frequency_Hz"] = r.frequency;
+  j["basis"] = r.basis;
   j["settled"] = r.settled;
   j["cycles"] = r.cycles;
   j["window_s"] = {r.window0, r.window1};
@@ -219,36 +225,37 @@ std::string reportJson(const SupplyReport& r) {
   for (const auto& s : r.stacks) {
     nlohmann::json v = nlohmann::json::array();
     for (const auto& x : s.verdicts) v.push_back(verdictJson(x));
-    j["stacks"].push_back({{"name", s.name},
-                           {"type", s.type},
-                           {"material", s.material},
-                           {"mode", s.mode},
-                           {"load_kind", s.loadKind},
-                           {"rectifier", s.rectifier},
-                           {"plates_per_arm", s.plates},
-                           {"arms", s.arms},
-                           {"peak_reverse_per_plate_V", s.peakReverse},
-                           {"rms_reverse_per_plate_V", s.rmsReverse},
-                           {"rms_reverse_rating_V", s.rmsRating},
-                           {"peak_reverse_rating_V", s.peakRating},
-                           {"current_average_A", s.currentAverage},
-                           {"current_rms_A", s.currentRms},
-                           {"current_peak_A", s.currentPeak},
-                           {"current_density_average_A_per_cm2", s.densityAverage},
-                           {"current_density_rating_A_per_cm2", s.densityRating},
-                           {"switch_on_surge_A", s.surgePeak},
-                           {"dissipation_forward_W", s.powerForward},
-                           {"dissipation_reverse_W", s.powerReverse},
-                           {"dissipation_per_plate_W", s.powerPerPlate},
-                           {"temperature_end_K", s.temperatureEnd},
-                           {"temperature_steady_estimate_K", s.temperatureSteady},
-                           {"temperature_limit_K", s.temperatureLimit},
-                           {"no_steady_state", s.noSteadyState},
-                           {"destruction_temperature_K", s.destructionTemperature},
-                           {"arm_share", s.armShare},
-                           {"forming_start", s.formingStart},
-                           {"forming_end", s.formingEnd},
-                           {"verdicts", v}});
+    j["stacks"].push_back(
+        {{"name", s.name},
+         {"type", s.type},
+         {"material", s.material},
+         {"mode", s.mode},
+         {"load_kind", s.loadKind},
+         {"rectifier", s.rectifier},
+         {"plates_per_arm", s.plates},
+         {"arms", s.arms},
+         {"peak_reverse_per_plate_V", s.peakReverse},
+         {"rms_reverse_per_plate_V", s.rmsReverse},
+         {"rms_reverse_rating_V", s.rmsRating},
+         {"peak_reverse_rating_V", s.peakRating},
+         {"current_average_A", s.currentAverage},
+         {"current_rms_A", s.currentRms},
+         {"current_peak_A", s.currentPeak},
+         {"current_density_average_A_per_cm2", s.densityAverage},
+         {"current_density_rating_A_per_cm2", s.densityRating},
+         {"switch_on_surge_A", s.surgeKnown ? nlohmann::json(s.surgePeak) : nlohmann::json()},
+         {"dissipation_forward_W", s.powerForward},
+         {"dissipation_reverse_W", s.powerReverse},
+         {"dissipation_per_plate_W", s.powerPerPlate},
+         {"temperature_end_K", s.temperatureEnd},
+         {"temperature_steady_estimate_K", s.temperatureSteady},
+         {"temperature_limit_K", s.temperatureLimit},
+         {"no_steady_state", s.noSteadyState},
+         {"destruction_temperature_K", s.destructionTemperature},
+         {"arm_share", s.armShare},
+         {"forming_start", s.formingStart},
+         {"forming_end", s.formingEnd},
+         {"verdicts", v}});
   }
   j["failures"] = failuresJson(r.failures);
   j["overall"] = r.worst;
@@ -357,16 +364,58 @@ std::string svgPlot(const std::string& title, const std::string& xLabel, const s
   return s;
 }
 
+namespace {
+
+/// A warm-up's plots over minutes: the output's period mean, minimum and maximum, and per stack
+/// its hottest plate, lowest forming state and leakage current.
+std::vector<std::pair<std::string, std::string>> warmUpPlots(const Netlist& nl,
+                                                             const Result& series) {
+  std::vector<std::pair<std::string, std::string>> plots;
+  std::vector<double> minutes = series.time();
+  for (double& m : minutes) m /= 60.0;
+  const std::string v = fmt::format("v:{},{}", nl.output.positive, nl.output.negative);
+  if (series.has(v))
+    plots.emplace_back("warm-up-output",
+                       svgPlot("Output voltage during the warm-up", "time (min)", "V",
+                               {{"period mean", minutes, series[v]},
+                                {"period minimum", minutes, series["min(" + v + ")"]},
+                                {"period maximum", minutes, series["max(" + v + ")"]}}));
+  std::vector<PlotSeries> temps, forming, leakage;
+  for (const auto& d : nl.circuit.devices()) {
+    const std::string n = d->name();
+    if (!series.has("temp:" + n) || !series.has("form:" + n)) continue;
+    PlotSeries t{"hottest plate of " + n, minutes, series["temp:" + n]};
+    for (double& x : t.y) x -= 273.15;
+    temps.push_back(std::move(t));
+    forming.push_back({"lowest forming state of " + n, minutes, series["form:" + n]});
+    if (series.has("irev:" + n)) {
+      PlotSeries l{"mean leakage of " + n, minutes, series["irev:" + n]};
+      for (double& x : l.y) x *= 1e3;
+      leakage.push_back(std::move(l));
+    }
+  }
+  if (!temps.empty()) {
+    plots.emplace_back("warm-up-temperatures", svgPlot("Plate temperatures during the warm-up",
+                                                       "time (min)", "degC", temps));
+    plots.emplace_back("warm-up-forming",
+                       svgPlot("Forming state during the warm-up", "time (min)", "F", forming));
+  }
+  if (!leakage.empty())
+    plots.emplace_back("warm-up-leakage", svgPlot("Reverse (leakage) current during the warm-up",
+                                                  "time (min)", "mA", leakage));
+  return plots;
+}
+
+}  // namespace
+
 std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl,
                                                           const RunOutcome& out) {
   std::vector<std::pair<std::string, std::string>> plots;
   if (!out.hasReport) return plots;
   const SupplyReport& rep = out.report;
-  // The transient behind the report is the last one.
-  const Result* r = nullptr;
-  for (const auto& a : out.analyses)
-    if (a.request.kind == AnalysisRequest::Kind::Transient) r = &a.result;
-  if (!r) return plots;
+  const AnalysisOutcome& behind = out.analyses.at(out.reportAnalysis);
+  if (behind.request.kind == AnalysisRequest::Kind::WarmUp) return warmUpPlots(nl, behind.result);
+  const Result* r = &behind.result;
   const auto& t = r->time();
   auto window = [&](const std::vector<double>& y, std::vector<double>& xs,
                     std::vector<double>& ys) {
@@ -470,7 +519,7 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
         s.loadKind);
     row("forward current", fmt::format("{:.4f} A average, {:.4f} A rms, {:.4f} A peak",
                                        s.currentAverage, s.currentRms, s.currentPeak));
-    row("switch-on surge", fmt::format("{:.3f} A", s.surgePeak));
+    if (s.surgeKnown) row("switch-on surge", fmt::format("{:.3f} A", s.surgePeak));
     row("dissipation", fmt::format("{:.3f} W forward, {:.3f} W reverse, {:.3f} W per plate",
                                    s.powerForward, s.powerReverse, s.powerPerPlate));
     row("hottest plate",
@@ -548,8 +597,7 @@ std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
   std::vector<std::pair<std::string, std::string>> files;
   for (std::size_t k = 0; k < out.analyses.size(); ++k) {
     const auto& a = out.analyses[k];
-    const char* kind =
-        a.request.kind == AnalysisRequest::Kind::Transient ? "transient" : "operating-point";
+    const char* kind = analysisWord(a.request.kind);
     files.emplace_back(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
   }
   if (out.hasReport) {

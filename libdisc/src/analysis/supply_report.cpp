@@ -103,7 +103,16 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   // Settled window: consecutive whole cycles at the end whose mean output agrees within 0.2 %.
   const std::string outSig =
       nl.output.given ? fmt::format("v:{},{}", nl.output.positive, nl.output.negative) : "";
-  if (rep.frequency > 0.0) {
+  // A periodic steady state (alone, or at the end of a warm-up) is one settled period: the
+  // figures need no settling check, and it has no switch-on.
+  const bool periodicBasis = r.stats().method == "periodic" || r.stats().method == "warm-up";
+  rep.basis = periodicBasis ? "periodic" : "transient";
+  if (periodicBasis) {
+    rep.settled = true;
+    rep.cycles = 1;
+    rep.window0 = t.front();
+    rep.window1 = end;
+  } else if (rep.frequency > 0.0) {
     const double period = 1.0 / rep.frequency;
     const int available = static_cast<int>(std::floor((end - t.front()) / period + 1e-9));
     int settledCycles = 1;
@@ -276,6 +285,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     double surge = 0.0;
     for (double x : i) surge = std::max(surge, std::abs(x));
     s.surgePeak = surge;
+    s.surgeKnown = !periodicBasis;
 
     const double ta = c.ambient(), tmax = pt.ratings.maxPlateTemperature,
                  tref = pt.ratings.ambientReference;

@@ -103,6 +103,9 @@ OutputFigures outputFigures(const std::vector<double>& t, const std::vector<doub
   f.cycles = cycles;
   f.window1 = t.back();
   f.window0 = f.window1 - cycles / frequency;
+  // A window of exactly the run (one periodic steady-state period) may round below its start.
+  if (f.window0 < t.front() && f.window0 > t.front() - 1e-9 * (f.window1 - t.front()))
+    f.window0 = t.front();
   if (f.window0 < t.front())
     throw InputError(
         fmt::format("output figures: the run ({} s) is shorter than {} cycle(s) at {} Hz",

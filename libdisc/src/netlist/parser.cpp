@@ -869,9 +869,9 @@ class Builder {
               error(tok.valueWhere,
                     fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
           } else {
-            unknownKey(tok, "transient",
-                       {"stop", "max-step", "method", "start", "reltol", "abstol",
-                        "temperature-abstol"});
+            unknownKey(
+                tok, "transient",
+                {"stop", "max-step", "method", "start", "reltol", "abstol", "temperature-abstol"});
           }
         }
         if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
@@ -942,9 +942,9 @@ class Builder {
             else if (v)
               eo.periodic.tol.reltol = *v;
           } else {
-            unknownKey(tok, "warm-up",
-                       {"duration", "max-step", "reltol", "temperature-tolerance",
-                        "periodic-reltol"});
+            unknownKey(
+                tok, "warm-up",
+                {"duration", "max-step", "reltol", "temperature-tolerance", "periodic-reltol"});
           }
         }
         if (!haveDuration)
