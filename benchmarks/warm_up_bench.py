@@ -1,0 +1,103 @@
+#!/usr/bin/env python3
+"""Warm-up benchmark: the table radio's per-plate selenium stack warmed for 1 h and 10 h with
+`run warm-up`, against a brute-force transient that integrates every mains cycle.
+
+The brute force runs a shorter span (--brute, default 300 s) and its wall time is scaled
+linearly to the warm-up's duration: its cost per simulated second is constant once the switch-on
+is over (the step count per mains cycle does not change as the plates warm). The figures are
+compared at the end of the brute-force span: a warm-up of the same duration against the last
+mains cycle of the transient.
+
+Usage: /usr/bin/python3 benchmarks/warm_up_bench.py [--build build-release] [--brute 300]
+                                                   [--reltol 1e-3]
+Prints a Markdown table (the figures in docs/performance.md).
+"""
+import argparse
+import csv
+import os
+import subprocess
+import sys
+import tempfile
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+SOURCE = os.path.join(HERE, "..", "netlists", "table-radio-warm-up.disc")
+
+
+def circuit_lines():
+    """The example's circuit without its output and run statements."""
+    with open(SOURCE, encoding="utf-8") as f:
+        return [l for l in f if not l.startswith(("run ", "output "))]
+
+
+def timed(cmd):
+    """(wall s, peak RSS MiB) of one command in a fresh process."""
+    probe = ("import resource, subprocess, sys, time; t = time.perf_counter(); "
+             "subprocess.run(sys.argv[1:], check=True, stdout=subprocess.DEVNULL); "
+             "u = resource.getrusage(resource.RUSAGE_CHILDREN); "
+             "print(time.perf_counter() - t, u.ru_maxrss)")
+    res = subprocess.run([sys.executable, "-c", probe] + cmd, check=True, capture_output=True,
+                         text=True)
+    wall, rss_kib = res.stdout.split()
+    return float(wall), int(rss_kib) / 1024.0
+
+
+def columns(path):
+    with open(path, newline="", encoding="utf-8") as f:
+        rows = list(csv.reader(f))
+    head = [h.split(" [")[0] for h in rows[0]]
+    data = [[float(x) for x in r] for r in rows[1:]]
+    return {h: [r[k] for r in data] for k, h in enumerate(head)}
+
+
+def warm_up(cli, tmp, duration):
+    path = os.path.join(tmp, f"warm-{duration}.disc")
+    with open(path, "w", encoding="utf-8") as f:
+        f.writelines(circuit_lines())
+        f.write(f"record v:c\nrun warm-up duration={duration}s\n")
+    out = os.path.join(tmp, f"out-warm-{duration}")
+    wall, rss = timed([cli, "run", "-q", path, "-o", out])
+    c = columns(os.path.join(out, "warm-up-1.csv"))
+    return wall, rss, c["v:c"][-1], c["temp:SR1"][-1]
+
+
+def brute(cli, tmp, stop, reltol):
+    path = os.path.join(tmp, "brute.disc")
+    with open(path, "w", encoding="utf-8") as f:
+        f.writelines(circuit_lines())
+        f.write(f"record v:c temp:SR1\nrun transient stop={stop}s reltol={reltol}\n")
+    out = os.path.join(tmp, "out-brute")
+    wall, rss = timed([cli, "run", "-q", path, "-o", out])
+    c = columns(os.path.join(out, "transient-1.csv"))
+    t, v = c["time"], c["v:c"]
+    t0 = stop - 1.0 / 60.0  # the last mains cycle
+    area = sum(0.5 * (v[k] + v[k - 1]) * (t[k] - t[k - 1])
+               for k in range(1, len(t)) if t[k - 1] >= t0)
+    return wall, rss, area / (t[-1] - t0), c["temp:SR1"][-1]
+
+
+def main():
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--build", default=os.path.join(HERE, "..", "build-release"))
+    ap.add_argument("--brute", type=float, default=300.0)
+    ap.add_argument("--reltol", type=float, default=1e-3, help="of the brute-force transient")
+    a = ap.parse_args()
+    cli = os.path.join(a.build, "bindings", "cli", "disc")
+    with tempfile.TemporaryDirectory() as tmp:
+        bw, brss, bv, bt = brute(cli, tmp, a.brute, a.reltol)
+        ew, erss, ev, et = warm_up(cli, tmp, a.brute)
+        print(f"| span | method | wall s | peak RSS MiB | v:c mean V | hottest plate K |")
+        print(f"|---|---|---|---|---|---|")
+        print(f"| {a.brute:g} s | brute-force transient, reltol {a.reltol:g} | {bw:.2f} | {brss:.0f} | {bv:.3f} | {bt:.2f} |")
+        print(f"| {a.brute:g} s | warm-up | {ew:.2f} | {erss:.0f} | {ev:.3f} | {et:.2f} |")
+        print(f"\noutput difference {100 * abs(ev - bv) / bv:.3f} %, "
+              f"temperature difference {abs(et - bt):.3f} K")
+        for hours in (1, 10):
+            w, rss, v, t = warm_up(cli, tmp, 3600 * hours)
+            scaled = bw / a.brute * 3600 * hours
+            print(f"| {hours} h | warm-up | {w:.2f} | {rss:.0f} | {v:.3f} | {t:.2f} | "
+                  f"brute force scaled: {scaled:.0f} s, ratio {scaled / w:.0f}x")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
