@@ -132,3 +132,33 @@ TEST_CASE("Valve load Jacobian: cold, warming and warm, forward and reversed",
     }
   }
 }
+
+TEST_CASE("Thermistor Jacobian from cold to hot, both polarities", "[devices][jacobian]") {
+  for (double rise : {0.0, 40.0, 150.0}) {
+    for (double v : {-200.0, 3.0, 120.0}) {
+      ThermistorParams p;
+      p.resistance = 10.0;
+      p.bConstant = 3500.0;
+      Circuit c;
+      c.emplace<Thermistor>("TH1", c.node("a"), c.node("b"), p);
+      c.emplace<Resistor>("R1", c.node("b"), kGround, 50.0);
+      INFO("rise " << rise << " K, v " << v);
+      requireJacobianAt(c, {{"a", {v, 0.5}}, {"b", {0.1 * v, 0.5}}, {"TH1.temp", {rise, 0.5}}});
+    }
+  }
+}
+
+TEST_CASE("Electrolytic Jacobian: deformed to formed, charged and reversed",
+          "[devices][jacobian]") {
+  for (double f : {0.02, 0.5, 1.0}) {
+    for (double v : {-5.0, 40.0, 350.0}) {
+      ElectrolyticParams p;
+      p.forming = f;
+      Circuit c;
+      c.emplace<Electrolytic>("C1", c.node("a"), kGround, p);
+      c.emplace<Resistor>("R1", c.node("a"), kGround, 1e3);
+      INFO("forming " << f << ", v " << v);
+      requireJacobianAt(c, {{"a", {v, 0.5}}, {"C1.cap", {v, 0.5}}, {"C1.form", {f, 0.01}}});
+    }
+  }
+}

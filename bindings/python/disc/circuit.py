@@ -237,6 +237,27 @@ class Circuit:
                          rated_voltage=rated_voltage, exponent=exponent, warm_up=warm_up, on=on,
                          warmth=warmth)
 
+    def thermistor(self, name, a, b, resistance, b_constant, reference_temp=None,
+                   dissipation=None, time_constant=None, max_current=None):
+        """NTC surge thermistor: resistance (ohm) at reference_temp (K, default 25 degC),
+        B constant (K), dissipation constant (W/K), thermal time constant (s), rated current
+        (A rms) as in docs/netlist.md."""
+        return self._add("thermistor", name, (a, b), resistance=resistance,
+                         b_constant=b_constant, reference_temp=reference_temp,
+                         dissipation=dissipation, time_constant=time_constant,
+                         max_current=max_current)
+
+    def electrolytic(self, name, plus, minus, capacitance, rated_voltage, esr=None,
+                     ripple_current=None, leakage=None, deformed_leakage=None,
+                     forming_time=None, forming=None, stored_years=None, storage_years=None):
+        """Electrolytic capacitor with ESR (ohm), working voltage (V), ripple-current rating
+        (A rms), leakage (A), and an oxide forming state (docs/netlist.md)."""
+        return self._add("electrolytic", name, (plus, minus), capacitance=capacitance,
+                         rated_voltage=rated_voltage, esr=esr, ripple_current=ripple_current,
+                         leakage=leakage, deformed_leakage=deformed_leakage,
+                         forming_time=forming_time, forming=forming, stored_years=stored_years,
+                         storage_years=storage_years)
+
     def switch(self, name, a, b, close=None, open=None, ron=None, roff=None):
         """Switch closing and/or opening at the given times (s)."""
         return self._add("switch", name, (a, b), close=close, open=open, ron=ron, roff=roff)

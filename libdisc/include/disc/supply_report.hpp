@@ -47,6 +47,12 @@ struct StackFigures {
   std::vector<Verdict> verdicts;
 };
 
+/// An electrolytic capacitor or a surge thermistor judged against its own ratings.
+struct PartFigures {
+  std::string name, kind;
+  std::vector<Verdict> verdicts;
+};
+
 /// Mean power a device absorbs over the settled window (a loss, or for capacitors and
 /// inductors the net energy they store: about 0 once settled).
 struct PowerShare {
@@ -96,6 +102,7 @@ struct SupplyReport {
   double window0 = 0, window1 = 0;  ///< s
   OutputFigures output;
   std::vector<StackFigures> stacks;
+  std::vector<PartFigures> parts;  ///< electrolytics and thermistors with ratings
   std::vector<std::string> warnings;
   std::vector<std::string> cautions;
   std::string disclaimer;

@@ -181,6 +181,13 @@ std::string reportText(const SupplyReport& r) {
       line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value,
                        v.unit, v.limit, v.unit));
   }
+  for (const auto& part : r.parts) {
+    line("");
+    line(fmt::format("{} {}", part.kind, part.name));
+    for (const auto& v : part.verdicts)
+      line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value,
+                       v.unit, v.limit, v.unit));
+  }
   line("");
   line(fmt::format("OVERALL: {}", r.worst));
   s += detail::closingBlock(r.warnings, r.cautions, r.disclaimer);
@@ -256,6 +263,12 @@ std::string reportJson(const SupplyReport& r) {
          {"forming_start", s.formingStart},
          {"forming_end", s.formingEnd},
          {"verdicts", v}});
+  }
+  j["parts"] = nlohmann::json::array();
+  for (const auto& part : r.parts) {
+    auto v = nlohmann::json::array();
+    for (const auto& x : part.verdicts) v.push_back(verdictJson(x));
+    j["parts"].push_back({{"name", part.name}, {"kind", part.kind}, {"verdicts", v}});
   }
   j["failures"] = failuresJson(r.failures);
   j["overall"] = r.worst;

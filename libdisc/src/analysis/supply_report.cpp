@@ -7,8 +7,10 @@
 #include <numbers>
 
 #include "disc/devices/capacitor.hpp"
+#include "disc/devices/electrolytic.hpp"
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
+#include "disc/devices/thermistor.hpp"
 #include "disc/devices/transformer.hpp"
 #include "disc/measures.hpp"
 
@@ -66,6 +68,12 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
     } else if (dynamic_cast<const Transformer*>(d.get())) {
       s.push_back("i2:" + d->name());
       s.push_back(fmt::format("v:{},{}", vname(c, t[2]), vname(c, t[3])));
+    } else if (dynamic_cast<const Electrolytic*>(d.get())) {
+      s.push_back("i:" + d->name());
+      s.push_back(fmt::format("v:{},{}", vname(c, t[0]), vname(c, t[1])));
+    } else if (dynamic_cast<const Thermistor*>(d.get())) {
+      s.push_back("i:" + d->name());
+      s.push_back("temp:" + d->name());
     } else if (auto* st = dynamic_cast<const Stack*>(d.get())) {
       for (const char* q : {"i", "p", "vrev", "temp", "form", "pfwd", "prev"})
         s.push_back(fmt::format("{}:{}", q, d->name()));
@@ -247,7 +255,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
           if (na == nb) group[root(a)] = root(b);
   std::vector<bool> groupCapacitive(stacks.size(), false);
   for (const auto& e : c.devices())
-    if (dynamic_cast<const Capacitor*>(e.get()))
+    if (dynamic_cast<const Capacitor*>(e.get()) || dynamic_cast<const Electrolytic*>(e.get()))
       for (NodeId n : e->terminals())
         for (std::size_t k = 0; k < stacks.size(); ++k)
           for (NodeId m : stacks[k]->terminals())
@@ -363,7 +371,55 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
           s.name, s.formingStart, s.formingEnd));
     rep.stacks.push_back(std::move(s));
   }
+  // Electrolytics and thermistors against their own ratings.
+  for (const auto& d : c.devices()) {
+    PartFigures part{d->name(), std::string(d->kind()), {}};
+    if (const auto* e = dynamic_cast<const Electrolytic*>(d.get())) {
+      const auto& term = e->terminals();
+      const auto& v = r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))];
+      const auto& i = r["i:" + e->name()];
+      part.verdicts.push_back(
+          judge("peak voltage", measure::maximum(t, v, w0, w1), e->params().ratedVoltage, "V",
+                "largest voltage across the capacitor against its DC working voltage"));
+      if (measure::minimum(t, v, w0, w1) < -1.0)
+        rep.warnings.push_back(fmt::format(
+            "{}: the electrolytic is reversed by {:.3g} V; a polarised capacitor takes no more "
+            "than about 1 V reversed: check its polarity",
+            e->name(), -measure::minimum(t, v, w0, w1)));
+      if (e->params().rippleCurrent > 0.0) {
+        const double mean = measure::mean(t, i, w0, w1);
+        std::vector<double> ac(i.size());
+        std::transform(i.begin(), i.end(), ac.begin(), [&](double x) { return x - mean; });
+        part.verdicts.push_back(judge("rms ripple current", measure::rms(t, ac, w0, w1),
+                                      e->params().rippleCurrent, "A",
+                                      "rms of the capacitor current less its mean against the "
+                                      "rated ripple current"));
+      }
+      if (e->initialForming() < 0.9)
+        rep.warnings.push_back(fmt::format(
+            "{}: the electrolytic starts deformed (forming state {:.2f}): its leakage is high "
+            "until it re-forms; re-form it first at a limited current, raising the voltage "
+            "slowly, and watch for heat",
+            e->name(), e->initialForming()));
+    } else if (const auto* th = dynamic_cast<const Thermistor*>(d.get())) {
+      if (th->params().maxCurrent > 0.0)
+        part.verdicts.push_back(judge("rms current", measure::rms(t, r["i:" + th->name()], w0, w1),
+                                      th->params().maxCurrent, "A",
+                                      "rms current over the settled window against the "
+                                      "thermistor's rated steady-state current"));
+    }
+    if (part.verdicts.empty()) continue;
+    for (const auto& v : part.verdicts)
+      if (v.level != "ok")
+        rep.warnings.push_back(fmt::format(
+            "{}: {} is {:.3g} {}, {} the {:.3g} {} limit ({})", part.name, v.figure, v.value,
+            v.unit, v.level == "exceeds" ? "above" : "close to", v.limit, v.unit, v.rule));
+    rep.parts.push_back(std::move(part));
+  }
   for (const auto& s : rep.stacks)
+    for (const auto& v : s.verdicts)
+      if (rank(v.level) > rank(rep.worst)) rep.worst = v.level;
+  for (const auto& s : rep.parts)
     for (const auto& v : s.verdicts)
       if (rank(v.level) > rank(rep.worst)) rep.worst = v.level;
   rep.failures = r.failures();
@@ -412,8 +468,8 @@ Hazards hazardsOf(const Netlist& nl, const Result* r) {
   }
   h.transformerless = h.mains && !transformer;
   for (const auto& d : c.devices()) {
-    const auto* cap = dynamic_cast<const Capacitor*>(d.get());
-    if (!cap) continue;
+    if (!dynamic_cast<const Capacitor*>(d.get()) && !dynamic_cast<const Electrolytic*>(d.get()))
+      continue;
     const auto& t = d->terminals();
     const std::string sig = fmt::format("v:{},{}", c.nodeName(t[0]), c.nodeName(t[1]));
     double v = 0.0;

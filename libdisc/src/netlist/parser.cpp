@@ -12,12 +12,14 @@
 #include "core/text_match.hpp"
 #include "disc/devices/capacitor.hpp"
 #include "disc/devices/diode.hpp"
+#include "disc/devices/electrolytic.hpp"
 #include "disc/devices/inductor.hpp"
 #include "disc/devices/lamp.hpp"
 #include "disc/devices/resistor.hpp"
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/devices/switch.hpp"
+#include "disc/devices/thermistor.hpp"
 #include "disc/devices/transformer.hpp"
 #include "disc/devices/valve_load.hpp"
 #include "disc/limits.hpp"
@@ -120,6 +122,8 @@ const std::vector<KindSpec>& kinds() {
        {}},
       kindFromTable("lamp", 2, Lamp("", 0, 1)),
       kindFromTable("valve-load", 2, ValveLoad("", 0, 1)),
+      kindFromTable("thermistor", 2, Thermistor("", 0, 1)),
+      kindFromTable("electrolytic", 2, Electrolytic("", 0, 1)),
       {"switch",
        2,
        nullptr,
@@ -704,6 +708,16 @@ class Builder {
       require("rated-current", "A drawn by the warm valves at rated-voltage=");
       require("rated-voltage", "V, the HT voltage of that current");
       return withTableParams(std::make_unique<ValveLoad>(name, n[0], n[1]), p);
+    }
+    if (kind == "thermistor") {
+      require("resistance", "ohm at reference-temp (25 degC unless given), from the datasheet");
+      require("b-constant", "K, the datasheet's B value");
+      return withTableParams(std::make_unique<Thermistor>(name, n[0], n[1]), p);
+    }
+    if (kind == "electrolytic") {
+      require("capacitance", "F");
+      require("rated-voltage", "V, the DC working voltage printed on the can");
+      return withTableParams(std::make_unique<Electrolytic>(name, n[0], n[1]), p);
     }
     if (kind == "switch") {
       std::vector<std::pair<double, bool>> events;  // (time, closes)
