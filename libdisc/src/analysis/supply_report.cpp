@@ -379,8 +379,8 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
       const auto& v = r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))];
       const auto& i = r["i:" + e->name()];
       part.verdicts.push_back(
-          judge("peak voltage", measure::maximum(t, v, w0, w1), e->params().ratedVoltage, "V",
-                "largest voltage across the capacitor against its DC working voltage"));
+          judgeFigure("peak voltage", measure::maximum(t, v, w0, w1), e->params().ratedVoltage, "V",
+                      "largest voltage across the capacitor against its DC working voltage"));
       if (measure::minimum(t, v, w0, w1) < -1.0)
         rep.warnings.push_back(fmt::format(
             "{}: the electrolytic is reversed by {:.3g} V; a polarised capacitor takes no more "
@@ -390,10 +390,10 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
         const double mean = measure::mean(t, i, w0, w1);
         std::vector<double> ac(i.size());
         std::transform(i.begin(), i.end(), ac.begin(), [&](double x) { return x - mean; });
-        part.verdicts.push_back(judge("rms ripple current", measure::rms(t, ac, w0, w1),
-                                      e->params().rippleCurrent, "A",
-                                      "rms of the capacitor current less its mean against the "
-                                      "rated ripple current"));
+        part.verdicts.push_back(judgeFigure(
+            "rms ripple current", measure::rms(t, ac, w0, w1), e->params().rippleCurrent, "A",
+            "rms of the capacitor current less its mean against the "
+            "rated ripple current"));
       }
       if (e->initialForming() < 0.9)
         rep.warnings.push_back(fmt::format(
@@ -403,10 +403,11 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
             e->name(), e->initialForming()));
     } else if (const auto* th = dynamic_cast<const Thermistor*>(d.get())) {
       if (th->params().maxCurrent > 0.0)
-        part.verdicts.push_back(judge("rms current", measure::rms(t, r["i:" + th->name()], w0, w1),
-                                      th->params().maxCurrent, "A",
-                                      "rms current over the settled window against the "
-                                      "thermistor's rated steady-state current"));
+        part.verdicts.push_back(judgeFigure("rms current",
+                                            measure::rms(t, r["i:" + th->name()], w0, w1),
+                                            th->params().maxCurrent, "A",
+                                            "rms current over the settled window against the "
+                                            "thermistor's rated steady-state current"));
     }
     if (part.verdicts.empty()) continue;
     for (const auto& v : part.verdicts)
