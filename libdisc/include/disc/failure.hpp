@@ -80,6 +80,10 @@ struct FailureEvent {
   std::string verdict() const;
 };
 
+/// The event of a body: its names, plates, destruction temperature, mode and mechanism.
+FailureEvent failureEvent(const HeatedBody& body, ThermalCondition kind, double time,
+                          double temperature, std::string cause);
+
 /// "0.42 s", "3 min 20 s", "2 h 5 min".
 std::string formatDuration(double seconds);
 

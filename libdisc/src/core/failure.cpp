@@ -99,4 +99,20 @@ std::vector<std::string> failureVerdicts(const std::vector<FailureEvent>& events
   return v;
 }
 
+FailureEvent failureEvent(const HeatedBody& body, ThermalCondition kind, double time,
+                          double temperature, std::string cause) {
+  FailureEvent e;
+  e.kind = kind;
+  e.body = body.label;
+  e.device = body.device;
+  e.plates = body.plates;
+  e.time = time;
+  e.temperature = temperature;
+  e.destruction = body.destruction;
+  e.mode = body.mode;
+  e.mechanism = body.mechanism;
+  e.cause = std::move(cause);
+  return e;
+}
+
 }  // namespace disc

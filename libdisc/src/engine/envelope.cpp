@@ -225,17 +225,9 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       settle(tPrev, yPrev, false);  // at destruction already at the last row: it ends the series
     else
       recordRow(tc, yc);
-    FailureEvent e;
-    e.kind = ThermalCondition::Destroyed;
-    e.body = hit->body.label;
-    e.device = hit->body.device;
-    e.plates = hit->body.plates;
-    e.time = tc;
-    e.temperature = hit->body.destruction;
-    e.destruction = hit->body.destruction;
-    e.mode = hit->body.mode;
-    e.mechanism = hit->body.mechanism;
-    e.cause = hit->runaway ? "thermal runaway" : "overheating";
+    const FailureEvent e =
+        failureEvent(hit->body, ThermalCondition::Destroyed, tc, hit->body.destruction,
+                     hit->runaway ? "thermal runaway" : "overheating");
     er.failures.push_back(e);
     er.stoppedBy = e.verdict();
     return true;
@@ -263,16 +255,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       const ThermalCheck c = checkHeat(w.body, h);
       if (c.condition != ThermalCondition::Runaway) continue;
       w.runaway = true;
-      FailureEvent e;
-      e.kind = ThermalCondition::Runaway;
-      e.body = w.body.label;
-      e.device = w.body.device;
-      e.plates = w.body.plates;
-      e.time = t;
-      e.temperature = temperature;
-      e.destruction = w.body.destruction;
-      e.mode = w.body.mode;
-      e.mechanism = w.body.mechanism;
+      FailureEvent e = failureEvent(w.body, ThermalCondition::Runaway, t, temperature, "");
       e.cause = fmt::format(
           "over a mains period its dissipation, {:.3g} W, grows by {:.3g} W/K, faster than its "
           "cooling ({:.3g} W/K); at this rate it reaches destruction within {}",
@@ -320,19 +303,9 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
         if (!yPrev.empty() && (w.runaway || temperatureOf(w, yPrev) > w.body.serviceLimit))
           hot = &w;
       if (!hot) throw;
-      FailureEvent ev;
-      ev.kind = ThermalCondition::Runaway;
-      ev.body = hot->body.label;
-      ev.device = hot->body.device;
-      ev.plates = hot->body.plates;
-      ev.time = tPrev;
-      ev.temperature = temperatureOf(*hot, yPrev);
-      ev.destruction = hot->body.destruction;
-      ev.mode = hot->body.mode;
-      ev.mechanism = hot->body.mechanism;
-      ev.cause =
-          "beyond this time no periodic steady state exists: the heating outruns the "
-          "cooling";
+      const FailureEvent ev = failureEvent(
+          hot->body, ThermalCondition::Runaway, tPrev, temperatureOf(*hot, yPrev),
+          "beyond this time no periodic steady state exists: the heating outruns the cooling");
       if (!hot->runaway) er.failures.push_back(ev);
       er.stoppedBy = ev.verdict();
       settle(tPrev, yPrev, false);

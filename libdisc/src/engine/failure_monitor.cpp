@@ -34,18 +34,7 @@ FailureMonitor::FailureMonitor(const System& sys) {
 
 FailureEvent FailureMonitor::event(const Watch& w, ThermalCondition kind, double time,
                                    double temperature, std::string cause) const {
-  FailureEvent e;
-  e.kind = kind;
-  e.body = w.body.label;
-  e.device = w.body.device;
-  e.plates = w.body.plates;
-  e.time = time;
-  e.temperature = temperature;
-  e.destruction = w.body.destruction;
-  e.mode = w.body.mode;
-  e.mechanism = w.body.mechanism;
-  e.cause = std::move(cause);
-  return e;
+  return failureEvent(w.body, kind, time, temperature, std::move(cause));
 }
 
 bool FailureMonitor::start(const EvalContext& ctx) {
