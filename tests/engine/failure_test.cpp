@@ -62,7 +62,7 @@ HeatedBody testBody() {
 TEST_CASE("The heat check tells a sound body from a runaway and a destroyed one", "[failure]") {
   const HeatedBody b = testBody();
   // Net heating P - G (T - Ta) and its slope dP/dT - G decide (lumped thermal RC, C dT/dt =
-  // P - G (T - Ta), field notes section 5 restated in docs/plate-model.md).
+  // P - G (T - Ta), a lumped body with Newton's law of cooling; docs/plate-model.md).
   SECTION("cooling: sound, never reaches destruction") {
     const ThermalCheck c = checkHeat(b, {320.0, 0.3, 0.005});
     CHECK(c.condition == ThermalCondition::Sound);
@@ -131,7 +131,7 @@ TEST_CASE("Durations and verdicts read as a restorer would say them", "[failure]
 TEST_CASE("Destruction is located within the step that crosses it", "[failure]") {
   // Constant dissipation (activation 0): the temperature follows the lumped RC,
   // T = Ta + P Rth (1 - exp(-t / (Rth Cth))), and crosses Td at
-  // t* = -Rth Cth ln(1 - (Td - Ta) / (P Rth)) (field notes section 5, restated in
+  // t* = -Rth Cth ln(1 - (Td - Ta) / (P Rth)) (the lumped thermal RC integrated in closed form;
   // docs/plate-model.md).
   const PlateType t = shuntOnly(0.0);
   const double rs = t.physics.rsArea / t.physics.areaCm2;

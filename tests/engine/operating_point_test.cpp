@@ -91,7 +91,8 @@ double stringCurrent(int n, double volts, double ohms) {
   double lo = 0.0, hi = volts / ohms;
   for (int k = 0; k < 300; ++k) {
     const double i = 0.5 * (lo + hi);
-    const double v = i * ohms + n * (nvt * std::log1p(i / d.saturationCurrent) + i * d.seriesResistance);
+    const double v =
+        i * ohms + n * (nvt * std::log1p(i / d.saturationCurrent) + i * d.seriesResistance);
     (v < volts ? lo : hi) = i;
   }
   return 0.5 * (lo + hi);

@@ -385,9 +385,11 @@ TEST_CASE("Paralleled selenium arms share current far better than silicon diodes
   // diode's own temperature law, which scales both diodes alike.
   const double siExact = share(2.0, [&](double v, int k) {
     DiodeParams d;
-    if (k == 1) d.saturationCurrent *= std::exp(-0.05 / (d.ideality * constants::thermalVoltage(ta)));
+    if (k == 1)
+      d.saturationCurrent *= std::exp(-0.05 / (d.ideality * constants::thermalVoltage(ta)));
     const Diode::Scale sc = Diode("D", 1, kGround, d).scaleAt(ta);
-    return invert(v, [&](double i) { return sc.nvt * std::log1p(i / sc.is) + i * d.seriesResistance; });
+    return invert(
+        v, [&](double i) { return sc.nvt * std::log1p(i / sc.is) + i * d.seriesResistance; });
   });
   // The exact laws give the figures the engine must reproduce: within its tolerance (1e-9) and,
   // for the plates, the neglected shunt (0.06 % of each current, so 1e-3 of the imbalance);
