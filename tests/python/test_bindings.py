@@ -279,3 +279,19 @@ def test_lamp_valve_load_and_schedule_from_code():
     assert r["p:L1"][-1] == pytest.approx(60.0, rel=1e-3)
     # The warm-up from cold: 1 - exp(-t / 20 ms) (closed form of the first-order lag).
     assert np.interp(0.1, t, r["warm:VL"]) == pytest.approx(1.0 - np.exp(-0.1 / 0.02), rel=1e-4)
+
+
+def test_periodic_and_warm_up_from_python():
+    # The table radio's settled period: first and last rows agree (a periodic state), and an
+    # hour of warm-up raises the plates' temperature above the 30 degC ambient.
+    c = disc.load(NETLISTS / "table-radio-warm-up.disc")
+    p = c.run_periodic(record=["v:c"])
+    v = p["v:c"]
+    assert abs(v[0] - v[-1]) < 1e-3 * abs(v[0])
+    assert p.time[-1] == pytest.approx(1 / 60, rel=1e-9)
+    r, stopped, failures = c.run_warm_up(3600.0, record=["temp:SR1", "v:c"])
+    assert stopped == "" and failures == []
+    t = r["temp:SR1"]
+    assert t[0] == pytest.approx(303.15, abs=0.5)
+    assert t[-1] > t[0] + 5.0
+    assert r.time[-1] == pytest.approx(3600.0)

@@ -315,6 +315,23 @@ class Circuit:
                                       float(temperature_abstol), progress)
         return Result(self, res)
 
+    def run_periodic(self, record=None, reltol=0.0, at=0.0):
+        """The periodic steady state: one settled mains period (times from 0), found by Newton
+        shooting with the slow states (temperatures, forming) held. reltol defaults to 1e-5
+        (0 for the default); at is the slow clock (s) where schedules and valve warm-up are
+        read."""
+        return Result(self, self._net.run_periodic(list(record or []), float(reltol), float(at)))
+
+    def run_warm_up(self, duration, record=None, reltol=0.0, progress=None):
+        """The slow-state envelope over duration (s): one row per slow step, with each recorded
+        signal's period mean under its own name and "min(...)"/"max(...)" over the period
+        (record empty: every slow state). Returns (result, stopped_by, failures): why it ended
+        early ("" when it ran to the end) and the failure verdicts (a destroyed plate ends it).
+        progress(time, duration) as for run_transient."""
+        res, stopped, failures = self._net.run_warm_up(float(duration), list(record or []),
+                                                       float(reltol), progress)
+        return Result(self, res), stopped, list(failures)
+
     def run_op(self, record=None):
         """DC operating point (one time point)."""
         return Result(self, self._net.run_op(list(record or [])))

@@ -155,6 +155,41 @@ void registerCircuit(py::module_& m) {
           py::arg("max_step"), py::arg("reltol"), py::arg("abstol"),
           py::arg("temperature_abstol") = 0.0, py::arg("progress") = py::none())
       .def(
+          "run_periodic",
+          [](const Netlist& n, const std::vector<std::string>& record, double reltol, double at) {
+            checkNetlist(n);
+            PeriodicOptions o;
+            if (reltol > 0.0) o.tol.reltol = reltol;
+            o.slowTime = at;
+            o.record = runSignals(n, record);
+            const Circuit circuit = n.circuit;  // copied under the GIL, run without it
+            py::gil_scoped_release nogil;
+            return own(periodicSteadyState(circuit, o).waveforms);
+          },
+          py::arg("record"), py::arg("reltol"), py::arg("at"))
+      .def(
+          "run_warm_up",
+          [](const Netlist& n, double duration, const std::vector<std::string>& record,
+             double reltol, py::object progress) {
+            checkNetlist(n);
+            EnvelopeOptions o;
+            o.duration = duration;
+            if (reltol > 0.0) o.reltol = reltol;
+            o.record = record;
+            o.progress = throttledProgress(progress);
+            const Circuit circuit = n.circuit;  // copied under the GIL, run without it
+            EnvelopeResult er;
+            {
+              py::gil_scoped_release nogil;
+              er = warmUp(circuit, o);
+            }
+            std::vector<std::string> failures;
+            for (const auto& e : er.failures) failures.push_back(e.verdict());
+            return py::make_tuple(own(std::move(er.series)), er.stoppedBy, failures);
+          },
+          py::arg("duration"), py::arg("record"), py::arg("reltol"),
+          py::arg("progress") = py::none())
+      .def(
           "run_op",
           [](const Netlist& n, const std::vector<std::string>& record) {
             checkNetlist(n);
