@@ -8,11 +8,10 @@ Prints a Markdown table (the figures in docs/performance.md).
 """
 import argparse
 import os
-import resource
-import subprocess
-import sys
 import tempfile
 import time
+
+from child_usage import measure
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 NETLIST = os.path.join(HERE, "..", "netlists", "signalling-parallel-stacks.disc")
@@ -26,15 +25,7 @@ def run(cli, builds, threads):
                "--threads", str(threads), "-q", "-o", out]
         for t in TOLERANCES:
             cmd += ["--tolerance", t]
-        # A child's peak RSS: run it under a fresh Python so RUSAGE_CHILDREN holds it alone.
-        probe = ("import resource, subprocess, sys, time; t = time.perf_counter(); "
-                 "subprocess.run(sys.argv[1:], check=True); "
-                 "u = resource.getrusage(resource.RUSAGE_CHILDREN); "
-                 "print(time.perf_counter() - t, u.ru_utime + u.ru_stime, u.ru_maxrss)")
-        res = subprocess.run([sys.executable, "-c", probe] + cmd, check=True, capture_output=True,
-                             text=True)
-        wall, cpu, rss_kib = res.stdout.split()
-        return float(wall), float(cpu), int(rss_kib) / 1024.0
+        return measure(cmd)
 
 
 def main():

@@ -15,9 +15,10 @@ Prints a Markdown table (the figures in docs/performance.md).
 import argparse
 import csv
 import os
-import subprocess
 import sys
 import tempfile
+
+from child_usage import measure
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 SOURCE = os.path.join(HERE, "..", "netlists", "table-radio-warm-up.disc")
@@ -31,14 +32,8 @@ def circuit_lines():
 
 def timed(cmd):
     """(wall s, peak RSS MiB) of one command in a fresh process."""
-    probe = ("import resource, subprocess, sys, time; t = time.perf_counter(); "
-             "subprocess.run(sys.argv[1:], check=True, stdout=subprocess.DEVNULL); "
-             "u = resource.getrusage(resource.RUSAGE_CHILDREN); "
-             "print(time.perf_counter() - t, u.ru_maxrss)")
-    res = subprocess.run([sys.executable, "-c", probe] + cmd, check=True, capture_output=True,
-                         text=True)
-    wall, rss_kib = res.stdout.split()
-    return float(wall), int(rss_kib) / 1024.0
+    wall, _, rss = measure(cmd)
+    return wall, rss
 
 
 def columns(path):
@@ -85,8 +80,8 @@ def main():
     with tempfile.TemporaryDirectory() as tmp:
         bw, brss, bv, bt = brute(cli, tmp, a.brute, a.reltol)
         ew, erss, ev, et = warm_up(cli, tmp, a.brute)
-        print(f"| span | method | wall s | peak RSS MiB | v:c mean V | hottest plate K |")
-        print(f"|---|---|---|---|---|---|")
+        print("| span | method | wall s | peak RSS MiB | v:c mean V | hottest plate K |")
+        print("|---|---|---|---|---|---|")
         print(f"| {a.brute:g} s | brute-force transient, reltol {a.reltol:g} | {bw:.2f} | {brss:.0f} | {bv:.3f} | {bt:.2f} |")
         print(f"| {a.brute:g} s | warm-up | {ew:.2f} | {erss:.0f} | {ev:.3f} | {et:.2f} |")
         print(f"\noutput difference {100 * abs(ev - bv) / bv:.3f} %, "

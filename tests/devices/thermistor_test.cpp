@@ -12,20 +12,25 @@ using namespace disc;
 
 namespace {
 
-/// The steady body temperature (K) of a thermistor carrying a constant current `amps`, found
-/// by bisection of dissipation (T - Ta) - I^2 R(T), which grows strictly with T (R falls): an
-/// evaluation independent of the library's Newton.
-double bisectSteady(const ThermistorParams& p, double ambient, double amps) {
-  auto f = [&](double t) {
-    const double r = p.resistance * std::exp(p.bConstant * (1.0 / t - 1.0 / p.referenceTemp));
-    return p.dissipation * (t - ambient) - amps * amps * r;
-  };
-  double lo = ambient, hi = ambient + 700.0;
+/// The root of a heat balance f(T) (net cooling, W) that changes sign from negative to positive
+/// once in [lo, hi], by bisection: an evaluation independent of the library's Newton.
+template <class Balance>
+double rootByBisection(Balance f, double lo, double hi) {
   for (int k = 0; k < 200; ++k) {
     const double mid = 0.5 * (lo + hi);
     (f(mid) > 0.0 ? hi : lo) = mid;
   }
   return 0.5 * (lo + hi);
+}
+
+/// The steady body temperature (K) of a thermistor carrying a constant current `amps`: the root
+/// of dissipation (T - Ta) - I^2 R(T), which grows strictly with T (R falls).
+double bisectSteady(const ThermistorParams& p, double ambient, double amps) {
+  auto f = [&](double t) {
+    const double r = p.resistance * std::exp(p.bConstant * (1.0 / t - 1.0 / p.referenceTemp));
+    return p.dissipation * (t - ambient) - amps * amps * r;
+  };
+  return rootByBisection(f, ambient, ambient + 700.0);
 }
 
 double operatingTemperature(const ThermistorParams& p, double ambient, double amps) {
@@ -168,12 +173,7 @@ TEST_CASE("Thermistor in the periodic steady state and the warm-up envelope",
     const double r = 20.0 * std::exp(3000.0 * (1.0 / t - 1.0 / 298.15));
     return p.dissipation * (t - ta) - vrms * vrms * r / ((r + load) * (r + load));
   };
-  double lo = ta, hi = ta + 500.0;
-  for (int k = 0; k < 200; ++k) {
-    const double mid = 0.5 * (lo + hi);
-    (balance(mid) > 0.0 ? hi : lo) = mid;
-  }
-  const double steady = 0.5 * (lo + hi);
+  const double steady = rootByBisection(balance, ta, ta + 500.0);
   EnvelopeOptions eo;
   eo.duration = 10.0 * p.timeConstant;  // the loop's own time constant is shorter (NTC feedback)
   eo.record = {"temp:TH1"};

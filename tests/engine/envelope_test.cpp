@@ -38,8 +38,8 @@ TEST_CASE("Warm-up: a plate past destruction ends the run at the located crossin
   CHECK(destroyed->time < eo.duration);
   CHECK(er.endTime == Approx(destroyed->time));
   CHECK(er.stoppedBy == destroyed->verdict());
-  // Selenium melts at 221 degC (CRC Handbook of Chemistry and Physics); the type's destruction
-  // temperature is where the series ends, never above.
+  // The series ends at the type's destruction temperature (the melting of its counter-electrode
+  // alloy, with its source in docs/plate-model.md), never above.
   const auto& temp = er.series["temp:SR1"];
   CHECK(temp.back() == Approx(destroyed->destruction).margin(0.05));
   CHECK(*std::max_element(temp.begin(), temp.end()) <= destroyed->destruction + 0.05);

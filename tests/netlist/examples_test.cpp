@@ -431,8 +431,8 @@ TEST_CASE("Table radio warm-up: the report from one settled period balances, the
   const WarmUpSummary& w = r.out.analyses[1].warmUp;
   CHECK(w.endTime == Approx(3600.0));
   CHECK(w.failures.empty());
-  // The hour warms the plates above the 30 degC ambient; reverse leakage rises with
-  // temperature (a selenium plate's leakage grows with heat, common practice).
+  // The hour warms the plates above the 30 degC ambient, and a selenium plate's reverse leakage
+  // grows as it warms (common practice).
   const auto& temp = r.result()["temp:SR1"];
   const auto& leak = r.result()["irev:SR1"];
   CHECK(temp.front() == Approx(303.15).margin(0.5));

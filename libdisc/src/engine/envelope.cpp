@@ -13,7 +13,6 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
-#include <functional>
 
 #include "disc/device.hpp"
 #include "disc/error.hpp"
@@ -187,7 +186,6 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   bool first = true;
   double tPrev = 0.0;
   std::vector<double> yPrev;
-  std::function<bool(double, const std::vector<double>&)> observe;
   auto recordRow = [&](double t, const std::vector<double>& yy) {
     settle(t, yy, false);
     Result period;
@@ -264,7 +262,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       er.failures.push_back(e);
     }
   };
-  observe = [&](double t, const std::vector<double>& yy) {
+  auto observe = [&](double t, const std::vector<double>& yy) {
     if (destroyed(t, yy)) return false;
     checkRunaway(t, yy);
     recordRow(t, yy);
