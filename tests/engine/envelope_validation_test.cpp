@@ -106,3 +106,114 @@ TEST_CASE("Warm-up agrees with a brute-force transient: battery charger, scaled 
           "[envelope][validation]") {
   compareWithBruteForce("battery-charger-6v.disc", "i:BAT", 30.0);
 }
+
+namespace {
+
+const PlateType& builtin(const char* name) {
+  return PlateLibrary::builtIn().at(name);
+}
+
+/// A stack of `plates` equal plates (no spread) across a voltage source.
+Circuit stackOnSource(const PlateType& t, int plates, const Waveform& w, StackOptions o = {}) {
+  Circuit c;
+  c.emplace<VoltageSource>("V1", c.node("a"), kGround, w);
+  o.plates = plates;
+  c.emplace<Stack>("S1", c.node("a"), kGround, t, o);
+  return c;
+}
+
+}  // namespace
+
+TEST_CASE("Warm-up: plates under constant dissipation follow the lumped thermal RC",
+          "[envelope][validation]") {
+  // Each plate reduced to two temperature-free resistances in series, its bulk Rs and its
+  // shunt 1/Gsh (no barrier current, image force, breakdown, trap or deformation excess), held
+  // in reverse by a sine on a negative offset. Three equal plates share the voltage equally
+  // and stay at one temperature (no heat flows between them), so each dissipates
+  //   P = <v^2> / (N^2 (Rs + 1/Gsh)),  <v^2> = Vdc^2 + Va^2 / 2,
+  // whatever its temperature, and the lumped thermal RC Cth dT/dt = P - (T - Ta)/Rth gives
+  //   T = Ta + P Rth (1 - exp(-t / (Rth Cth)))
+  // (the first-order linear ODE's solution; docs/sources.md, junction laws).
+  PlateType t = PlateLibrary::derive(builtin("se-25mm-square"), "resistive",
+                                     {{"js0_A_per_cm2", 1e-15},
+                                      {"image_force_per_V4", 0.0},
+                                      {"rs_activation_eV", 0.0},
+                                      {"gsh_S_per_cm2", 1e-3},
+                                      {"gsh_activation_eV", 0.0},
+                                      {"breakdown_J0_A_per_cm2", 0.0},
+                                      {"trap_c_F_per_cm2", 0.0},
+                                      {"deformed_leak_factor", 1.0}});
+  const int n = 3;
+  const double vdc = 30.0, va = 6.0;
+  const Circuit c = stackOnSource(t, n, Waveform::sine(va, 50.0, 0.0, -vdc));
+  const double area = t.physics.areaCm2;
+  const double r = t.physics.rsArea / area + 1.0 / (t.physics.gshArea * area);
+  const double p = (vdc * vdc + 0.5 * va * va) / (n * n * r);
+  const double rth = t.thermal.rth, tau = rth * t.thermal.cth, ta = c.ambient();
+
+  EnvelopeOptions eo;
+  eo.duration = 5.0 * tau;
+  eo.reltol = 1e-5;
+  eo.temperatureTol = 1e-4;
+  eo.record = {"temp:S1#1", "temp:S1#2", "temp:S1#3"};
+  const EnvelopeResult er = warmUp(c, eo);
+  const auto& time = er.series.time();
+  REQUIRE(time.size() >= 5);
+  double worst = 0.0;
+  for (const auto& s : eo.record)
+    for (std::size_t k = 0; k < time.size(); ++k) {
+      const double exact = ta + p * rth * (1.0 - std::exp(-time[k] / tau));
+      worst = std::max(worst, std::abs(er.series[s][k] - exact));
+    }
+  INFO("rise " << p * rth << " K, worst " << worst << " K, slow steps " << er.stats.slowSteps);
+  REQUIRE(p * rth > 20.0);
+  // The slow tolerance, reltol 1e-5 of the rise plus 1e-4 K, is 4e-4 K per step; on this
+  // contracting ODE the errors of earlier steps decay, so a few times that bounds the run.
+  CHECK(worst < 5.0 * (eo.reltol * p * rth + eo.temperatureTol));
+}
+
+TEST_CASE("Warm-up: forming under a constant reverse voltage follows its own closed form",
+          "[envelope][validation]") {
+  // The forming law as docs/plate-model.md states it, with no temperature dependence
+  // (activation 0):
+  //   dF/dt = (1 - F) Vr / (Vref tau_f) - F / tau_storage,
+  // linear in F with constant coefficients a = Vr / (Vref tau_f) and b = 1 / tau_storage
+  // when Vr is held, so
+  //   F(t) = Finf + (F0 - Finf) exp(-(a + b) t),  Finf = a / (a + b).
+  // Vr is the barrier's reverse voltage rounded at zero, (x + sqrt(x^2 + w^2) - w) / 2 for
+  // x = -uj and w = 50 mV; with a negligible bulk resistance the barrier holds the applied
+  // 10 V. The source is DC: the envelope is given a period of its own.
+  PlateType t = PlateLibrary::derive(builtin("se-25mm-square"), "cold-forming",
+                                     {{"reform_activation_eV", 0.0}, {"rs_ohm_cm2", 1e-4}});
+  StackOptions o;
+  o.storedYears = 20.0;
+  const double v = 10.0;
+  const Circuit c = stackOnSource(t, 1, Waveform::dc(-v), o);
+  const double w = 0.05;
+  const double vr = 0.5 * (v + std::sqrt(v * v + w * w) - w);
+  const double a = vr / (t.history.reformVoltage * t.history.reformTau);
+  const double b = 1.0 / (t.history.storageTauYears * 365.25 * 86400.0);  // Julian year
+  const double f0 = std::exp(-20.0 / t.history.storageTauYears);          // after storage
+  const double finf = a / (a + b);
+
+  EnvelopeOptions eo;
+  eo.periodic.period = 0.02;
+  eo.duration = 4.0 / a;
+  eo.reltol = 1e-5;
+  eo.stateTol = 1e-6;
+  eo.record = {"form:S1"};
+  const EnvelopeResult er = warmUp(c, eo);
+  const auto& time = er.series.time();
+  const auto& f = er.series["form:S1"];
+  REQUIRE(time.size() >= 5);
+  double worst = 0.0;
+  for (std::size_t k = 0; k < time.size(); ++k)
+    worst = std::max(worst, std::abs(f[k] - (finf + (f0 - finf) * std::exp(-(a + b) * time[k]))));
+  INFO("tau " << 1.0 / a << " s, worst " << worst << ", slow steps " << er.stats.slowSteps);
+  CHECK(f.front() == Approx(f0).epsilon(1e-12));
+  CHECK(f.back() > 0.98);
+  // The slow tolerance, reltol 1e-5 plus 1e-6 absolute, per step; the forming ODE contracts
+  // (rate a + b), so a few times that bounds the run. The rounding's offset w/2 alone moves
+  // F by up to 8e-4 near t = 1/a: the window resolves it.
+  CHECK(worst < 5.0 * (eo.reltol + eo.stateTol));
+}
