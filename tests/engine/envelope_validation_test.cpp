@@ -217,3 +217,95 @@ TEST_CASE("Warm-up: forming under a constant reverse voltage follows its own clo
   // F by up to 8e-4 near t = 1/a: the window resolves it.
   CHECK(worst < 5.0 * (eo.reltol + eo.stateTol));
 }
+
+TEST_CASE("Warm-up: the heat into every plate balances its storage and losses",
+          "[envelope][validation]") {
+  // Each plate's heat balance as docs/plate-model.md states it (law 7):
+  //   Cth dT/dt = P - (T - Ta)/Rth - sum over neighbours (T - T_nb)/Rc,
+  // integrated over the run: the heat it dissipated equals the heat it stored, the heat it
+  // lost to ambient and the heat it passed to its neighbours in the arm. P is each plate's own
+  // period mean dissipation as recorded, not the envelope's slow equations. The table radio's
+  // eight plates are given a spread (an invented one, lognormal sigma 0.3 on Js, Rs and Gsh),
+  // so they differ and heat flows along the stack.
+  Netlist nl = loadNetlist(std::string(DISC_NETLIST_DIR) + "/table-radio-half-wave.disc");
+  {
+    auto& s = dynamic_cast<Stack&>(*nl.circuit.find("SR1"));
+    StackOptions o = s.options();
+    o.spread = {0.3, 0.3, 0.3};
+    o.seed = 7;
+    s.setOptions(o);
+  }
+  struct Plate {
+    std::string temp, power;
+    double gth, cth;
+    std::vector<std::string> neighbours;
+    double gc;
+  };
+  std::vector<Plate> plates;
+  double tau = 0.0;
+  for (const auto& d : nl.circuit.devices()) {
+    const auto* s = dynamic_cast<const Stack*>(d.get());
+    if (!s) continue;
+    const PlateType& t = s->type();
+    const int perArm = s->options().plates;
+    tau = std::max(tau, t.thermal.rth * t.thermal.cth);
+    auto id = [&](int k) { return s->name() + "#" + std::to_string(k); };
+    for (int k = 1; k <= s->plateCount(); ++k) {
+      Plate p{"temp:" + id(k),
+              "pplate:" + id(k),
+              s->options().cooling / t.thermal.rth,
+              t.thermal.cth,
+              {},
+              1.0 / t.thermal.rthCoupling};
+      const int pos = (k - 1) % perArm;  // plates numbered arm by arm
+      if (pos > 0) p.neighbours.push_back("temp:" + id(k - 1));
+      if (pos < perArm - 1) p.neighbours.push_back("temp:" + id(k + 1));
+      plates.push_back(p);
+    }
+  }
+  REQUIRE(plates.size() == 8);
+  EnvelopeOptions eo;
+  eo.duration = 5.0 * tau;
+  eo.maxStep = tau / 20.0;  // rows close enough for the trapezoidal sums below
+  for (const Plate& p : plates) {
+    eo.record.push_back(p.temp);
+    eo.record.push_back(p.power);
+  }
+  const EnvelopeResult er = warmUp(nl.circuit, eo);
+  REQUIRE(er.endTime == Approx(eo.duration));
+  const auto& time = er.series.time();
+  const double ta = nl.circuit.ambient();
+  auto integral = [&](auto&& f) {
+    double s = 0.0;
+    for (std::size_t j = 1; j < time.size(); ++j)
+      s += 0.5 * (time[j] - time[j - 1]) * (f(j) + f(j - 1));
+    return s;
+  };
+  double worst = 0.0, largestPassed = 0.0, largestStored = 0.0;
+  for (const Plate& p : plates) {
+    const auto& tk = er.series[p.temp];
+    const auto& pk = er.series[p.power];
+    const double in = integral([&](std::size_t j) { return pk[j]; });
+    const double stored = p.cth * (tk.back() - tk.front());
+    const double lost = integral([&](std::size_t j) { return p.gth * (tk[j] - ta); });
+    double passed = 0.0;
+    for (const auto& nb : p.neighbours) {
+      const auto& tn = er.series[nb];
+      passed += integral([&](std::size_t j) { return p.gc * (tk[j] - tn[j]); });
+    }
+    INFO(p.temp << ": in " << in << " J, stored " << stored << " J, lost " << lost
+                << " J, passed on " << passed << " J");
+    largestPassed = std::max(largestPassed, std::abs(passed));
+    largestStored = std::max(largestStored, stored);
+    worst = std::max(worst, std::abs(in - stored - lost - passed) / in);
+    // The trapezoidal sums over rows tau/20 apart err by about (h/tau)^2/12 = 2e-4 of the
+    // curved part; the slow states carry the envelope's reltol 1e-3 per step on the stored
+    // heat, a fifth of the whole.
+    CHECK(in == Approx(stored + lost + passed).epsilon(1e-3));
+  }
+  INFO("worst imbalance " << worst << " relative over " << time.size() << " rows");
+  // The plates did warm, and the arms' plates exchanged a visible share of their heat.
+  REQUIRE(largestStored > 10.0);
+  REQUIRE(largestPassed > 1e-3 * largestStored);
+  CHECK(worst < 1e-3);
+}
