@@ -21,8 +21,9 @@ PlateType bareBarrier() {
 }  // namespace
 
 TEST_CASE("Barrier current follows thermionic emission with ideality n", "[plate][laws]") {
-  // J = Js(T) (exp(qV/(n k T)) - 1), Js(T) = Js0 (T/T0)^2 exp(-(q phiB/k)(1/T - 1/T0))
-  // (S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed., ch. 3).
+  // J = Js(T) (exp(qV/(n k T)) - 1) (S. M. Sze and K. K. Ng, Physics of Semiconductor Devices,
+  // 3rd ed., ch. 3), Js(T) = Js0 (T/T0)^2 exp(-(q phiB/(n k))(1/T - 1/T0)): the activation
+  // scaled with the ideality (docs/plate-model.md, law 1).
   const PlateType t = bareBarrier();
   const auto k = detail::makePlateConstants(t, 1.0, 1.0, 1.0, 1.0);
   const double kb = constants::kBoltzmannEv;
@@ -31,8 +32,8 @@ TEST_CASE("Barrier current follows thermionic emission with ideality n", "[plate
       detail::PlateState s;
       detail::evaluatePlate(k, T, 0.0, v, 0.0, 0.0, 1.0, s);
       const auto& p = t.physics;
-      const double js =
-          p.js0 * std::pow(T / p.t0, 2) * std::exp(-p.barrierEv / kb * (1 / T - 1 / p.t0));
+      const double js = p.js0 * std::pow(T / p.t0, 2) *
+                        std::exp(-p.barrierEv / (p.ideality * kb) * (1 / T - 1 / p.t0));
       const double expected = js * p.areaCm2 * (std::exp(v / (p.ideality * kb * T)) - 1.0);
       INFO("T = " << T << " K, V = " << v << " V");
       CHECK(s.ib == Approx(expected).epsilon(1e-9));
@@ -95,6 +96,48 @@ TEST_CASE("The Arrhenius cache reproduces the uncached laws", "[plate][laws]") {
       CHECK(b.dIbDth == Approx(a.dIbDth).epsilon(1e-12));
       CHECK(b.p == Approx(a.p).epsilon(1e-13));
       CHECK(b.g == Approx(a.g).epsilon(1e-13));
+    }
+  }
+}
+
+TEST_CASE("Forward drop at rated current falls with temperature by the stated law",
+          "[plate][laws]") {
+  // Law 1 at a constant current I >> Is: Vj(T) = phiB + (T/T0)(Vj0 - phiB) - 2 n (kT/q) ln(T/T0),
+  // so dVj/dT = (Vj0 - phiB)/T0 - 2 n k/q at T0, and the line extrapolates to phiB at 0 K
+  // (derived from the thermionic law, Sze and Ng ch. 3, with the activation phiB/n). The bulk
+  // adds I dRs/dT = -I Rs Ea/(k T^2) (Arrhenius, Annalen der Physik 1954). The shunt carries
+  // under 1e-3 of the current, the "+1" of the barrier law 1/3000 of it: the coefficient from
+  // the curve and the sum agree within 1 %. Central differences over +-1 K err by (1 K)^2/6 of
+  // the third derivative, far below that.
+  const double kb = constants::kBoltzmannEv, t0 = 300.0;
+  for (const char* name : {"se-25mm-square", "cuox-12mm-meter"}) {
+    const PlateType& t = PlateLibrary::builtIn().at(name);
+    const auto& p = t.physics;
+    const PlateCurve curve(t);
+    const double i = t.ratedCurrent();
+    const double coefficient = (curve.voltage(i, t0 + 1.0) - curve.voltage(i, t0 - 1.0)) / 2.0;
+    const double rs = p.rsArea / p.areaCm2;
+    const double vj = curve.voltage(i, t0) - i * rs;
+    const double barrierPart = (vj - p.barrierEv) / t0 - 2.0 * p.ideality * kb;
+    const double bulkPart = -i * rs * p.rsActivationEv / (kb * t0 * t0);
+    INFO(name << ": " << coefficient * 1e3 << " mV/K at " << i << " A, barrier "
+              << barrierPart * 1e3 << " mV/K, bulk " << bulkPart * 1e3 << " mV/K, drop "
+              << curve.voltage(i, t0) << " V");
+    CHECK(coefficient == Approx(barrierPart + bulkPart).epsilon(1e-2));
+    // The barrier part stays that of one junction: with the full phiB as activation it would be
+    // (Vj0 - n phiB)/T0, about -5 mV/K for selenium's n = 3 (the bulk then doubling the fall).
+    CHECK(std::abs(barrierPart) < 2e-3);
+    const double relative = coefficient / curve.voltage(i, t0);
+    if (t.material == "selenium") {
+      // A selenium plate's forward drop at rated current falls by a few mV/K (from memory):
+      // -2 to -8 mV/K per plate near room temperature.
+      CHECK(coefficient < -2e-3);
+      CHECK(coefficient > -8e-3);
+    } else {
+      // Copper oxide's forward drop is mostly its strongly NTC oxide resistance and falls
+      // faster, relative to the drop, than selenium's: -1 to -3 %/K (from memory).
+      CHECK(relative < -0.01);
+      CHECK(relative > -0.03);
     }
   }
 }

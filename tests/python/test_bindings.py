@@ -245,10 +245,10 @@ def test_nominal_temperature_and_temperature_tolerance():
 
 
 def test_a_runaway_plate_ends_the_run_with_its_failure_events():
-    # A fully deformed selenium plate in reverse across a stiff 20 V source heats faster than
+    # A fully deformed selenium plate in reverse across a stiff 30 V source heats faster than
     # it cools (its leakage rises with temperature): the run stops where it is destroyed.
     c = disc.Circuit()
-    c.voltage("V1", "a", "gnd", dc=20, resistance=0.01)
+    c.voltage("V1", "a", "gnd", dc=30, resistance=0.01)
     c.stack("SR1", "gnd", "a", type="se-25mm-square", plates=1, forming=0)
     r = c.run_transient(stop=600, record=["temp:SR1"])
     assert r.failed

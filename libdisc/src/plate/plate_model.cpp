@@ -1,6 +1,7 @@
 // Plate equations. Laws (S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed.,
 // ch. 3, metal-semiconductor contacts, from memory):
-//   Js(T)  = Js0 (T/T0)^2 exp(-(phiB/k)(1/T - 1/T0))                 thermionic emission
+//   Js(T)  = Js0 (T/T0)^2 exp(-(phiB/(n k))(1/T - 1/T0))             thermionic emission, its
+//                                                      activation scaled with the ideality
 //   Ib     = Is(T) [1 + D(F) (exp(b(T) X) - 1)] (exp(uj/(n kT/q)) - 1)
 //            X = (Vbi + Vr)^(1/4) - Vbi^(1/4), Vr = smooth max(0, -uj), b(T) = b0 T0/T
 //                                                                      image-force lowering
@@ -39,7 +40,10 @@ PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double
   k.is0 = p.js0 * p.areaCm2 * jsFactor;
   k.expLimitLog = std::log(kExpLimitCurrent / k.is0 + 1.0);
   k.n = p.ideality;
-  k.phiOverK = p.barrierEv / kEv;
+  // The activation is phiB/n: the barrier voltage at a constant current then extrapolates to
+  // phiB at 0 K, as a junction's forward voltage extrapolates to its barrier (docs/plate-model.md,
+  // law 1). With phiB itself it would extrapolate to n phiB, and fall n times too steeply.
+  k.phiOverK = p.barrierEv / (kEv * p.ideality);
   k.t0 = p.t0;
   k.b0 = p.imageForce;
   k.vbi = p.builtIn;

@@ -24,7 +24,7 @@ struct PlateConstants {
   double expLimitLog =
       0;                  // ln(limit current / is0 + 1): where the forward exponential turns linear
   double n = 3;           // ideality
-  double phiOverK = 0;    // barrier / k, K
+  double phiOverK = 0;    // barrier / (n k), K: the activation of Is
   double t0 = 300;        // K
   double b0 = 0;          // image-force coefficient at t0, V^-1/4
   double vbi = 0.8;       // V
