@@ -84,8 +84,9 @@ void compareWithBruteForce(const std::string& file, const std::string& output, d
   INFO(file << ": worst temperature " << worstTemp << " K, forming " << worstForm << ", output "
             << worstOut << " relative over " << rows << " rows; slow steps " << er.stats.slowSteps
             << ", brute-force steps " << tr.stats().acceptedSteps);
-  // A real warm-up and re-forming, not a settled state compared with itself.
-  REQUIRE(rise > 10.0);
+  // A real warm-up and re-forming, not a settled state compared with itself: a rise of 5 K is
+  // ten times the temperature window below.
+  REQUIRE(rise > 5.0);
   REQUIRE(er.series[signals[1]].front() < 0.2);
   REQUIRE(er.series[signals[1]].back() > 0.8);
   REQUIRE(rows >= 4);
