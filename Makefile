@@ -38,15 +38,20 @@ test-tsan: deps
 	@TSAN_OPTIONS="halt_on_error=1 second_deadlock_stack=1" \
 	    build-tsan/tests/disc_concurrency_tests "[concurrency]"
 
-# Fuzz the netlist parser with libFuzzer for FUZZ_SECONDS (not part of CI).
+# Fuzz the netlist reader (parse, checks, set-up), the trace reader and the plate-type JSON
+# reader with libFuzzer, FUZZ_SECONDS each, libdisc instrumented too (not part of CI; CI replays
+# tests/fuzz/corpus/). New inputs that find a fault belong in that corpus.
 FUZZ_SECONDS ?= 120
+FUZZ_TARGETS = netlist_fuzz trace_fuzz plate_json_fuzz
 fuzz: deps
 	@bash .ci/install-deps clang libclang-rt-14-dev
 	@CXX=clang++ cmake -S . -B build-fuzz -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo -DDISC_FUZZ=ON \
 	    -DDISC_BUILD_TESTS=OFF -DDISC_BUILD_BENCHMARKS=OFF -DDISC_BUILD_PYTHON=OFF >/dev/null
-	@cmake --build build-fuzz -j $(JOBS) --target netlist_fuzz
-	@mkdir -p build-fuzz/corpus && cp netlists/*.disc build-fuzz/corpus/
-	@build-fuzz/netlist_fuzz -max_total_time=$(FUZZ_SECONDS) -timeout=10 -rss_limit_mb=2048 build-fuzz/corpus
+	@cmake --build build-fuzz -j $(JOBS) --target $(FUZZ_TARGETS)
+	@for t in $(FUZZ_TARGETS); do \
+	    mkdir -p build-fuzz/corpus/$$t && cp tests/fuzz/corpus/$$t/* build-fuzz/corpus/$$t/ && \
+	    (cd build-fuzz/corpus && ../$$t -max_total_time=$(FUZZ_SECONDS) -timeout=10 \
+	        -rss_limit_mb=2048 $$t) || exit 1; done
 
 bench: build
 	@/usr/bin/python3 benchmarks/run_benchmarks.py --build $(BUILD)
