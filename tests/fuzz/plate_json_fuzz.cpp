@@ -4,6 +4,7 @@
 #include <cstdint>
 #include <string>
 
+#include "disc/error.hpp"
 #include "disc/plate_type.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {

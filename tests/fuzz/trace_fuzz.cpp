@@ -3,6 +3,7 @@
 #include <cstdint>
 #include <string>
 
+#include "disc/error.hpp"
 #include "disc/trace.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {

@@ -55,6 +55,11 @@ struct TransientOptions {
   Start start = Start::OperatingPoint;
   Tolerances tol;
   int maxNewton = 12;  ///< Newton iterations per step before the step is cut
+  /// Accepted steps the run may take (0: RunLimits::kSteps, docs/limits.md). A run whose
+  /// largest step cannot reach the stop time within it is refused up front (InputError); one
+  /// that spends it before the stop time ends with a TimeStepError naming what holds the step
+  /// down. Bounds the results' memory to about maxSteps x (signals + 1) x 8 bytes.
+  long long maxSteps = 0;
   /// Highest BDF order IDA may use (1-5). Orders above 2 are not A-stable: the lightly damped
   /// resonances of leakage inductance with junction capacitance force them into tiny steps.
   int idaMaxOrder = 2;
@@ -81,6 +86,19 @@ struct TransientOptions {
 Result operatingPoint(const Circuit& circuit, const OperatingPointOptions& options = {});
 /// Transient analysis from 0 to options.stop.
 Result transient(const Circuit& circuit, const TransientOptions& options);
+
+/// The fewest steps the transient can take (its stop time over its largest step), what sets
+/// that step, and the step budget it is held to; for refusing a run up front.
+struct StepEstimate {
+  double minimumSteps = 0.0;
+  double largestStep = 0.0;  ///< s
+  std::string limitedBy;     ///< "max-step", "the stop time" or the element whose period sets it
+  long long budget = 0;      ///< the run's maxSteps, or RunLimits::kSteps
+};
+StepEstimate estimateSteps(const Circuit& circuit, const TransientOptions& options);
+/// Throws InputError, with the estimate and what to change, when the fewest steps exceed the
+/// budget. transient() calls it first; the netlist checks call it with the run's location.
+void checkStepBudget(const Circuit& circuit, const TransientOptions& options);
 
 const char* methodName(Method m);
 /// Parses "trap", "bdf2" or "ida"; throws InputError otherwise.

@@ -23,6 +23,13 @@ struct InputLimits {
   static constexpr std::size_t kQuote = 80;       ///< offending text quoted in a message
 };
 
+/// Limits on a run (docs/limits.md): the step budget of one transient, refused up front when
+/// the run's largest step cannot reach its stop time within it, and enforced while it runs.
+struct RunLimits {
+  static constexpr long long kSteps = 2000000;        ///< accepted steps of one transient (default)
+  static constexpr long long kMaxSteps = 1000000000;  ///< the most max-steps= may ask for
+};
+
 /// Who may be read through `include` and `use`.
 enum class IncludePolicy {
   /// Any path the process may read (the netlist author is trusted like a script's author).

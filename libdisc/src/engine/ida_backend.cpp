@@ -216,6 +216,7 @@ void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x
     return stop;
   };
 
+  StepBudget budget(sys, o);
   double t = 0.0;
   bool first = true, stopped = false;
   for (double tb : breaks) {
@@ -233,9 +234,11 @@ void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x
       double tret = t;
       const int flag = IDASolve(run.mem, tb, &tret, run.y, run.yp, IDA_ONE_STEP);
       if (flag < 0) failure(flag, t);
+      const double hLast = tret - t;
       t = tret;
       stopped = recordNow(t, true);
       reportProgress(o, t);
+      budget.accepted(t, hLast, data.x.data(), rec.result());
       if (stopped || flag == IDA_TSTOP_RETURN) break;
     }
     if (!stopped) t = tb;

@@ -102,6 +102,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   ns.finalChargesOnly = true;
   NewtonWorkspace work;
   ns.workspace = &work;
+  StepBudget budget(sys, o);
 
   std::vector<double> xdot(N, 0.0), xPrev = x, xPrev2 = x, xPrev3 = x, xNew(N, 0.0), hist(N, 0.0);
   // Times of x, xPrev, xPrev2, xPrev3 and how many of them follow the last restart (the older
@@ -412,6 +413,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     if (t >= o.recordFrom) rec.record(ctx);
     ctx.time = t;
     reportProgress(o, t);
+    budget.accepted(t, hPrev, x.data(), rec.result());
     if (monitor.accepted(ctx)) {
       if (t < o.recordFrom) rec.record(ctx);  // the step that destroyed a body is always kept
       break;
@@ -458,4 +460,3 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
 }
 
 }  // namespace disc::detail
-

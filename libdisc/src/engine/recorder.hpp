@@ -15,6 +15,7 @@ class Recorder {
   Recorder(const System& sys, std::vector<std::string> specs, Result& result);
   /// Appends one time point.
   void record(const EvalContext& ctx);
+  const Result& result() const { return result_; }
 
  private:
   struct Signal {

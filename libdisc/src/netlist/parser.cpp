@@ -882,10 +882,18 @@ class Builder {
             else
               error(tok.valueWhere,
                     fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
+          } else if (tok.key == "max-steps") {
+            // The step budget (docs/limits.md): a whole number, raised to run a long job.
+            auto v = number(tok.value, Dim::None, tok.valueWhere);
+            if (v && !(*v >= 1.0 && *v <= static_cast<double>(RunLimits::kMaxSteps)))
+              error(tok.valueWhere,
+                    fmt::format("max-steps must lie between 1 and {}", RunLimits::kMaxSteps));
+            else if (v)
+              a.transient.maxSteps = static_cast<long long>(std::ceil(*v));
           } else {
-            unknownKey(
-                tok, "transient",
-                {"stop", "max-step", "method", "start", "reltol", "abstol", "temperature-abstol"});
+            unknownKey(tok, "transient",
+                       {"stop", "max-step", "method", "start", "reltol", "abstol",
+                        "temperature-abstol", "max-steps"});
           }
         }
         if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
@@ -1170,6 +1178,15 @@ class Builder {
   /// Whole-circuit checks: dangling nodes, parts without a path to gnd, voltage loops.
   void topology() {
     Circuit& c = nl_.circuit;
+    // A run too long for its step budget is refused here, at its statement, before any work.
+    for (const auto& a : nl_.analyses) {
+      if (a.kind != AnalysisRequest::Kind::Transient) continue;
+      try {
+        checkStepBudget(c, a.transient);
+      } catch (const InputError& e) {
+        error(a.where, e.what());
+      }
+    }
     // Ground is written gnd; 0, GND or ground are ordinary nodes, each reported once here and
     // not again as dangling or floating.
     std::set<std::string> groundLike;
