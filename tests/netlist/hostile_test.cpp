@@ -273,3 +273,49 @@ TEST_CASE("A signal recorded twice is one column", "[netlist][hostile][engine]")
   CHECK(r["v:a"].size() == r.time().size());
   CHECK(r["v:a"].back() == Approx(10.0));
 }
+
+TEST_CASE("A run's step budget: refused up front with its estimate, and enforced while it runs",
+          "[netlist][hostile][engine]") {
+  // Up front: 1 s over a 1 ms largest step is at least 1000 steps.
+  Netlist nl = parseNetlist(kOk + "run transient stop=1s max-step=1ms max-steps=5000\n", "b.disc");
+  const StepEstimate e = estimateSteps(nl.circuit, nl.analyses.back().transient);
+  CHECK(e.minimumSteps == Approx(1000.0));
+  CHECK(e.budget == 5000);
+  CHECK(e.limitedBy == "max-step");
+  auto d = errorsOf(kOk + "run transient stop=1s max-step=1ms max-steps=999\n");
+  REQUIRE(d.size() == 1);
+  CHECK(d[0].where.line == 3);
+  CHECK_THAT(d[0].message, Contains("at least 1e+03 steps") && Contains("max-steps="));
+  // A 50 Hz source sets the largest step to a twentieth of its period (1 ms).
+  d = errorsOf(
+      "voltage V1 a gnd sine rms=1V frequency=50Hz\nresistor R1 a gnd 1k\n"
+      "run transient stop=10s max-steps=9000\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("set by the period of 'V1'"));
+  CHECK(errorsOf(kOk + "run transient stop=1s max-steps=0\n").size() == 1);
+
+  // While it runs: a series RLC switched onto a DC source rings at f0 = 1 / (2 pi sqrt(L C))
+  // (any circuit-theory text), about 5.03 kHz here, decaying over 2 L / R = 0.2 s. The run
+  // spends its 3000 steps inside the ringing and names the ringing node with that frequency;
+  // the count of turning points over the last window is within one period of the window's
+  // length (about 15 periods): 10 %.
+  Netlist rlc = parseNetlist(
+      "voltage V1 a gnd dc=10V\nresistor R1 a b 0.01\ninductor L1 b c 1mH\n"
+      "capacitor C1 c gnd 1uF\nrun transient stop=1s max-steps=3000\n",
+      "rlc.disc");
+  auto o = rlc.analyses.back().transient;
+  o.tol.reltol = 1e-5;
+  o.record = {"v:c"};
+  try {
+    transient(rlc.circuit, o);
+    FAIL("the run finished within its budget");
+  } catch (const TimeStepError& err) {
+    const std::string m = err.what();
+    INFO(m);
+    CHECK_THAT(m, Contains("budget of 3000 steps") && Contains("oscillates at about"));
+    CHECK(err.time() < 0.2);
+    const auto at = m.find("oscillates at about ") + 20;
+    const double f = std::stod(m.substr(at));
+    CHECK(f == Approx(1.0 / (2 * 3.14159265358979 * std::sqrt(1e-3 * 1e-6))).epsilon(0.1));
+  }
+}
