@@ -1180,7 +1180,8 @@ class Builder {
     Circuit& c = nl_.circuit;
     // A run too long for its step budget is refused here, at its statement, before any work.
     for (const auto& a : nl_.analyses) {
-      if (a.kind != AnalysisRequest::Kind::Transient) continue;
+      // A stop time that failed to read is reported where it stands.
+      if (a.kind != AnalysisRequest::Kind::Transient || !(a.transient.stop > 0.0)) continue;
       try {
         checkStepBudget(c, a.transient);
       } catch (const InputError& e) {
