@@ -55,4 +55,8 @@ TEST_CASE("Warm-up: a formed stack within its ratings reports no failure", "[env
   CHECK_FALSE(er.failed());
   CHECK(er.stoppedBy.empty());
   CHECK(er.endTime == Approx(eo.duration));
+  // The settled period at the end carries the multiplier of the monodromy it was settled on,
+  // also when its last shooting pass was a chord step on an earlier one: a stable orbit.
+  CHECK(er.last.stats.largestMultiplier > 0.0);
+  CHECK(er.last.stats.largestMultiplier < 1.0);
 }

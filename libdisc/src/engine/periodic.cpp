@@ -461,6 +461,9 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
 void PeriodicSolver::finish(PeriodSolution& out, bool sens) {
   out.slowCurrent = avgCurrent_;
   out.slowCapacity = capacity_;
+  // A chord pass settles on the monodromy of an earlier pass: its multipliers still describe
+  // the orbit to within the chord's contraction.
+  out.stats.largestMultiplier = multiplier_;
   if (!sens) return;
   Eigen::MatrixXd P(m_, ns_);
   for (int j = 0; j < m_; ++j)
@@ -473,6 +476,7 @@ void PeriodicSolver::finish(PeriodSolution& out, bool sens) {
     Eigen::EigenSolver<Eigen::MatrixXd> es(monodromy_, false);
     double big = 0.0;
     for (int j = 0; j < m_; ++j) big = std::max(big, std::abs(es.eigenvalues()[j]));
+    multiplier_ = big;
     out.stats.largestMultiplier = big;
   }
 }

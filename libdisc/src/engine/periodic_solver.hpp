@@ -83,6 +83,7 @@ class PeriodicSolver {
   Eigen::MatrixXd S_;          // n x (m + ns) sensitivity at the end of the last pass
   Eigen::MatrixXd dzds_;       // m x ns, settled state's response to the slow values
   Eigen::MatrixXd monodromy_;  // m x m
+  double multiplier_ = 0.0;    // largest Floquet multiplier of monodromy_ (0: not computed)
   // Period averages of the last pass.
   std::vector<double> avgCurrent_, capacity_;
   Eigen::MatrixXd avgRowSens_;  // ns x (m + ns): average of (frozen row of G) * S
