@@ -128,7 +128,8 @@ Circuit stackOnSource(const PlateType& t, int plates, const Waveform& w, StackOp
 TEST_CASE("Warm-up: plates under constant dissipation follow the lumped thermal RC",
           "[envelope][validation]") {
   // Each plate reduced to two temperature-free resistances in series, its bulk Rs and its
-  // shunt 1/Gsh (no barrier current, image force, breakdown, trap or deformation excess), held
+  // shunt 1/Gsh (no barrier current, image force, breakdown, trap, deformation excess or
+  // ageing, whose growing Rs and leakage would change the dissipation), held
   // in reverse by a sine on a negative offset. Three equal plates share the voltage equally
   // and stay at one temperature (no heat flows between them), so each dissipates
   //   P = <v^2> / (N^2 (Rs + 1/Gsh)),  <v^2> = Vdc^2 + Va^2 / 2,
@@ -143,7 +144,8 @@ TEST_CASE("Warm-up: plates under constant dissipation follow the lumped thermal 
                                       {"gsh_activation_eV", 0.0},
                                       {"breakdown_J0_A_per_cm2", 0.0},
                                       {"trap_c_F_per_cm2", 0.0},
-                                      {"deformed_leak_factor", 1.0}});
+                                      {"deformed_leak_factor", 1.0},
+                                      {"age_coefficient", 0.0}});
   const int n = 3;
   const double vdc = 30.0, va = 6.0;
   const Circuit c = stackOnSource(t, n, Waveform::sine(va, 50.0, 0.0, -vdc));

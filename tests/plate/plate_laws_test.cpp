@@ -80,6 +80,90 @@ TEST_CASE("Ageing raises Rs logarithmically, storage lowers the forming state", 
   CHECK(detail::formingAfterStorage(t, 20.0) == Approx(std::exp(-20.0 / 10.0)).epsilon(1e-12));
 }
 
+TEST_CASE("Storage deforms faster when warm: Arrhenius in the storage temperature",
+          "[plate][laws]") {
+  // F = exp(-(years / tau) exp((Est/k)(1/T0 - 1/T_store))) (docs/plate-model.md, law 8):
+  // twenty years in a warm attic (35 degC) against a cool room (15 degC).
+  const PlateType& t = PlateLibrary::builtIn().at("se-25mm-square");
+  const auto& h = t.history;
+  auto expected = [&](double years, double kelvin) {
+    return std::exp(-years / h.storageTauYears *
+                    std::exp(h.storageActivationEv / constants::kBoltzmannEv *
+                             (1.0 / t.physics.t0 - 1.0 / kelvin)));
+  };
+  const double attic = detail::formingAfterStorage(t, 20.0, 308.15);
+  const double room = detail::formingAfterStorage(t, 20.0, 288.15);
+  CHECK(attic == Approx(expected(20.0, 308.15)).epsilon(1e-12));
+  CHECK(room == Approx(expected(20.0, 288.15)).epsilon(1e-12));
+  CHECK(attic < room);
+  // The stack takes the storage temperature from its options.
+  StackOptions o;
+  o.storedYears = 20.0;
+  o.storageTemperature = 308.15;
+  CHECK(Stack("S", 1, 0, t, o).initialForming() == Approx(attic).epsilon(1e-12));
+}
+
+TEST_CASE("An idle plate deforms during a run at the rate of its own temperature",
+          "[plate][laws]") {
+  // Unpowered at 330 K for 1e7 s (four months): dF/dt = -F / tau exp((Est/k)(1/T0 - 1/T)),
+  // so F = exp(-t w(330 K) / tau). The trapezoidal steps err by far less than the 1e-4 here
+  // (the engine's state tolerance).
+  const PlateType& t = PlateLibrary::builtIn().at("se-25mm-square");
+  Circuit c;
+  c.setAmbient(330.0);
+  c.emplace<Resistor>("R1", c.node("a"), kGround, 1e6);
+  c.emplace<Stack>("SR1", c.node("a"), kGround, t, StackOptions{});
+  TransientOptions o;
+  o.stop = 1e7;
+  o.start = Start::Cold;
+  o.record = {"form:SR1"};
+  const Result r = transient(c, o);
+  const double w = std::exp(t.history.storageActivationEv / constants::kBoltzmannEv *
+                            (1.0 / t.physics.t0 - 1.0 / 330.0));
+  const double tau = t.history.storageTauYears * 365.25 * 24 * 3600;
+  CHECK(r["form:SR1"].back() == Approx(std::exp(-o.stop * w / tau)).epsilon(1e-4));
+}
+
+TEST_CASE("The ageing term raises Rs, leakage and threshold in their stated proportions",
+          "[plate][laws]") {
+  // docs/plate-model.md, law 9: with A = a s, Rs (1 + A), the shunt (1 + p A), and the forward
+  // threshold + v A, i.e. Is divided by exp(v A / (n kT/q)).
+  PlateType t = PlateLibrary::builtIn().at("se-25mm-square");
+  t.set("image_force_per_V4", 0.0);
+  t.set("breakdown_J0_A_per_cm2", 0.0);
+  const auto k = detail::makePlateConstants(t, 1.0, 1.0, 1.0, 1.0);
+  const auto& h = t.history;
+  const double s = std::log1p(60.0), A = h.ageCoefficient * s, T = 320.0;
+  detail::PlateState fresh, aged;
+  // Series resistance: the current through Rs at a fixed drop across it.
+  detail::evaluatePlate(k, T, 1.2, 0.4, 0.4, 0.0, 1.0, fresh);
+  detail::evaluatePlate(k, T, 1.2, 0.4, 0.4, 0.0, 1.0, aged, nullptr, s);
+  CHECK(fresh.is / aged.is == Approx(1.0 + A).epsilon(1e-12));
+  // Forward barrier: the same current at a barrier voltage higher by v A.
+  const double nvt = t.physics.ideality * constants::kBoltzmannEv * T;
+  const double gsh = t.physics.gshArea * t.physics.areaCm2 *
+                     std::exp(t.physics.gshActivationEv / constants::kBoltzmannEv *
+                              (1.0 / t.physics.t0 - 1.0 / T));
+  const double uj = 0.5, ujAged = uj + h.ageThresholdV * A;
+  detail::evaluatePlate(k, T, uj, uj, uj, 0.0, 1.0, fresh);
+  detail::evaluatePlate(k, T, ujAged, ujAged, ujAged, 0.0, 1.0, aged, nullptr, s);
+  const double barrierFresh = fresh.ib - gsh * uj;
+  const double barrierAged = aged.ib - gsh * (1.0 + h.ageLeakProportion * A) * ujAged;
+  // Is e^-x (exp((uj + v A)/nvt) - 1) against Is (exp(uj/nvt) - 1), x = v A/nvt: the same but
+  // for the "-1" terms.
+  const double x = h.ageThresholdV * A / nvt, e = std::exp(uj / nvt);
+  CHECK(barrierAged == Approx(barrierFresh * (e - std::exp(-x)) / (e - 1.0)).epsilon(1e-9));
+  // Reverse at -20 V (no image force or breakdown): the shunt grows by 1 + p A and the
+  // saturation current falls by exp(-v A / (n kT/q)).
+  detail::evaluatePlate(k, T, -20.0, -20.0, -20.0, 0.0, 1.0, fresh);
+  detail::evaluatePlate(k, T, -20.0, -20.0, -20.0, 0.0, 1.0, aged, nullptr, s);
+  const double isFresh = -(fresh.ib + gsh * 20.0);
+  CHECK(isFresh > 0.0);
+  CHECK(aged.ib == Approx(-gsh * (1.0 + h.ageLeakProportion * A) * 20.0 -
+                          isFresh * std::exp(-h.ageThresholdV * A / nvt))
+                       .epsilon(1e-9));
+}
+
 TEST_CASE("The Arrhenius cache reproduces the uncached laws", "[plate][laws]") {
   // The cache replaces four exponentials by a series within 10 mK of the cached temperature,
   // and recomputes beyond it: every output must match the uncached evaluation to rounding.

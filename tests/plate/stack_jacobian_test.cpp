@@ -1,4 +1,4 @@
-// The stack's analytic Jacobians (electrical, thermal and forming terms) against finite
+// The stack's analytic Jacobians (electrical, thermal, forming and ageing terms) against finite
 // differences, per-plate and lumped.
 #include <catch2/catch.hpp>
 #include <random>
@@ -33,6 +33,8 @@ TEST_CASE("Stack Jacobians match finite differences", "[plate][jacobian]") {
             x[k] = 20.0 + 100.0 * u(rng);
           else if (n.find(".form") != std::string::npos)
             x[k] = 0.5 + u(rng);
+          else if (n.find(".age") != std::string::npos)
+            x[k] = 4.0 + 10.0 * u(rng);  // ln(1 + H/H0): about 50 000 h at H0 = 1000 h
           else if (n.find(".node") != std::string::npos)
             x[k] = bias * 0.5 + u(rng);
           else

@@ -102,6 +102,7 @@ class Circuit:
     def stack(self, name: str, anode: str, cathode: str, type: str, plates: int | None = ...,
               parallel: int | None = ..., mode: str | None = ..., spread: float | None = ...,
               seed: int | None = ..., forming: float | None = ..., stored_years: float | None = ...,
+              stored_temp: Value | None = ...,
               hours: float | None = ..., age_temp: Value | None = ..., cooling: float | None = ...,
               **spreads: float) -> Element: ...
     def lamp(self, name: str, a: str, b: str, rated_power: Value, rated_voltage: Value,

@@ -209,14 +209,15 @@ class Circuit:
                          temperature=temperature, nominal_temperature=nominal_temperature)
 
     def stack(self, name, anode, cathode, type, plates=None, parallel=None, mode=None,
-              spread=None, seed=None, forming=None, stored_years=None, hours=None,
-              age_temp=None, cooling=None, **spreads):
+              spread=None, seed=None, forming=None, stored_years=None, stored_temp=None,
+              hours=None, age_temp=None, cooling=None, **spreads):
         """Plate stack: plates in series per arm, parallel arms; mode 'per-plate' or 'lumped';
         lognormal spread (or spread_js, spread_rs, spread_gsh) drawn with seed; initial forming
-        or stored_years; ageing hours at age_temp; cooling factor."""
+        or stored_years at stored_temp; ageing hours at age_temp; cooling factor."""
         return self._add("stack", name, (anode, cathode), type=type, plates=plates,
                          parallel=parallel, mode=mode, spread=spread, seed=seed, forming=forming,
-                         stored_years=stored_years, hours=hours, age_temp=age_temp,
+                         stored_years=stored_years, stored_temp=stored_temp, hours=hours,
+                         age_temp=age_temp,
                          cooling=cooling, **spreads)
 
     def lamp(self, name, a, b, rated_power, rated_voltage, filament_temp=None, exponent=None,

@@ -47,10 +47,13 @@ struct PlateHistory {
   double reformTau = 600.0;          ///< re-forming time constant at reformVoltage and t0, s
   double reformVoltage = 20.0;       ///< reverse voltage per plate of reformTau, V
   double reformActivationEv = 0.5;   ///< temperature acceleration of re-forming, eV
-  double storageTauYears = 10.0;     ///< decay time of F when unpowered, years
-  double ageCoefficient = 0.3;       ///< Rs factor = 1 + a ln(1 + H/H0)
+  double storageTauYears = 10.0;     ///< decay time of F when unpowered at t0, years
+  double storageActivationEv = 0.5;  ///< Arrhenius acceleration of that decay, eV
+  double ageCoefficient = 0.3;       ///< a: ageing term A = a ln(1 + H/H0), Rs factor 1 + A
   double ageHoursScale = 1000.0;     ///< H0, h
   double ageActivationEv = 0.5;      ///< Arrhenius weighting of operating hours, eV
+  double ageLeakProportion = 1.0;    ///< leakage factor 1 + this x A
+  double ageThresholdV = 0.05;       ///< forward threshold rise per unit of A, V per plate
 };
 
 /// Ratings as the trade states them, per plate.

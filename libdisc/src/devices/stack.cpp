@@ -21,18 +21,20 @@ struct Stack::Plate {
   detail::PlateConstants k;
   int arm = 0, pos = 0;
   double f0 = 1.0;
-  int a = 0, kk = 0, j = 0, t = 0, th = 0, f = 0;
+  double s0 = 0.0;  // starting ageing state ln(1 + H/H0)
+  int a = 0, kk = 0, j = 0, t = 0, th = 0, f = 0, g = 0;
   int neighbour = -1;  // temperature unknown of the next plate in the arm, or -1
   double gth = 0.0;    // thermal conductance to ambient, W/K
   double gc = 0.0;     // thermal conductance to the next plate, W/K
   int cell = 0;
-  int sAa = 0, sAk = 0, sAj = 0, sAth = 0;
-  int sKa = 0, sKk = 0, sKj = 0, sKth = 0;
-  int sJa = 0, sJk = 0, sJj = 0, sJt = 0, sJth = 0, sJf = 0;
+  int sAa = 0, sAk = 0, sAj = 0, sAth = 0, sAg = 0;
+  int sKa = 0, sKk = 0, sKj = 0, sKth = 0, sKg = 0;
+  int sJa = 0, sJk = 0, sJj = 0, sJt = 0, sJth = 0, sJf = 0, sJg = 0;
   int sTj = 0, sTt = 0;
-  int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0;
+  int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0, sHg = 0;
   PairSlots coupling;
   int sFj = 0, sFh = 0, sFf = 0;
+  int sGh = 0, sGg = 0;
   // Evaluation cache only, no state of the plate; the plates an analysis evaluates are its
   // private copy (System), emptied at bind().
   mutable detail::ArrheniusCache cache;
@@ -54,11 +56,13 @@ enum Probe {
   kPfwd,
   kPrev,
   kIrev,
+  kHours,
   kProbeCount
 };
 const char* const kProbeNames[] = {"i",      "p",  "vstack", "temp", "form", "iarm", "vrev",
-                                   "pplate", "vj", "age",    "pfwd", "prev", "irev"};
-const char* const kProbeUnits[] = {"A", "W", "V", "K", "", "A", "V", "W", "V", "", "W", "W", "A"};
+                                   "pplate", "vj", "age",    "pfwd", "prev", "irev", "hours"};
+const char* const kProbeUnits[] = {"A", "W", "V", "K", "",  "A", "V",
+                                   "W", "V", "",  "W", "W", "A", "h"};
 
 }  // namespace
 
@@ -82,6 +86,8 @@ void StackOptions::validate() const {
     throw InputError(fmt::format("forming state must lie in [0, 1], got {}", forming));
   if (!(storedYears >= 0.0) || !std::isfinite(storedYears))
     throw InputError("stored years must be zero or positive");
+  if (!(storageTemperature >= 0.0) || !std::isfinite(storageTemperature))
+    throw InputError("storage temperature must be zero (type's reference) or positive, in K");
   if (!(ageHours >= 0.0) || !std::isfinite(ageHours))
     throw InputError("operating hours must be zero or positive");
   if (!(ageTemperature >= 0.0) || !std::isfinite(ageTemperature))
@@ -152,18 +158,25 @@ const std::vector<DeviceParameter>& Stack::parameterTable() const {
         {}};
   };
   static const std::vector<DeviceParameter> t = {
-      option("plates", &StackOptions::plates),   option("parallel", &StackOptions::arms),
-      spread("spread-js", &StackSpread::js),     spread("spread-rs", &StackSpread::rs),
-      spread("spread-gsh", &StackSpread::gsh),   option("seed", &StackOptions::seed),
-      option("forming", &StackOptions::forming), option("stored-years", &StackOptions::storedYears),
-      option("hours", &StackOptions::ageHours),  option("age-temp", &StackOptions::ageTemperature),
+      option("plates", &StackOptions::plates),
+      option("parallel", &StackOptions::arms),
+      spread("spread-js", &StackSpread::js),
+      spread("spread-rs", &StackSpread::rs),
+      spread("spread-gsh", &StackSpread::gsh),
+      option("seed", &StackOptions::seed),
+      option("forming", &StackOptions::forming),
+      option("stored-years", &StackOptions::storedYears),
+      option("stored-temp", &StackOptions::storageTemperature),
+      option("hours", &StackOptions::ageHours),
+      option("age-temp", &StackOptions::ageTemperature),
       option("cooling", &StackOptions::cooling)};
   return t;
 }
 
 double Stack::initialForming() const {
   return opt_.storedYears > 0.0
-             ? detail::formingAfterStorage(type_, opt_.storedYears) * opt_.forming
+             ? detail::formingAfterStorage(type_, opt_.storedYears, opt_.storageTemperature) *
+                   opt_.forming
              : opt_.forming;
 }
 
@@ -180,7 +193,8 @@ void Stack::build() {
   plates_.clear();
   std::mt19937_64 rng(opt_.seed);
   std::normal_distribution<double> normal(0.0, 1.0);
-  const double age = ageing(), f0 = initialForming();
+  const double t = opt_.ageTemperature > 0.0 ? opt_.ageTemperature : type_.physics.t0;
+  const double s0 = detail::ageingState(type_, opt_.ageHours, t), f0 = initialForming();
   const int perArm = opt_.mode == StackMode::Lumped ? 1 : opt_.plates;
   for (int m = 0; m < opt_.arms; ++m)
     for (int i = 0; i < perArm; ++i) {
@@ -188,11 +202,12 @@ void Stack::build() {
       p.arm = m;
       p.pos = i;
       p.f0 = f0;
+      p.s0 = s0;
       // Draw all three factors for every plate, so a zero sigma leaves the others unchanged.
       const double zj = normal(rng), zr = normal(rng), zg = normal(rng);
       p.k = detail::makePlateConstants(type_, std::exp(opt_.spread.js * zj),
                                        std::exp(opt_.spread.rs * zr),
-                                       std::exp(opt_.spread.gsh * zg), age);
+                                       std::exp(opt_.spread.gsh * zg), 1.0);
       p.k.rth /= opt_.cooling;
       p.gth = 1.0 / p.k.rth;
       p.gc = 1.0 / type_.thermal.rthCoupling;
@@ -206,7 +221,7 @@ void Stack::prepare(const Circuit& c) {
 
 std::vector<UnknownSpec> Stack::internalUnknowns() const {
   std::vector<UnknownSpec> u;
-  u.reserve(plates_.size() * 5);
+  u.reserve(plates_.size() * 6);
   for (const Plate& p : plates_) {
     const std::string id = fmt::format("{}", p.arm * opt_.plates + p.pos + 1);
     if (p.pos > 0) u.push_back({"node" + id, UnknownKind::Voltage});
@@ -214,6 +229,7 @@ std::vector<UnknownSpec> Stack::internalUnknowns() const {
     u.push_back({"trap" + id, UnknownKind::Voltage});
     u.push_back({"temp" + id, UnknownKind::Temperature, true});
     u.push_back({"form" + id, UnknownKind::State, true});
+    u.push_back({"age" + id, UnknownKind::State, true});
   }
   return u;
 }
@@ -233,6 +249,7 @@ void Stack::bind(const Binding& b) {
     p.t = b.internals[next++];
     p.th = b.internals[next++];
     p.f = b.internals[next++];
+    p.g = b.internals[next++];
     p.cell = b.limitCell + static_cast<int>(n);
     p.cache = {};  // each run starts without a cache: results do not depend on earlier runs
     if (p.pos > 0) plates_[n - 1].kk = p.a;
@@ -260,16 +277,19 @@ void Stack::declare(PatternBuilder& pb) {
     pb.entry(p.a, p.kk, p.sAk);
     pb.entry(p.a, p.j, p.sAj);
     pb.entry(p.a, p.th, p.sAth);
+    pb.entry(p.a, p.g, p.sAg);
     pb.entry(p.kk, p.a, p.sKa);
     pb.entry(p.kk, p.kk, p.sKk);
     pb.entry(p.kk, p.j, p.sKj);
     pb.entry(p.kk, p.th, p.sKth);
+    pb.entry(p.kk, p.g, p.sKg);
     pb.entry(p.j, p.a, p.sJa);
     pb.entry(p.j, p.kk, p.sJk);
     pb.entry(p.j, p.j, p.sJj);
     pb.entry(p.j, p.t, p.sJt);
     pb.entry(p.j, p.th, p.sJth);
     pb.entry(p.j, p.f, p.sJf);
+    pb.entry(p.j, p.g, p.sJg);
     pb.entry(p.t, p.j, p.sTj);
     pb.entry(p.t, p.t, p.sTt);
     pb.entry(p.th, p.a, p.sHa);
@@ -278,10 +298,13 @@ void Stack::declare(PatternBuilder& pb) {
     pb.entry(p.th, p.t, p.sHt);
     pb.entry(p.th, p.th, p.sHh);
     pb.entry(p.th, p.f, p.sHf);
+    pb.entry(p.th, p.g, p.sHg);
     if (p.neighbour >= 0) p.coupling.declare(pb, p.th, p.neighbour);
     pb.entry(p.f, p.j, p.sFj);
     pb.entry(p.f, p.th, p.sFh);
     pb.entry(p.f, p.f, p.sFf);
+    pb.entry(p.g, p.th, p.sGh);
+    pb.entry(p.g, p.g, p.sGg);
   }
 }
 
@@ -290,7 +313,7 @@ namespace {
 /// Evaluates one plate with Newton limiting of its barrier voltage (when ctx asks for it) and
 /// linearises the result back to the unlimited voltage.
 void evaluateLimited(const detail::PlateConstants& k, double ambient, const EvalContext& ctx,
-                     double vt, double uj, double ut, double th, double f, int cell,
+                     double vt, double uj, double ut, double th, double f, double age, int cell,
                      detail::PlateState& s, detail::ArrheniusCache* cache) {
   double ujl = uj;
   if (ctx.limits) {
@@ -303,7 +326,7 @@ void evaluateLimited(const detail::PlateConstants& k, double ambient, const Eval
     }
     last = ujl;
   }
-  detail::evaluatePlate(k, ambient, vt, ujl, ut, th, f, s, cache);
+  detail::evaluatePlate(k, ambient, vt, ujl, ut, th, f, s, cache, age);
   const double d = uj - ujl;
   if (d != 0.0) {
     s.is += s.dIsDuj * d;
@@ -322,8 +345,8 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
   detail::PlateState st;
   for (const Plate& p : plates_) {
     const double vt = (x[p.a] - x[p.kk]) * inv;
-    const double uj = x[p.j], ut = x[p.t], th = x[p.th], f = x[p.f];
-    evaluateLimited(p.k, ambient_, ctx, vt, uj, ut, th, f, p.cell, st, &p.cache);
+    const double uj = x[p.j], ut = x[p.t], th = x[p.th], f = x[p.f], age = x[p.g];
+    evaluateLimited(p.k, ambient_, ctx, vt, uj, ut, th, f, age, p.cell, st, &p.cache);
     const double gth = p.gth;
     s.i[p.a] += st.is;
     s.i[p.kk] -= st.is;
@@ -344,21 +367,27 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     // The forming state is held at its start value in DC analyses: it changes over minutes.
     s.i[p.f] += ctx.dc ? f - p.f0 : -st.g;
     s.q[p.f] += f;
+    // Ageing accumulates in every time-domain analysis, held at its start in DC ones.
+    s.i[p.g] += ctx.dc ? age - p.s0 : -st.ageRate;
+    s.q[p.g] += age;
     if (!s.jacobian) continue;
     s.G[p.sAa] += st.dIsDvt * inv;
     s.G[p.sAk] -= st.dIsDvt * inv;
     s.G[p.sAj] += st.dIsDuj;
     s.G[p.sAth] += st.dIsDth;
+    s.G[p.sAg] += st.dIsDs;
     s.G[p.sKa] -= st.dIsDvt * inv;
     s.G[p.sKk] += st.dIsDvt * inv;
     s.G[p.sKj] -= st.dIsDuj;
     s.G[p.sKth] -= st.dIsDth;
+    s.G[p.sKg] -= st.dIsDs;
     s.G[p.sJa] -= st.dIsDvt * inv;
     s.G[p.sJk] += st.dIsDvt * inv;
     s.G[p.sJj] += st.dIbDuj + p.k.gt - st.dIsDuj;
     s.G[p.sJt] -= p.k.gt;
     s.G[p.sJth] += st.dIbDth - st.dIsDth;
     s.G[p.sJf] += st.dIbDf;
+    s.G[p.sJg] += st.dIbDs - st.dIsDs;
     s.C[p.sJj] += st.c;
     s.G[p.sTj] -= p.k.gt;
     s.G[p.sTt] += trap ? p.k.gt : 1.0;
@@ -369,6 +398,7 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     s.G[p.sHt] -= st.dPdUt;
     s.G[p.sHh] += gth - st.dPdTh;
     s.G[p.sHf] -= st.dPdF;
+    s.G[p.sHg] -= st.dPdS;
     s.C[p.sHh] += p.k.cth;
     if (ctx.dc) {
       s.G[p.sFf] += 1.0;
@@ -378,6 +408,13 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
       s.G[p.sFf] -= st.dGdF;
     }
     s.C[p.sFf] += 1.0;
+    if (ctx.dc) {
+      s.G[p.sGg] += 1.0;
+    } else {
+      s.G[p.sGh] -= st.dAgeRateDth;
+      s.G[p.sGg] -= st.dAgeRateDs;
+    }
+    s.C[p.sGg] += 1.0;
   }
 }
 
@@ -392,12 +429,14 @@ void Stack::evaluateCharges(const EvalContext& ctx, Stamp& s) const {
     s.q[p.t] += p.k.ct * x[p.t];
     s.q[p.th] += p.k.cth * x[p.th];
     s.q[p.f] += x[p.f];
+    s.q[p.g] += x[p.g];
   }
 }
 
 void Stack::initialState(double* x) const {
   for (const Plate& p : plates_) {
     x[p.f] = p.f0;
+    x[p.g] = p.s0;
     x[p.th] = 0.0;
   }
 }
@@ -428,7 +467,7 @@ HeatState Stack::heatState(int k, const EvalContext& ctx) const {
   const double* x = ctx.x;
   detail::PlateState st;
   detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / scale(), x[p.j], x[p.t], x[p.th],
-                        x[p.f], st, &p.cache);
+                        x[p.f], st, &p.cache, x[p.g]);
   return {ambient_ + x[p.th], st.p, st.dPdTh};
 }
 
@@ -453,6 +492,8 @@ int Stack::probeInstances(int k) const {
     case kVj:
     case kPfwd:
     case kPrev:
+    case kAge:
+    case kHours:
       return plateCount();
     case kIarm:
       return opt_.arms;
@@ -475,7 +516,7 @@ double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
       if (p.arm == index - 1 && p.pos == 0) {
         detail::PlateState st;
         detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / sc, x[p.j], x[p.t], x[p.th],
-                              x[p.f], st, &p.cache);
+                              x[p.f], st, &p.cache, x[p.g]);
         return st.is;
       }
     return 0.0;
@@ -490,12 +531,17 @@ double Stack::probeAt(int k, int index, const EvalContext& ctx) const {
       return -(x[p.a] - x[p.kk]) / sc;
     case kVj:
       return x[p.j];
+    case kAge:
+      return 1.0 + p.k.ageCoefficient * x[p.g];
+    case kHours:
+      return type_.history.ageHoursScale * std::expm1(x[p.g]);
     case kPplate:
     case kPfwd:
     case kPrev: {
       const double vt = (x[p.a] - x[p.kk]) / sc;
       detail::PlateState st;
-      detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st, &p.cache);
+      detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st, &p.cache,
+                            x[p.g]);
       if (k == kPplate) return st.p;
       return (vt >= 0.0) == (k == kPfwd) ? st.p : 0.0;
     }
@@ -511,7 +557,13 @@ double Stack::probe(int k, const EvalContext& ctx) const {
     case kV:
       return x[a_] - x[k_];
     case kAge:
-      return ageing();
+    case kHours: {
+      // The oldest plate: its Rs factor 1 + a s, or its hours weighted to t0, H0 (e^s - 1).
+      double s = 0.0;
+      for (const Plate& p : plates_) s = std::max(s, x[p.g]);
+      return k == kAge ? 1.0 + type_.history.ageCoefficient * s
+                       : type_.history.ageHoursScale * std::expm1(s);
+    }
     case kTemp: {
       double t = 0.0;
       for (const Plate& p : plates_) t = std::max(t, ambient_ + x[p.th]);
@@ -537,7 +589,7 @@ double Stack::probe(int k, const EvalContext& ctx) const {
   detail::PlateState st;
   for (const Plate& p : plates_) {
     const double vt = (x[p.a] - x[p.kk]) / sc;
-    detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st, &p.cache);
+    detail::evaluatePlate(p.k, ambient_, vt, x[p.j], x[p.t], x[p.th], x[p.f], st, &p.cache, x[p.g]);
     power += st.p * sc;
     (vt >= 0.0 ? fwd : rev) += st.p * sc;
     largestPlate = std::max(largestPlate, st.p);

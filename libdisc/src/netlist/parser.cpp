@@ -116,6 +116,7 @@ const std::vector<KindSpec>& kinds() {
         {"seed", Dim::None},
         {"forming", Dim::None},
         {"stored-years", Dim::None},
+        {"stored-temp", Dim::Temperature},
         {"hours", Dim::None},
         {"age-temp", Dim::Temperature},
         {"cooling", Dim::None}},
@@ -689,6 +690,7 @@ class Builder {
       o.seed = static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0, 1000000000));
       o.forming = p.get("forming", 1.0);
       o.storedYears = p.get("stored-years", 0.0);
+      o.storageTemperature = p.get("stored-temp", 0.0);
       o.ageHours = p.get("hours", 0.0);
       o.ageTemperature = p.get("age-temp", 0.0);
       o.cooling = p.get("cooling", 1.0);

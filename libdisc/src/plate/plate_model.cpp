@@ -10,7 +10,10 @@
 //   Rs(T)  = Rs0 exp((Ea/k)(1/T - 1/T0)) * ageing                      Arrhenius, NTC
 //   Q(uj)  = Mott-Schottky depletion charge, C = Cj0 / sqrt(1 - uj/Vbi)
 //   D(F)   = 1 + (L - 1)(1 - F)                                        deformed leakage
-//   dF/dt  = (1 - F) Vr / (Vref tau) exp((Ef/k)(1/T0 - 1/T)) - F / tau_storage
+//   dF/dt  = (1 - F) Vr / (Vref tau) exp((Ef/k)(1/T0 - 1/T))
+//            - F / tau_storage exp((Est/k)(1/T0 - 1/T))                deforming, also stored
+//   s      = ln(1 + H/H0), ds/dt = exp((Eage/k)(1/T0 - 1/T)) exp(-s) / H0   ageing state:
+//            Rs (1 + a s), shunt (1 + p a s), threshold + v a s
 // The forming and ageing laws are libdisc's own proposal (docs/plate-model.md).
 #include "plate_model.hpp"
 
@@ -66,18 +69,32 @@ PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double
   k.reformRate0 = 1.0 / (type.history.reformTau * type.history.reformVoltage);
   k.reformEaOverK = type.history.reformActivationEv / kEv;
   k.storageRate = 1.0 / (type.history.storageTauYears * kSecondsPerYear);
+  k.storageEaOverK = type.history.storageActivationEv / kEv;
+  k.ageCoefficient = type.history.ageCoefficient;
+  k.ageRate0 = 1.0 / (3600.0 * type.history.ageHoursScale);
+  k.ageEaOverK = type.history.ageActivationEv / kEv;
+  k.ageLeak = type.history.ageLeakProportion;
+  k.ageThreshold = type.history.ageThresholdV;
   return k;
 }
 
-double ageingFactor(const PlateType& type, double hours, double kelvin) {
+double ageingState(const PlateType& type, double hours, double kelvin) {
   const auto& h = type.history;
   const double weight = std::exp(h.ageActivationEv / constants::kBoltzmannEv *
                                  (1.0 / type.physics.t0 - 1.0 / kelvin));
-  return 1.0 + h.ageCoefficient * std::log1p(hours * weight / h.ageHoursScale);
+  return std::log1p(hours * weight / h.ageHoursScale);
 }
 
-double formingAfterStorage(const PlateType& type, double years) {
-  return std::exp(-years / type.history.storageTauYears);
+double ageingFactor(const PlateType& type, double hours, double kelvin) {
+  return 1.0 + type.history.ageCoefficient * ageingState(type, hours, kelvin);
+}
+
+double formingAfterStorage(const PlateType& type, double years, double kelvin) {
+  const auto& h = type.history;
+  const double t = kelvin > 0.0 ? kelvin : type.physics.t0;
+  const double w =
+      std::exp(h.storageActivationEv / constants::kBoltzmannEv * (1.0 / type.physics.t0 - 1.0 / t));
+  return std::exp(-years * w / h.storageTauYears);
 }
 
 namespace {
@@ -93,21 +110,32 @@ inline double expSmall(double x) {
 // per time step, so a narrower band would recompute the four exponentials at every step.
 constexpr double kCacheKelvin = 1e-2;
 
-void arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c, double& eIs,
-               double& eRs, double& eG, double& eRate) {
+struct Factors {
+  double is, rs, gsh, rate, age, store;
+};
+
+Factors arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c) {
   if (c && c->temperature >= 0.0 && std::abs(T - c->temperature) <= kCacheKelvin) {
     const double d = dInv - c->dInv;
-    eIs = c->is * expSmall(-k.phiOverK * d);
-    eRs = c->rs * expSmall(k.rsEaOverK * d);
-    eG = c->gsh * expSmall(-k.gshEaOverK * d);
-    eRate = c->rate * expSmall(-k.reformEaOverK * d);
-    return;
+    return {c->is * expSmall(-k.phiOverK * d),    c->rs * expSmall(k.rsEaOverK * d),
+            c->gsh * expSmall(-k.gshEaOverK * d), c->rate * expSmall(-k.reformEaOverK * d),
+            c->age * expSmall(-k.ageEaOverK * d), c->store * expSmall(-k.storageEaOverK * d)};
   }
-  eIs = std::exp(-k.phiOverK * dInv);
-  eRs = std::exp(k.rsEaOverK * dInv);
-  eG = std::exp(-k.gshEaOverK * dInv);
-  eRate = std::exp(-k.reformEaOverK * dInv);
-  if (c) *c = {T, dInv, eIs, eRs, eG, eRate, false, 0.0, 0.0};
+  const Factors e{std::exp(-k.phiOverK * dInv),   std::exp(k.rsEaOverK * dInv),
+                  std::exp(-k.gshEaOverK * dInv), std::exp(-k.reformEaOverK * dInv),
+                  std::exp(-k.ageEaOverK * dInv), std::exp(-k.storageEaOverK * dInv)};
+  if (c) {
+    *c = {};
+    c->temperature = T;
+    c->dInv = dInv;
+    c->is = e.is;
+    c->rs = e.rs;
+    c->gsh = e.gsh;
+    c->rate = e.rate;
+    c->age = e.age;
+    c->store = e.store;
+  }
+  return e;
 }
 
 }  // namespace
@@ -122,9 +150,7 @@ void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcr
   }
   nvt = k.n * constants::thermalVoltage(t);
   const double dInv = 1.0 / t - 1.0 / k.t0;
-  double eIs, eRs, eG, eRate;
-  arrhenius(k, t, dInv, cache, eIs, eRs, eG, eRate);
-  const double is = k.is0 * (t / k.t0) * (t / k.t0) * eIs;
+  const double is = k.is0 * (t / k.t0) * (t / k.t0) * arrhenius(k, t, dInv, cache).is;
   vcrit = nvt * std::log(nvt / (std::numbers::sqrt2 * is));
   if (cache) {
     cache->limitScaleSet = true;
@@ -134,22 +160,28 @@ void plateLimitScale(const PlateConstants& k, double t, double& nvt, double& vcr
 }
 
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
-                   double theta, double f, PlateState& s, ArrheniusCache* cache) {
+                   double theta, double f, PlateState& s, ArrheniusCache* cache, double age) {
   const double tPlate = ambient + theta;
   const bool clamped = tPlate < kPlateLawTmin || tPlate > kPlateLawTmax;
   const double T = std::clamp(tPlate, kPlateLawTmin, kPlateLawTmax);
   const double invT = 1.0 / T, dInv = invT - 1.0 / k.t0;  // d(dInv)/dT = -1/T^2
-  double eIs, eRs, eG, eRate;
-  arrhenius(k, T, dInv, cache, eIs, eRs, eG, eRate);
+  const Factors e = arrhenius(k, T, dInv, cache);
   // Outside the clamp the laws do not move with temperature: their T-derivatives vanish.
   const double invT2 = clamped ? 0.0 : invT * invT;
   const double tSlope = clamped ? 0.0 : 1.0;
   s.temperature = tPlate;
 
-  // Saturation current and its temperature slope.
+  // Ageing term A = a s: Rs (1 + A), leakage (1 + ageLeak A), threshold + ageThreshold A.
+  const double ageTerm = k.ageCoefficient * age, dAgeTerm = k.ageCoefficient;
+  const double nvt = k.n * constants::thermalVoltage(T);
+
+  // Saturation current and its temperature slope; the aged threshold divides it by
+  // exp(ageThreshold A / (n kT/q)).
   const double tr = T / k.t0;
-  const double is = k.is0 * tr * tr * eIs;
-  const double dLnIsDT = tSlope * 2.0 * invT + k.phiOverK * invT2;
+  const double shift = k.ageThreshold * ageTerm / nvt;
+  const double is = k.is0 * tr * tr * e.is * std::exp(-shift);
+  const double dLnIsDT = tSlope * (2.0 * invT + shift * invT) + k.phiOverK * invT2;
+  const double dLnIsDs = -k.ageThreshold * dAgeTerm / nvt;
 
   // Image-force enhancement of the reverse saturation current, scaled by deformation.
   double vr, dVrDuj;
@@ -168,7 +200,6 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   const double enh = 1.0 + d * e1;
 
   // Forward exponential (continued linearly past a large current).
-  const double nvt = k.n * constants::thermalVoltage(T);
   // Overflow guard only: the log of the limit ratio is taken at t0 (precomputed), not at T.
   const double ulimit = nvt * k.expLimitLog;
   double ex, dEx;
@@ -186,14 +217,17 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   double dIbDuj = is * enh * dEx + is * d * dE1dUj * em1;
   double dIbDT = is * enh * em1 * dLnIsDT + is * d * dE1dT * em1 + is * enh * dExDT;
   double dIbDf = is * e1 * dDdF * em1;
+  double dIbDs = ib * dLnIsDs;
 
   // Shunt leakage.
-  const double gArr = k.gsh0 * eG;
+  const double gAge = 1.0 + k.ageLeak * ageTerm;
+  const double gArr = k.gsh0 * e.gsh * gAge;
   const double gsh = gArr * d;
   ib += gsh * uj;
   dIbDuj += gsh;
   dIbDT += gsh * k.gshEaOverK * invT2 * uj;
   dIbDf += gArr * dDdF * uj;
+  dIbDs += k.gsh0 * e.gsh * k.ageLeak * dAgeTerm * d * uj;
 
   // Soft breakdown.
   // Below 40 slopes from breakdown the term is under 1e-17 of its scale: skip the exponential.
@@ -207,14 +241,16 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   s.dIbDuj = dIbDuj;
   s.dIbDth = dIbDT;
   s.dIbDf = dIbDf;
+  s.dIbDs = dIbDs;
 
   // Series resistance.
-  const double rs = k.rs0 * eRs;
+  const double rs = k.rs0 * e.rs * (1.0 + ageTerm);
   const double gs = 1.0 / rs;
   s.is = (vt - uj) * gs;
   s.dIsDvt = gs;
   s.dIsDuj = -gs;
   s.dIsDth = s.is * k.rsEaOverK * invT2;  // d(1/Rs)/dT = (1/Rs) Ea/(k T^2)
+  s.dIsDs = -s.is * dAgeTerm / (1.0 + ageTerm);
 
   // Trap branch.
   s.it = k.gt * (uj - ut);
@@ -226,13 +262,20 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   s.dPdUt = -2.0 * s.it;
   s.dPdTh = (vt - uj) * s.dIsDth + uj * dIbDT;
   s.dPdF = uj * dIbDf;
+  s.dPdS = (vt - uj) * s.dIsDs + uj * dIbDs;
+
+  // Ageing state: hours weighted by the Arrhenius factor at the plate's own temperature.
+  const double ageDecay = std::exp(-age);
+  s.ageRate = k.ageRate0 * e.age * ageDecay;
+  s.dAgeRateDth = s.ageRate * k.ageEaOverK * invT2;
+  s.dAgeRateDs = -s.ageRate;
 
   // Forming state.
-  const double rate = k.reformRate0 * eRate;
-  s.g = (1.0 - f) * rate * vr - f * k.storageRate;
-  s.dGdF = -rate * vr - k.storageRate;
+  const double rate = k.reformRate0 * e.rate, store = k.storageRate * e.store;
+  s.g = (1.0 - f) * rate * vr - f * store;
+  s.dGdF = -rate * vr - store;
   s.dGdUj = (1.0 - f) * rate * dVrDuj;
-  s.dGdTh = (1.0 - f) * rate * vr * k.reformEaOverK * invT2;
+  s.dGdTh = ((1.0 - f) * rate * vr * k.reformEaOverK - f * store * k.storageEaOverK) * invT2;
 
   // Barrier charge (Mott-Schottky: grading 1/2).
   if (k.cj0 > 0.0) {

@@ -37,12 +37,21 @@ struct PlateConstants {
   double bdV = 50, bdSlope = 3, bdI0 = 0;  // V, V, A
   double cj0 = 0;                          // F
   double fc = 0.5;
-  DepletionShape depletion;  // cj0, vbi, grading 1/2 (Mott-Schottky), fc
-  double ct = 0, gt = 0;     // trap capacitance F, conductance S
-  double rth = 1, cth = 1;   // K/W, J/K
-  double reformRate0 = 0;    // 1/(s V) at t0: (1/tau) / V_ref
-  double reformEaOverK = 0;  // K
-  double storageRate = 0;    // 1/s
+  DepletionShape depletion;   // cj0, vbi, grading 1/2 (Mott-Schottky), fc
+  double ct = 0, gt = 0;      // trap capacitance F, conductance S
+  double rth = 1, cth = 1;    // K/W, J/K
+  double reformRate0 = 0;     // 1/(s V) at t0: (1/tau) / V_ref
+  double reformEaOverK = 0;   // K
+  double storageRate = 0;     // 1/s at t0
+  double storageEaOverK = 0;  // K
+  // Ageing state s = ln(1 + H/H0), H the operating hours weighted to t0:
+  // ds/dt = ageRate0 exp((Eage/k)(1/t0 - 1/T)) exp(-s). Its term A = ageCoefficient s raises Rs
+  // by (1 + A), the leakage by (1 + ageLeak A) and the forward threshold by ageThreshold A.
+  double ageCoefficient = 0;  // a
+  double ageRate0 = 0;        // 1/s: 1/(3600 H0)
+  double ageEaOverK = 0;      // K
+  double ageLeak = 0;         // leakage proportion
+  double ageThreshold = 0;    // V per unit of A
 };
 
 /// Builds the constants of one plate from its type, spread multipliers and ageing factor.
@@ -51,18 +60,21 @@ PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double
 
 /// Rs multiplier after `hours` of operation at plate temperature `kelvin`.
 double ageingFactor(const PlateType& type, double hours, double kelvin);
-/// Forming state after `years` unpowered, starting fully formed.
-double formingAfterStorage(const PlateType& type, double years);
+/// Ageing state s = ln(1 + H/H0) after `hours` of operation at plate temperature `kelvin`.
+double ageingState(const PlateType& type, double hours, double kelvin);
+/// Forming state after `years` unpowered at `kelvin` (0: the type's t0), starting fully formed.
+double formingAfterStorage(const PlateType& type, double years, double kelvin = 0.0);
 
 /// Values and derivatives of one plate at (vt, uj, ut, theta, F). Rows: Is = series current
 /// into the plate; Ib = barrier static current; It = trap-branch current; P = dissipation;
 /// g = dF/dt; Q = barrier charge and C = dQ/duj.
 struct PlateState {
-  double is, dIsDvt, dIsDuj, dIsDth;
-  double ib, dIbDuj, dIbDth, dIbDf;
+  double is, dIsDvt, dIsDuj, dIsDth, dIsDs;
+  double ib, dIbDuj, dIbDth, dIbDf, dIbDs;
   double it;  // derivatives: +gt / -gt
-  double p, dPdVt, dPdUj, dPdUt, dPdTh, dPdF;
+  double p, dPdVt, dPdUj, dPdUt, dPdTh, dPdF, dPdS;
   double g, dGdUj, dGdTh, dGdF;
+  double ageRate, dAgeRateDth, dAgeRateDs;  // ds/dt of the ageing state, 1/s
   double q, c;
   double temperature;  // K
 };
@@ -74,16 +86,19 @@ struct ArrheniusCache {
   double temperature = -1.0;                         // K (law temperature), < 0: empty
   double dInv = 0.0;                                 // 1/T - 1/t0 at that temperature
   double is = 0.0, rs = 0.0, gsh = 0.0, rate = 0.0;  // exp(-phi/k dInv), exp(Ea/k dInv), ...
+  double age = 0.0;                                  // exp(-Eage/k dInv)
+  double store = 0.0;                                // exp(-Est/k dInv)
   // Junction limiting's scale (n kT/q and the critical voltage) at a temperature within the
   // cache's band; limiting is a damping heuristic, a 10 mK offset (3e-5 of kT) does not matter.
   bool limitScaleSet = false;
   double limitNvt = 0.0, limitVcrit = 0.0;
 };
 
-/// Evaluates the plate. `ujLimited` is the barrier voltage the laws are evaluated at (equal to
-/// uj unless Newton limiting moved it); the result is linearised from there.
+/// Evaluates the plate at ageing state `age` (s = ln(1 + H/H0); 0 for a new plate, or when
+/// the ageing is folded into the constants).
 void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj, double ut,
-                   double theta, double f, PlateState& s, ArrheniusCache* cache = nullptr);
+                   double theta, double f, PlateState& s, ArrheniusCache* cache = nullptr,
+                   double age = 0.0);
 
 /// Critical voltage and thermal voltage n kT/q for junction limiting at temperature t (the
 /// saturation current through the same Arrhenius cache as evaluatePlate).

@@ -32,12 +32,13 @@ struct StackOptions {
   int arms = 1;    ///< arms in parallel
   StackMode mode = StackMode::PerPlate;
   StackSpread spread;
-  std::uint64_t seed = 1;       ///< seed of the spread draw (same seed, same stack)
-  double forming = 1.0;         ///< initial forming state F (1 = fully formed)
-  double storedYears = 0.0;     ///< if > 0: F starts at the value after this storage
-  double ageHours = 0.0;        ///< equivalent operating hours already run
-  double ageTemperature = 0.0;  ///< plate temperature of those hours, K (0: type's t0)
-  double cooling = 1.0;         ///< multiplies the heat conductance to ambient (fan: 2-3)
+  std::uint64_t seed = 1;           ///< seed of the spread draw (same seed, same stack)
+  double forming = 1.0;             ///< initial forming state F (1 = fully formed)
+  double storedYears = 0.0;         ///< if > 0: F starts at the value after this storage
+  double storageTemperature = 0.0;  ///< mean temperature of that storage, K (0: type's t0)
+  double ageHours = 0.0;            ///< equivalent operating hours already run
+  double ageTemperature = 0.0;      ///< plate temperature of those hours, K (0: type's t0)
+  double cooling = 1.0;             ///< multiplies the heat conductance to ambient (fan: 2-3)
   void validate() const;
 };
 
@@ -54,13 +55,13 @@ class Stack : public DeviceBase<Stack> {
   /// Changes the options (plates, arms, spread, history ...); the circuit must be run again.
   void setOptions(const StackOptions& options);
   void setType(PlateType type);
-  /// plates, parallel, spread-js, spread-rs, spread-gsh, seed, forming, stored-years, hours,
-  /// age-temp, cooling (the netlist's names).
+  /// plates, parallel, spread-js, spread-rs, spread-gsh, seed, forming, stored-years,
+  /// stored-temp, hours, age-temp, cooling (the netlist's names).
   const std::vector<DeviceParameter>& parameterTable() const override;
   int plateCount() const { return opt_.plates * opt_.arms; }
   /// Initial forming state after the options' storage and forming settings.
   double initialForming() const;
-  /// Rs ageing multiplier from the options' operating hours.
+  /// Rs ageing multiplier at the start, from the options' operating hours.
   double ageing() const;
 
   void prepare(const Circuit& c) override;
