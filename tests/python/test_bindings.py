@@ -295,3 +295,25 @@ def test_periodic_and_warm_up_from_python():
     assert t[0] == pytest.approx(303.15, abs=0.5)
     assert t[-1] > t[0] + 5.0
     assert r.time[-1] == pytest.approx(3600.0)
+
+
+def test_stack_storage_temperature_and_starting_age():
+    # Deforming in storage and ageing are both Arrhenius in their temperature
+    # (docs/plate-model.md, laws 8 and 9): F = exp(-(years / tau) w(T_store)) and the weighted
+    # hours H w(T_age), w(T) = exp((E/k)(1/T0 - 1/T)), with the type's 0.5 eV and T0 = 300 K.
+    se = disc.plate_type("se-25mm-square")
+    k = 8.617333262e-5  # Boltzmann constant, eV/K (CODATA 2018)
+
+    def w(kelvin, ev):
+        return math.exp(ev / k * (1 / 300.0 - 1 / kelvin))
+
+    c = disc.Circuit()
+    c.resistor("R1", "a", "gnd", "1M")
+    c.stack("SR1", "a", "gnd", type="se-25mm-square", stored_years=20, stored_temp="35degC",
+            hours=15000, age_temp="45degC")
+    r = c.run_transient(stop=1e-3, record=["form:SR1", "hours:SR1"])
+    tau = se.get("storage_tau_years")
+    assert r["form:SR1"][0] == pytest.approx(
+        math.exp(-20 / tau * w(308.15, se.get("storage_activation_eV"))), rel=1e-9)
+    assert r["hours:SR1"][0] == pytest.approx(
+        15000 * w(318.15, se.get("age_activation_eV")), rel=1e-9)
