@@ -259,6 +259,34 @@ int replaceStacks(ReplaceArgs& a) {
   return 0;
 }
 
+struct PowerUpArgs {
+  std::string file, out;
+  bool json = false;
+  bool quiet = false;
+  double maxTimeMinutes = 480;
+  disc::PowerUpOptions options;
+};
+
+// Exit 0 with a verified schedule; 4 when the stack is to be replaced (or the schedule could not
+// be verified): there is no safe way up to follow.
+int planPowerUpFile(PowerUpArgs& a) {
+  disc::Netlist nl = disc::loadNetlist(a.file, includePolicy());
+  a.options.maxTotal = a.maxTimeMinutes * 60.0;
+  if (isatty(fileno(stderr)) != 0 && !a.quiet)
+    a.options.progress = [](const std::string& line) {
+      fmt::print(stderr, "\r{:70}\r{}", "", line);
+      return true;
+    };
+  const disc::PowerUpPlan plan = disc::planPowerUp(nl, a.options);
+  if (a.options.progress) fmt::print(stderr, "\r{:70}\r", "");
+  if (!a.out.empty()) disc::writeFileAtomically(a.out, disc::powerUpJson(plan));
+  if (a.json)
+    std::cout << disc::powerUpJson(plan);
+  else if (!a.quiet)
+    fmt::print("{}", disc::powerUpText(plan));
+  return plan.verdict == "re-form" && plan.verified ? 0 : kExitRatings;
+}
+
 struct CampaignArgs {
   std::string file, outDir;
   int builds = 0;
@@ -423,6 +451,28 @@ int main(int argc, char** argv) {
   replace->add_flag("--json", rp.json, "Print the design as JSON");
   replace->add_flag("-q,--quiet", rp.quiet, "Print nothing; only write the files");
 
+  PowerUpArgs pu;
+  auto* powerUp = app.add_subcommand(
+      "power-up", "Plan the variac schedule that brings a stored stack up safely");
+  powerUp->add_option("file", pu.file, "Netlist (.disc)")->required()->check(CLI::ExistingFile);
+  powerUp->add_option("--stack", pu.options.stack, "The stack to bring up")->required();
+  powerUp->add_option("--source", pu.options.source,
+                      "The variac-fed voltage source (default: the one sine source)");
+  powerUp->add_option("--margin", pu.options.margin, "Fraction of each limit to use")
+      ->check(CLI::Range(0.05, 1.0))
+      ->capture_default_str();
+  powerUp->add_option("--first", pu.options.firstLevel, "Lowest first step, fraction of full")
+      ->check(CLI::Range(0.01, 1.0))
+      ->capture_default_str();
+  powerUp
+      ->add_option("--max-time", pu.maxTimeMinutes,
+                   "Minutes; a stack not brought up by then is to be replaced")
+      ->check(CLI::PositiveNumber)
+      ->capture_default_str();
+  powerUp->add_option("-o,--out", pu.out, "Write the plan as JSON to this file");
+  powerUp->add_flag("--json", pu.json, "Print the plan as JSON");
+  powerUp->add_flag("-q,--quiet", pu.quiet, "Print nothing (exit code and --out only)");
+
   CampaignArgs ca;
   auto* campaign = app.add_subcommand(
       "campaign", "Run a netlist's campaign: a parameter grid and Monte Carlo builds");
@@ -463,6 +513,7 @@ int main(int argc, char** argv) {
     if (fit->parsed()) return fitTraces(fa);
     if (replace->parsed()) return replaceStacks(rp);
     if (campaign->parsed()) return runCampaignFile(ca);
+    if (powerUp->parsed()) return planPowerUpFile(pu);
     if (example->parsed()) {
       if (ex.name == "list") {
         for (const auto& n : disc::reference::names())

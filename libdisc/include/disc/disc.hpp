@@ -32,6 +32,7 @@
 #include "disc/plate_type.hpp"
 #include "disc/preferred_values.hpp"
 #include "disc/reference_circuits.hpp"
+#include "disc/power_up.hpp"
 #include "disc/replacement.hpp"
 #include "disc/result.hpp"
 #include "disc/session.hpp"
