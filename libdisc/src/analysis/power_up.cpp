@@ -151,17 +151,14 @@ class Planner {
       }
       return true;
     };
-    try {
-      EnvelopeResult er = warmUp(nl.circuit, eo);
-      tr.endTime = er.endTime;
-      tr.stats = er.stats;
-      if (!er.failures.empty()) {
-        tr.inside = false;
-        tr.brokenBy = failureVerdicts({er.failures.front()}).front();
-      }
-    } catch (const ConvergenceError& e) {
+    // A ConvergenceError goes to the caller: a circuit with no settled cycle is no plan's
+    // answer (a runaway without one ends the envelope as a failure, judged below).
+    EnvelopeResult er = warmUp(nl.circuit, eo);
+    tr.endTime = er.endTime;
+    tr.stats = er.stats;
+    if (!er.failures.empty()) {
       tr.inside = false;
-      tr.brokenBy = std::string("no settled mains cycle: ") + e.what();
+      tr.brokenBy = failureVerdicts({er.failures.front()}).front();
     }
     return tr;
   }
