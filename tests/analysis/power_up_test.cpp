@@ -60,8 +60,7 @@ TEST_CASE("power-up: a stored stack brought up on the planner's schedule stays i
   const disc::WarmUpSummary& w = out.analyses[0].warmUp;
   CHECK(w.failures.empty());
   CHECK(w.stoppedBy.empty());
-  for (const auto& c : w.firstLimits)
-    CHECK_FALSE(c.what.find("temperature") != std::string::npos);
+  for (const auto& c : w.firstLimits) CHECK_FALSE(c.what.find("temperature") != std::string::npos);
   const disc::Result& s = out.analyses[0].result;
   const auto* st = dynamic_cast<const disc::Stack*>(nl.circuit.find("SR1"));
   REQUIRE(st != nullptr);

@@ -19,11 +19,11 @@ struct PowerUpOptions {
   /// Fraction of each limit the schedule may use (limits judged at margin x limit; for the
   /// plate temperature on the rise above ambient).
   double margin = 0.9;
-  double firstLevel = 0.1;    ///< lowest first step, fraction of the full voltage
-  double smallestStep = 0.05; ///< smallest increase tried, fraction of the full voltage
-  double turn = 10.0;         ///< s, turning the variac from one step to the next (a ramp)
-  double minHold = 60.0;      ///< s, shortest hold at a step
-  double maxHold = 1800.0;    ///< s, longest hold at a step before going on regardless
+  double firstLevel = 0.1;     ///< lowest first step, fraction of the full voltage
+  double smallestStep = 0.05;  ///< smallest increase tried, fraction of the full voltage
+  double turn = 10.0;          ///< s, turning the variac from one step to the next (a ramp)
+  double minHold = 60.0;       ///< s, shortest hold at a step
+  double maxHold = 1800.0;     ///< s, longest hold at a step before going on regardless
   /// Settled, safe to go on: the leakage current changes by less than this fraction per
   /// minute and the hottest plate by less than settleTemperature K per minute.
   double settleLeakage = 0.05;
@@ -38,8 +38,8 @@ struct PowerUpOptions {
 
 /// One step of the schedule: turn the variac to `level` (over `turn` s), hold `duration`.
 struct PowerUpStep {
-  double level = 0;     ///< in the source's own sense (V rms for a mains or rms= source)
-  double fraction = 0;  ///< of the full voltage
+  double level = 0;                ///< in the source's own sense (V rms for a mains or rms= source)
+  double fraction = 0;             ///< of the full voltage
   double start = 0, duration = 0;  ///< s (duration includes the turn)
   double leakageStart = 0, leakageEnd = 0;  ///< A, the stack's mean reverse current
   double hottest = 0;                       ///< K, hottest plate, highest over the step
@@ -58,8 +58,8 @@ struct PowerUpLimit {
 
 struct PowerUpPlan {
   std::string title, file, stack, source, levelUnit;
-  double full = 0;      ///< full level, the source's own
-  double ambient = 0;   ///< K
+  double full = 0;     ///< full level, the source's own
+  double ambient = 0;  ///< K
   double margin = 0.9;
   std::vector<PowerUpStep> steps;
   double totalTime = 0;  ///< s

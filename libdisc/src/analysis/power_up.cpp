@@ -24,10 +24,11 @@ void PowerUpOptions::validate() const {
     throw InputError("power-up: the first level and the smallest step are fractions in (0, 1]");
   if (!(turn >= 0.0) || !(minHold > 0.0) || !(maxHold >= minHold))
     throw InputError("power-up: need turn >= 0 and 0 < min-hold <= max-hold (seconds)");
-  if (!(settleLeakage > 0.0) || !(settleTemperature > 0.0) || !(maxTotal > 0.0) ||
-      maxSteps < 1 || !(maxSlowStep > 0.0))
-    throw InputError("power-up: settling rates, the longest time, steps and slow step must be "
-                     "positive");
+  if (!(settleLeakage > 0.0) || !(settleTemperature > 0.0) || !(maxTotal > 0.0) || maxSteps < 1 ||
+      !(maxSlowStep > 0.0))
+    throw InputError(
+        "power-up: settling rates, the longest time, steps and slow step must be "
+        "positive");
 }
 
 namespace {
@@ -42,9 +43,9 @@ struct Row {
 
 struct Trial {
   std::vector<Row> rows;
-  bool inside = true;       ///< every limit at margin, no failure, a periodic state everywhere
-  std::string brokenBy;     ///< what ended it outside
-  bool settled = false;     ///< the last step settled before its longest hold
+  bool inside = true;    ///< every limit at margin, no failure, a periodic state everywhere
+  std::string brokenBy;  ///< what ended it outside
+  bool settled = false;  ///< the last step settled before its longest hold
   double endTime = 0;
   EnvelopeStats stats;
   Result lastPeriod;
@@ -57,39 +58,48 @@ class Planner {
     o.validate();
     const Device* d = nl.circuit.find(o.stack);
     stack_ = d ? dynamic_cast<const Stack*>(d) : nullptr;
-    if (!stack_) throw InputError(fmt::format("power-up: '{}' is not a stack of {}", o.stack, nl.path));
+    if (!stack_)
+      throw InputError(fmt::format("power-up: '{}' is not a stack of {}", o.stack, nl.path));
     if (o.source.empty()) {
       for (const auto& dev : nl.circuit.devices())
-        if (const auto* v = dynamic_cast<const VoltageSource*>(dev.get()); v && v->waveform().isSine()) {
+        if (const auto* v = dynamic_cast<const VoltageSource*>(dev.get());
+            v && v->waveform().isSine()) {
           if (!source_.empty())
-            throw InputError(fmt::format("power-up: {} has more than one sine source ({} and {}): "
-                                         "name the variac-fed one", nl.path, source_, v->name()));
+            throw InputError(
+                fmt::format("power-up: {} has more than one sine source ({} and {}): "
+                            "name the variac-fed one",
+                            nl.path, source_, v->name()));
           source_ = v->name();
         }
       if (source_.empty())
-        throw InputError(fmt::format("power-up: {} has no sine voltage source to turn up", nl.path));
+        throw InputError(
+            fmt::format("power-up: {} has no sine voltage source to turn up", nl.path));
     } else {
       source_ = o.source;
       const Device* s = nl.circuit.find(source_);
       if (!s || !dynamic_cast<const VoltageSource*>(s))
-        throw InputError(fmt::format("power-up: '{}' is not a voltage source of {}", source_, nl.path));
+        throw InputError(
+            fmt::format("power-up: '{}' is not a voltage source of {}", source_, nl.path));
     }
     const auto* v = dynamic_cast<const VoltageSource*>(nl.circuit.find(source_));
     sine_ = v->waveform().isSine();
     full_ = sine_ ? v->waveform().amplitude() / std::sqrt(2.0) : v->waveform().offset();
     if (!(full_ > 0.0))
-      throw InputError(fmt::format("power-up: source {} has no positive level to turn up", source_));
+      throw InputError(
+          fmt::format("power-up: source {} has no positive level to turn up", source_));
     const PlateType& pt = stack_->type();
     ambient_ = nl.circuit.ambient();
     tmax_ = pt.ratings.maxPlateTemperature;
     reverseLimit_ = (tmax_ - ambient_) / (pt.thermal.rth / stack_->options().cooling);
     if (!(tmax_ > ambient_))
-      throw InputError(fmt::format("power-up: the ambient is at or above {}'s plate limit", o.stack));
+      throw InputError(
+          fmt::format("power-up: the ambient is at or above {}'s plate limit", o.stack));
     for (const auto& dev : nl.circuit.devices())
       if (const auto* e = dynamic_cast<const Electrolytic*>(dev.get())) {
         const auto& t = e->terminals();
-        caps_.push_back({fmt::format("v:{},{}", nl.circuit.nodeName(t[0]), nl.circuit.nodeName(t[1])),
-                         e->name(), e->params().ratedVoltage});
+        caps_.push_back(
+            {fmt::format("v:{},{}", nl.circuit.nodeName(t[0]), nl.circuit.nodeName(t[1])),
+             e->name(), e->params().ratedVoltage});
       }
   }
 
@@ -184,7 +194,6 @@ class Planner {
                    "the electrolytic's DC working voltage"});
     return l;
   }
-
 
  private:
   struct Cap {
@@ -361,8 +370,8 @@ PowerUpPlan planPowerUp(const Netlist& nl, const PowerUpOptions& o) {
       const SupplyReport rep = makeSupplyReport(nl, tr.lastPeriod);
       plan.warnings = rep.warnings;
       for (const auto& st : rep.stacks)
-        if (st.name == o.stack && st.temperatureSteady - plan.ambient >
-                                      o.margin * (st.temperatureLimit - plan.ambient)) {
+        if (st.name == o.stack &&
+            st.temperatureSteady - plan.ambient > o.margin * (st.temperatureLimit - plan.ambient)) {
           plan.verdict = "replace";
           plan.reasons.push_back(
               "re-formed, at full voltage the stack still heats towards its limit: replace it "
@@ -386,10 +395,10 @@ std::string powerUpText(const PowerUpPlan& p) {
   std::string s;
   auto line = [&](const std::string& l) { s += l + "\n"; };
   line(fmt::format("libdisc power-up plan: {}", p.title.empty() ? p.file : p.title));
-  line(fmt::format("file {}, stack {}, variac on {} (full {:.4g} {}), ambient {:.1f} degC, "
-                   "limits used to {:.0f} %",
-                   p.file, p.stack, p.source, p.full, p.levelUnit, p.ambient - 273.15,
-                   100 * p.margin));
+  line(fmt::format(
+      "file {}, stack {}, variac on {} (full {:.4g} {}), ambient {:.1f} degC, "
+      "limits used to {:.0f} %",
+      p.file, p.stack, p.source, p.full, p.levelUnit, p.ambient - 273.15, 100 * p.margin));
   line("");
   line(p.verdict == "replace" ? "VERDICT: replace the stack, do not re-form it"
                               : fmt::format("VERDICT: re-form it, following the schedule ({} in "
@@ -399,19 +408,20 @@ std::string powerUpText(const PowerUpPlan& p) {
   for (const auto& r : p.reasons) line("  - " + r);
   if (!p.steps.empty()) {
     line("");
-    line(fmt::format("{:>4} {:>10} {:>9} {:>11} {:>17} {:>11} {:>10} {:>8}", "step",
-                     "set to", "at", "hold", "leakage mA", "hottest", "rev W/pl", "forming"));
+    line(fmt::format("{:>4} {:>10} {:>9} {:>11} {:>17} {:>11} {:>10} {:>8}", "step", "set to", "at",
+                     "hold", "leakage mA", "hottest", "rev W/pl", "forming"));
     int k = 0;
     for (const auto& st : p.steps)
-      line(fmt::format("{:>4} {:>6.0f} {:<3} {:>9} {:>11} {:>8.3g}->{:<8.3g} {:>7.1f} degC "
-                       "{:>10.3g} {:>8.2f}",
-                       ++k, st.level, p.levelUnit == "V rms" ? "Vac" : "V",
-                       formatDuration(st.start), formatDuration(st.duration),
-                       1e3 * st.leakageStart, 1e3 * st.leakageEnd, st.hottest - 273.15,
-                       st.reversePerPlate, st.formingEnd));
-    line("  Go on to the next step when the hold is over and the meter shows the leakage has "
-         "stopped falling (less than the settling rate a minute) and the stack is no warmer "
-         "than the table says; if it runs warmer or the leakage rises, turn back one step.");
+      line(
+          fmt::format("{:>4} {:>6.0f} {:<3} {:>9} {:>11} {:>8.3g}->{:<8.3g} {:>7.1f} degC "
+                      "{:>10.3g} {:>8.2f}",
+                      ++k, st.level, p.levelUnit == "V rms" ? "Vac" : "V", formatDuration(st.start),
+                      formatDuration(st.duration), 1e3 * st.leakageStart, 1e3 * st.leakageEnd,
+                      st.hottest - 273.15, st.reversePerPlate, st.formingEnd));
+    line(
+        "  Go on to the next step when the hold is over and the meter shows the leakage has "
+        "stopped falling (less than the settling rate a minute) and the stack is no warmer "
+        "than the table says; if it runs warmer or the leakage rises, turn back one step.");
     line("  schedule=\"" + p.schedule + "\"");
   }
   line("");
