@@ -61,6 +61,7 @@ struct PowerUpPlan {
   double full = 0;     ///< full level, the source's own
   double ambient = 0;  ///< K
   double margin = 0.9;
+  double settleLeakage = 0.05, settleTemperature = 0.5;  ///< the hold's settling rates, per minute
   std::vector<PowerUpStep> steps;
   double totalTime = 0;  ///< s
   std::vector<PowerUpLimit> limits;

@@ -249,6 +249,8 @@ PowerUpPlan planPowerUp(const Netlist& nl, const PowerUpOptions& o) {
   plan.full = pl.full();
   plan.ambient = pl.ambient();
   plan.margin = o.margin;
+  plan.settleLeakage = o.settleLeakage;
+  plan.settleTemperature = o.settleTemperature;
   plan.limits = pl.limits();
 
   std::vector<std::pair<double, double>> points;  // (s, fraction of full)
@@ -419,9 +421,11 @@ std::string powerUpText(const PowerUpPlan& p) {
                       formatDuration(st.duration), 1e3 * st.leakageStart, 1e3 * st.leakageEnd,
                       st.hottest - 273.15, st.reversePerPlate, st.formingEnd));
     line(
-        "  Go on to the next step when the hold is over and the meter shows the leakage has "
-        "stopped falling (less than the settling rate a minute) and the stack is no warmer "
-        "than the table says; if it runs warmer or the leakage rises, turn back one step.");
+        fmt::format("  Go on to the next step when the hold is over and the leakage on the meter "
+                    "changes by less than {:.0f} % a minute (the stack warming by less than {:.2g} "
+                    "K a minute), the stack no warmer than the table says; if it runs warmer or "
+                    "the leakage rises, turn back one step.",
+                    100 * p.settleLeakage, p.settleTemperature));
     line("  schedule=\"" + p.schedule + "\"");
   }
   line("");
@@ -454,6 +458,8 @@ std::string powerUpJson(const PowerUpPlan& p) {
   j["full_level"] = p.full;
   j["ambient_C"] = p.ambient - 273.15;
   j["margin"] = p.margin;
+  j["settle_leakage_per_min"] = p.settleLeakage;
+  j["settle_temperature_K_per_min"] = p.settleTemperature;
   j["verdict"] = p.verdict;
   j["reasons"] = p.reasons;
   j["verified"] = p.verified;
