@@ -76,9 +76,13 @@ Circuit diodeString(int n, double volts, double ohms) {
   c.setAmbient(kStringTemperature);
   c.emplace<VoltageSource>("V1", c.node("s"), kGround, Waveform::dc(volts));
   c.emplace<Resistor>("R1", c.node("s"), c.node("n0"), ohms);
+  // Names built by append: GCC 12 warns falsely (-Wstringop-overflow) on "x" + std::to_string.
+  const auto named = [](char prefix, int k) {
+    return std::string(1, prefix).append(std::to_string(k));
+  };
   for (int k = 1; k <= n; ++k)
-    c.emplace<Diode>("D" + std::to_string(k), c.node("n" + std::to_string(k - 1)),
-                     k == n ? kGround : c.node("n" + std::to_string(k)));
+    c.emplace<Diode>(named('D', k), c.node(named('n', k - 1)),
+                     k == n ? kGround : c.node(named('n', k)));
   return c;
 }
 
