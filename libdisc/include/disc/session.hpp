@@ -77,11 +77,32 @@ struct PlotSeries {
   std::string name;
   std::vector<double> x, y;
 };
+/// One plot: axes named by quantity and unit, a unit of V, A, W, s, Hz, F or ohm scaled by the
+/// SI prefix that fits the data ("current (mA)").
+struct Plot {
+  std::string name;  ///< file stem
+  std::string title;
+  std::string xQuantity, xUnit, yQuantity, yUnit;
+  std::vector<PlotSeries> series;
+  /// Every series has the first one's x (a time axis): the HTML page draws it interactively.
+  bool timeSeries = false;
+  std::string note;  ///< a line under the plot, e.g. what it leaves out
+};
+/// The plot as SVG text (the legend in the plot's right margin, a distinct colour per series).
+std::string svgPlot(const Plot& plot);
+/// Shorthand for a plot whose axis labels are taken as they are (no SI scaling).
 std::string svgPlot(const std::string& title, const std::string& xLabel, const std::string& yLabel,
                     const std::vector<PlotSeries>& series);
+/// The plots of a run, grouped (docs/report.md, "Plots").
+std::vector<Plot> runPlotList(const Netlist& netlist, const RunOutcome& outcome);
 /// The plots of a run: name (file stem) and SVG text.
 std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& netlist,
                                                           const RunOutcome& outcome);
+/// A value with the SI prefix that brings it into [1, 1000) and `digits` significant digits:
+/// siValue(0.0008, "A") is "800.0 µA"... "0.8000 mA" never; 0 is "0 A".
+std::string siValue(double value, const std::string& unit, int digits = 4);
+/// The colour of series `k` of `n` in a plot: all `n` distinct (CSS colour text).
+std::string seriesColour(std::size_t k, std::size_t n);
 
 /// Writes report.json, report.html, one CSV per analysis and the SVG plots into `dir` (created
 /// if missing). Every file is written under a temporary name and renamed into place.

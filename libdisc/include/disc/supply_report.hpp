@@ -23,6 +23,12 @@ struct StackFigures {
   /// loadKind: "capacitive" or "resistive", for the stack's whole rectifier (docs/report.md)
   std::string name, type, material, mode, loadKind;
   std::string rectifier;  ///< the stacks joined to this one at a node, itself included, by name
+  /// The stacks across the same two nodes the same way round (paralleled stacks, drawn
+  /// separately), itself included, by name; `parallelShare` is this stack's fraction of their
+  /// summed average forward current (1 for a stack on its own).
+  std::string paralleled;
+  double parallelShare = 1;
+  std::string worst = "ok";  ///< worst level among `verdicts`
   int plates = 1, arms = 1;
   double peakReverse = 0;                ///< V per plate, largest over plates, settled window
   double rmsReverse = 0;                 ///< V per plate, sine-equivalent AC rms for the load kind

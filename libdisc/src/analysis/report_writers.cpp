@@ -11,6 +11,7 @@
 #include "disc/limits.hpp"
 #include "disc/session.hpp"
 
+#include "analysis/report_plots.hpp"
 #include "analysis/text_blocks.hpp"
 #include "analysis/text_fields.hpp"
 #include "disc/version.hpp"
@@ -55,18 +56,6 @@ nlohmann::json verdictJson(const Verdict& v) {
           {"unit", v.unit},     {"level", v.level}, {"rule", v.rule}};
 }
 
-/// "Nice" tick positions covering [lo, hi].
-std::vector<double> ticks(double lo, double hi) {
-  const double span = hi - lo;
-  const double raw = span / 5.0;
-  const double mag = std::pow(10.0, std::floor(std::log10(raw)));
-  const double norm = raw / mag;
-  const double step = (norm < 1.5 ? 1.0 : norm < 3.5 ? 2.0 : norm < 7.5 ? 5.0 : 10.0) * mag;
-  std::vector<double> t;
-  for (double v = std::ceil(lo / step) * step; v <= hi + 1e-9 * span; v += step) t.push_back(v);
-  return t;
-}
-
 nlohmann::json failuresJson(const std::vector<FailureEvent>& events) {
   nlohmann::json a = nlohmann::json::array();
   for (const auto& e : events)
@@ -101,8 +90,45 @@ std::string lossSummary(const std::vector<PowerShare>& losses) {
                    [](const auto& a, const auto& b) { return a.second > b.second; });
   std::string parts;
   for (const auto& [kind, w] : kinds)
-    parts += fmt::format("{}{} {:.3f} W", parts.empty() ? "" : ", ", kind, w);
-  return fmt::format("{:10.3f} W ({})", total, parts);
+    parts += fmt::format("{}{} {}", parts.empty() ? "" : ", ", kind, siValue(w, "W"));
+  return fmt::format("{:>10} ({})", siValue(total, "W"), parts);
+}
+
+/// The overview: one row per stack (header first), the same cells for text and HTML.
+std::vector<std::vector<std::string>> overviewRows(const SupplyReport& r) {
+  std::vector<std::vector<std::string>> rows = {{"stack", "plates", "forward current",
+                                                 "share of paralleled", "arm shares",
+                                                 "hottest plate", "worst verdict"}};
+  for (const auto& st : r.stacks) {
+    std::string arms;
+    for (double a : st.armShare)
+      arms += fmt::format("{}{:.1f} %", arms.empty() ? "" : " ", 100 * a);
+    std::string worst = st.worst;
+    for (const auto& v : st.verdicts)
+      if (v.level == st.worst && v.level != "ok") {
+        worst += ": " + v.figure;
+        break;
+      }
+    const bool paralleled = st.paralleled.find(' ') != std::string::npos;
+    rows.push_back({st.name, fmt::format("{} x {} {}", st.arms, st.plates, st.type),
+                    siValue(st.currentAverage, "A") + " average",
+                    paralleled
+                        ? fmt::format("{:.1f} % of {}", 100 * st.parallelShare, st.paralleled)
+                        : std::string("-"),
+                    st.arms > 1 ? arms : std::string("-"),
+                    st.noSteadyState ? std::string("no steady state")
+                                     : fmt::format("{:.1f} degC", toC(st.temperatureSteady)),
+                    worst});
+  }
+  return rows;
+}
+
+/// The stack with the hottest plate (steady-state estimate), or null without stacks.
+const StackFigures* hottestStack(const SupplyReport& r) {
+  const StackFigures* h = nullptr;
+  for (const auto& st : r.stacks)
+    if (!h || st.temperatureSteady > h->temperatureSteady) h = &st;
+  return h;
 }
 
 }  // namespace
@@ -122,6 +148,25 @@ std::string reportText(const SupplyReport& r) {
     line(fmt::format("figures over {} settled cycle(s) of {:g} Hz, {:.4f} to {:.4f} s{}", r.cycles,
                      r.frequency, r.window0, r.window1, r.settled ? "" : " (NOT settled)"));
   line("");
+  line("OVERVIEW");
+  line(fmt::format("  output {}, {}; overall {}", siValue(r.output.mean, "V"),
+                   siValue(r.output.loadCurrent, "A"), r.worst));
+  if (const StackFigures* h = hottestStack(r))
+    line(fmt::format("  hottest plate in {}: {:.1f} degC steady-state estimate (limit {:.0f} degC)",
+                     h->name, toC(h->temperatureSteady), toC(h->temperatureLimit)));
+  if (!r.stacks.empty()) {
+    const auto rows = overviewRows(r);
+    std::vector<std::size_t> width(rows.front().size(), 0);
+    for (const auto& row : rows)
+      for (std::size_t c = 0; c < row.size(); ++c) width[c] = std::max(width[c], row[c].size());
+    for (const auto& row : rows) {
+      std::string l = " ";
+      for (std::size_t c = 0; c < row.size(); ++c)
+        l += " " + (c + 1 < row.size() ? fmt::format("{:<{}}", row[c], width[c]) : row[c]);
+      line(l);
+    }
+  }
+  line("");
   if (!r.failures.empty()) {
     line("FAILURE");
     for (const auto& v : failureVerdicts(r.failures)) s += detail::listItem(v);
@@ -129,38 +174,37 @@ std::string reportText(const SupplyReport& r) {
   }
   const auto& o = r.output;
   line("OUTPUT");
-  line(fmt::format("  DC voltage            {:10.3f} V", o.mean));
+  line(fmt::format("  DC voltage            {:>10}", siValue(o.mean, "V")));
+  line(fmt::format("  ripple                {:>10} peak-to-peak, {} rms (ripple factor {:.4f})",
+                   siValue(o.ripplePeakToPeak, "V"), siValue(o.rippleRms, "V"), o.rippleFactor));
+  line(fmt::format("  load current          {:>10}", siValue(o.loadCurrent, "A")));
   line(fmt::format(
-      "  ripple                {:10.3f} V peak-to-peak, {:.3f} V rms (ripple factor {:.4f})",
-      o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
-  line(fmt::format("  load current          {:10.4f} A", o.loadCurrent));
-  line(fmt::format(
-      "  output power          {:10.3f} W{}", o.outputPower,
+      "  output power          {:>10}{}", siValue(o.outputPower, "W"),
       o.loadState.empty() ? "" : fmt::format(" (the load is a battery, {})", o.loadState)));
-  line(fmt::format(
-      "  input power           {:10.3f} W from {}   efficiency {}   power factor {:.3f}",
-      o.inputPower, o.inputs.empty() ? "no source" : fmt::format("{}", fmt::join(o.inputs, ", ")),
-      o.loadState == "discharging" ? std::string("none (the load discharges)")
-                                   : fmt::format("{:.1f} %", 100 * o.efficiency),
-      o.powerFactor));
+  line(fmt::format("  input power           {:>10} from {}   efficiency {}   power factor {:.3f}",
+                   siValue(o.inputPower, "W"),
+                   o.inputs.empty() ? "no source" : fmt::format("{}", fmt::join(o.inputs, ", ")),
+                   o.loadState == "discharging" ? std::string("none (the load discharges)")
+                                                : fmt::format("{:.1f} %", 100 * o.efficiency),
+                   o.powerFactor));
   for (const auto& b : o.batteries)
-    line(fmt::format("  battery {:<14}{:10.3f} W, {:.4g} A: {}", b.name, b.power, b.current,
-                     b.state));
+    line(fmt::format("  battery {:<14}{:>10}, {}: {}", b.name, siValue(b.power, "W"),
+                     siValue(b.current, "A"), b.state));
   if (!o.losses.empty()) line("  losses                " + lossSummary(o.losses));
   if (o.hasTransformer)
-    line(fmt::format("  transformer secondary {:10.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent,
-                     o.secondaryVA));
+    line(fmt::format("  transformer secondary {:>10} rms, {:.4g} VA",
+                     siValue(o.secondaryRmsCurrent, "A"), o.secondaryVA));
   for (const auto& st : r.stacks) {
     line("");
     line(fmt::format("STACK {}: {} x {} plate(s) of {} ({}, {}), {} load", st.name, st.arms,
                      st.plates, st.type, st.material, st.mode, st.loadKind));
     line(fmt::format(
-        "  forward current       {:.4f} A average, {:.4f} A rms, {:.4f} A peak{}",
-        st.currentAverage, st.currentRms, st.currentPeak,
-        st.surgeKnown ? fmt::format("; switch-on surge {:.3f} A", st.surgePeak) : std::string()));
-    line(fmt::format(
-        "  dissipation           {:.3f} W forward + {:.3f} W reverse ({:.3f} W per plate)",
-        st.powerForward, st.powerReverse, st.powerPerPlate));
+        "  forward current       {} average, {} rms, {} peak{}", siValue(st.currentAverage, "A"),
+        siValue(st.currentRms, "A"), siValue(st.currentPeak, "A"),
+        st.surgeKnown ? "; switch-on surge " + siValue(st.surgePeak, "A") : std::string()));
+    line(fmt::format("  dissipation           {} forward + {} reverse ({} per plate)",
+                     siValue(st.powerForward, "W"), siValue(st.powerReverse, "W"),
+                     siValue(st.powerPerPlate, "W")));
     line(fmt::format(
         "  hottest plate         {:.1f} degC at end of run, {}, limit {:.0f} degC, destroyed at "
         "{:.0f} degC",
@@ -285,6 +329,21 @@ std::string reportJson(const SupplyReport& r) {
 
 /// One CSV field per RFC 4180 section 2: quoted when it holds a comma, a double quote or a line
 /// break (signal names such as "v:b,gnd" do), with each double quote doubled.
+std::string escapeJs(const std::string& text) {
+  std::string o;
+  for (char c : text) {
+    if (c == '"' || c == '\\')
+      o += std::string("\\") + c;
+    else if (c == '<')
+      o += "\\u003c";  // never "</script>" inside a script
+    else if (static_cast<unsigned char>(c) < 0x20)
+      o += fmt::format("\\u{:04x}", static_cast<int>(c));
+    else
+      o += c;
+  }
+  return o;
+}
+
 std::string csvField(const std::string& text) {
   if (text.find_first_of(",\"\r\n") == std::string::npos) return text;
   std::string q = "\"";
@@ -309,191 +368,51 @@ std::string resultCsv(const Result& r) {
   return s;
 }
 
-std::string svgPlot(const std::string& title, const std::string& xLabel, const std::string& yLabel,
-                    const std::vector<PlotSeries>& series) {
-  const double W = 720, H = 360, L = 80, R = 150, T = 40, B = 50;
-  double x0 = INFINITY, x1 = -INFINITY, y0 = INFINITY, y1 = -INFINITY;
-  for (const auto& s : series)
-    for (std::size_t k = 0; k < s.x.size(); ++k) {
-      x0 = std::min(x0, s.x[k]);
-      x1 = std::max(x1, s.x[k]);
-      y0 = std::min(y0, s.y[k]);
-      y1 = std::max(y1, s.y[k]);
-    }
-  if (!(x1 > x0)) x1 = x0 + 1.0;
-  if (!(y1 > y0)) {
-    y0 -= 0.5;
-    y1 += 0.5;
-  }
-  const double pad = 0.05 * (y1 - y0);
-  y0 -= pad;
-  y1 += pad;
-  auto px = [&](double x) { return L + (x - x0) / (x1 - x0) * (W - L - R); };
-  auto py = [&](double y) { return H - B - (y - y0) / (y1 - y0) * (H - T - B); };
-  static const char* palette[] = {"#1f5fa8", "#c0392b", "#2e8b57", "#8e44ad", "#d68910", "#17a2b8",
-                                  "#6d4c41", "#e91e63", "#455a64", "#7cb342", "#ff7043", "#3949ab"};
-  std::string s = fmt::format(
-      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} "
-      "{1}\" "
-      "font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"{0}\" height=\"{1}\" "
-      "fill=\"white\"/>\n"
-      "<text x=\"{2}\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{3}</text>\n",
-      W, H, L, escapeHtml(title));
-  for (double tx : ticks(x0, x1))
-    s += fmt::format(
-        "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#e4e4e4\"/>"
-        "<text x=\"{0:.1f}\" y=\"{3}\" text-anchor=\"middle\">{4:g}</text>\n",
-        px(tx), T, H - B, H - B + 16, std::abs(tx) < 1e-9 * (x1 - x0) ? 0.0 : tx);
-  for (double ty : ticks(y0, y1))
-    s += fmt::format(
-        "<line x1=\"{0}\" y1=\"{1:.1f}\" x2=\"{2}\" y2=\"{1:.1f}\" stroke=\"#e4e4e4\"/>"
-        "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5:g}</text>\n",
-        L, py(ty), W - R, L - 6, py(ty) + 4, std::abs(ty) < 1e-9 * (y1 - y0) ? 0.0 : ty);
-  s += fmt::format(
-      "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#444\"/>\n", L, T,
-      W - L - R, H - T - B);
-  s += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n", (L + W - R) / 2,
-                   H - 12, escapeHtml(xLabel));
-  s += fmt::format(
-      "<text x=\"18\" y=\"{0}\" text-anchor=\"middle\" transform=\"rotate(-90 18 "
-      "{0})\">{1}</text>\n",
-      (T + H - B) / 2, escapeHtml(yLabel));
-  for (std::size_t k = 0; k < series.size(); ++k) {
-    const auto& sr = series[k];
-    const char* colour = palette[k % 12];
-    const std::size_t stride = std::max<std::size_t>(1, sr.x.size() / 3000);
-    std::string pts;
-    for (std::size_t i = 0; i < sr.x.size(); i += stride)
-      pts += fmt::format("{:.1f},{:.1f} ", px(sr.x[i]), py(sr.y[i]));
-    s += fmt::format("<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"1.3\" points=\"{}\"/>\n",
-                     colour, pts);
-    s += fmt::format(
-        "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"2\"/>"
-        "<text x=\"{4}\" y=\"{5}\">{6}</text>\n",
-        W - R + 10, T + 10 + 16 * k, W - R + 28, colour, W - R + 32, T + 14 + 16 * k,
-        escapeHtml(sr.name));
-  }
-  s += "</svg>\n";
-  return s;
-}
-
-namespace {
-
-/// A warm-up's plots over minutes: the output's period mean, minimum and maximum, and per stack
-/// its hottest plate, lowest forming state and leakage current.
-std::vector<std::pair<std::string, std::string>> warmUpPlots(const Netlist& nl,
-                                                             const Result& series) {
-  std::vector<std::pair<std::string, std::string>> plots;
-  std::vector<double> minutes = series.time();
-  for (double& m : minutes) m /= 60.0;
-  const std::string v = fmt::format("v:{},{}", nl.output.positive, nl.output.negative);
-  if (series.has(v))
-    plots.emplace_back("warm-up-output",
-                       svgPlot("Output voltage during the warm-up", "time (min)", "V",
-                               {{"period mean", minutes, series[v]},
-                                {"period minimum", minutes, series["min(" + v + ")"]},
-                                {"period maximum", minutes, series["max(" + v + ")"]}}));
-  std::vector<PlotSeries> temps, forming, leakage;
-  for (const auto& d : nl.circuit.devices()) {
-    const std::string n = d->name();
-    if (!series.has("temp:" + n) || !series.has("form:" + n)) continue;
-    PlotSeries t{"hottest plate of " + n, minutes, series["temp:" + n]};
-    for (double& x : t.y) x -= 273.15;
-    temps.push_back(std::move(t));
-    forming.push_back({"lowest forming state of " + n, minutes, series["form:" + n]});
-    if (series.has("irev:" + n)) {
-      PlotSeries l{"mean leakage of " + n, minutes, series["irev:" + n]};
-      for (double& x : l.y) x *= 1e3;
-      leakage.push_back(std::move(l));
-    }
-  }
-  if (!temps.empty()) {
-    plots.emplace_back("warm-up-temperatures", svgPlot("Plate temperatures during the warm-up",
-                                                       "time (min)", "degC", temps));
-    plots.emplace_back("warm-up-forming",
-                       svgPlot("Forming state during the warm-up", "time (min)", "F", forming));
-  }
-  if (!leakage.empty())
-    plots.emplace_back("warm-up-leakage", svgPlot("Reverse (leakage) current during the warm-up",
-                                                  "time (min)", "mA", leakage));
-  return plots;
-}
-
-}  // namespace
-
-std::vector<std::pair<std::string, std::string>> runPlots(const Netlist& nl,
-                                                          const RunOutcome& out) {
-  std::vector<std::pair<std::string, std::string>> plots;
-  if (!out.hasReport) return plots;
-  const SupplyReport& rep = out.report;
-  const AnalysisOutcome& behind = out.analyses.at(out.reportAnalysis);
-  if (behind.request.kind == AnalysisRequest::Kind::WarmUp) return warmUpPlots(nl, behind.result);
-  const Result* r = &behind.result;
-  const auto& t = r->time();
-  auto window = [&](const std::vector<double>& y, std::vector<double>& xs,
-                    std::vector<double>& ys) {
-    for (std::size_t k = 0; k < t.size(); ++k)
-      if (t[k] >= rep.window0) {
-        xs.push_back(t[k]);
-        ys.push_back(y[k]);
-      }
-  };
-  const std::string outSig = fmt::format("v:{},{}", nl.output.positive, nl.output.negative);
-  plots.emplace_back("output-voltage",
-                     svgPlot("Output voltage", "time (s)", "V", {{outSig, t, (*r)[outSig]}}));
-  std::vector<PlotSeries> temps;
-  for (const auto& st : rep.stacks) {
-    const std::string stem = safeFileStem(st.name);
-    PlotSeries cur{"i:" + st.name, {}, {}}, rev{"vrev:" + st.name, {}, {}};
-    window((*r)["i:" + st.name], cur.x, cur.y);
-    window((*r)["vrev:" + st.name], rev.x, rev.y);
-    plots.emplace_back(stem + "-current", svgPlot(st.name + ": current over the settled window",
-                                                  "time (s)", "A", {cur}));
-    plots.emplace_back(
-        stem + "-reverse-voltage",
-        svgPlot(st.name + ": largest reverse voltage per plate", "time (s)", "V", {rev}));
-    std::vector<PlotSeries> iv;
-    const int traced = std::min(st.plates * st.arms, 12);
-    for (int n = 1; n <= traced; ++n) {
-      const int arm = (n - 1) / st.plates + 1;
-      PlotSeries s{fmt::format("plate {}", n), {}, {}};
-      std::vector<double> xs, v, ys, i;
-      window((*r)[fmt::format("vrev:{}#{}", st.name, n)], xs, v);
-      xs.clear();
-      window((*r)[fmt::format("iarm:{}#{}", st.name, arm)], xs, i);
-      for (double& x : v) x = -x;
-      s.x = v;
-      s.y = i;
-      iv.push_back(std::move(s));
-    }
-    plots.emplace_back(stem + "-plate-iv",
-                       svgPlot(st.name + ": plate I-V trajectories", "plate voltage (V)", "A", iv));
-    PlotSeries tp{"hottest plate of " + st.name, t, (*r)["temp:" + st.name]};
-    for (double& v : tp.y) v -= 273.15;
-    temps.push_back(std::move(tp));
-  }
-  if (!temps.empty())
-    plots.emplace_back("temperatures", svgPlot("Plate temperatures", "time (s)", "degC", temps));
-  return plots;
-}
-
 std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   const SupplyReport& r = out.report;
-  std::string h = "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>" +
-                  escapeHtml(r.title.empty() ? nl.path : r.title) +
-                  "</title>\n<style>"
-                  "body{font-family:sans-serif;max-width:1000px;margin:2em auto;color:#222}"
-                  "table{border-collapse:collapse;margin:0.5em 0}td,th{border:1px solid "
-                  "#bbb;padding:3px 8px;text-align:left}"
-                  ".ok{background:#e3f1e3}.marginal{background:#fff3cd}.exceeds{background:#f8d7da}"
-                  ".fails{background:#e6a0a8}"
-                  ".caution{border-left:4px solid #b03a2e;padding-left:8px}</style></head><body>\n";
+  std::string h =
+      "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+      "<meta name=\"viewport\" content=\"width=device-width\"><title>" +
+      escapeHtml(r.title.empty() ? nl.path : r.title) +
+      "</title>\n<style>"
+      "body{font-family:sans-serif;max-width:1280px;margin:1.5em auto;padding:0 1em;"
+      "color:#222}"
+      "table{border-collapse:collapse;margin:0.5em 0}td,th{border:1px solid "
+      "#bbb;padding:3px 8px;text-align:left}"
+      ".ok{background:#e3f1e3}.marginal{background:#fff3cd}.exceeds{background:#f8d7da}"
+      ".fails{background:#e6a0a8}"
+      ".caution{border-left:4px solid #b03a2e;padding-left:8px}</style>\n" +
+      detail::plotStyleHtml() + "</head><body>\n";
   h += "<h1>" + escapeHtml(r.title.empty() ? "Supply report" : r.title) + "</h1>\n";
   h += fmt::format(
-      "<p>File {}; ambient {:.1f} &deg;C; {} settled cycle(s) at {:g} Hz ({:.4f}-{:.4f} s){}. "
-      "Overall: <span class=\"{}\">{}</span>.</p>\n",
+      "<p>File {}; ambient {:.1f} &deg;C; {} settled cycle(s) at {:g} Hz ({:.4f}-{:.4f} "
+      "s){}.</p>\n",
       escapeHtml(r.file), toC(r.ambient), r.cycles, r.frequency, r.window0, r.window1,
-      r.settled ? "" : " &mdash; not settled", r.worst, r.worst);
+      r.settled ? "" : " &mdash; not settled");
+  const auto& o = r.output;
+  h += "<h2>Overview</h2>\n";
+  h += fmt::format("<p>Output {}, {}. Overall: <span class=\"{}\">{}</span>.", siValue(o.mean, "V"),
+                   siValue(o.loadCurrent, "A"), r.worst, r.worst);
+  if (const StackFigures* hs = hottestStack(r))
+    h += fmt::format(
+        " Hottest plate in {}: {:.1f} &deg;C steady-state estimate (limit {:.0f} "
+        "&deg;C).",
+        escapeHtml(hs->name), toC(hs->temperatureSteady), toC(hs->temperatureLimit));
+  h += "</p>\n";
+  if (!r.stacks.empty()) {
+    const auto rows = overviewRows(r);
+    h += "<table class=\"overview\"><tr>";
+    for (const auto& c : rows.front()) h += "<th>" + escapeHtml(c) + "</th>";
+    h += "</tr>";
+    for (std::size_t k = 1; k < rows.size(); ++k) {
+      h += "<tr>";
+      for (std::size_t c = 0; c < rows[k].size(); ++c)
+        h += (c + 1 == rows[k].size() ? "<td class=\"" + r.stacks[k - 1].worst + "\">" : "<td>") +
+             escapeHtml(rows[k][c]) + "</td>";
+      h += "</tr>";
+    }
+    h += "</table>\n";
+  }
   if (!r.failures.empty()) {
     h += "<h2>Failure</h2>\n";
     for (const auto& v : failureVerdicts(r.failures))
@@ -502,27 +421,28 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   h += "<h2>Cautions</h2>\n";
   for (const auto& c : r.cautions) h += "<p class=\"caution\">" + escapeHtml(c) + "</p>\n";
   h += "<p><em>" + escapeHtml(r.disclaimer) + "</em></p>\n";
-  const auto& o = r.output;
   h += "<h2>Output</h2>\n<table>";
   auto row = [&](const std::string& k, const std::string& v) {
     h += "<tr><th>" + k + "</th><td>" + v + "</td></tr>";
   };
-  row("DC voltage", fmt::format("{:.3f} V", o.mean));
-  row("ripple", fmt::format("{:.3f} V peak-to-peak, {:.3f} V rms, factor {:.4f}",
-                            o.ripplePeakToPeak, o.rippleRms, o.rippleFactor));
-  row("load current", fmt::format("{:.4f} A", o.loadCurrent));
-  row("output / input power", fmt::format("{:.3f} W / {:.3f} W, efficiency {:.1f} %", o.outputPower,
-                                          o.inputPower, 100 * o.efficiency));
+  row("DC voltage", siValue(o.mean, "V"));
+  row("ripple",
+      fmt::format("{} peak-to-peak, {} rms, factor {:.4f}", siValue(o.ripplePeakToPeak, "V"),
+                  siValue(o.rippleRms, "V"), o.rippleFactor));
+  row("load current", siValue(o.loadCurrent, "A"));
+  row("output / input power",
+      fmt::format("{} / {}, efficiency {:.1f} %", siValue(o.outputPower, "W"),
+                  siValue(o.inputPower, "W"), 100 * o.efficiency));
   if (!o.loadState.empty()) row("battery load", o.loadState);
   if (!o.inputs.empty()) row("input", escapeHtml(fmt::format("{}", fmt::join(o.inputs, ", "))));
   for (const auto& b : o.batteries)
     row("battery " + escapeHtml(b.name),
-        fmt::format("{:.3f} W, {:.4g} A, {}", b.power, b.current, b.state));
+        fmt::format("{}, {}, {}", siValue(b.power, "W"), siValue(b.current, "A"), b.state));
   if (!o.losses.empty()) row("losses", escapeHtml(lossSummary(o.losses)));
   row("input power factor", fmt::format("{:.3f}", o.powerFactor));
   if (o.hasTransformer)
     row("transformer secondary",
-        fmt::format("{:.4f} A rms, {:.2f} VA", o.secondaryRmsCurrent, o.secondaryVA));
+        fmt::format("{} rms, {:.4g} VA", siValue(o.secondaryRmsCurrent, "A"), o.secondaryVA));
   h += "</table>\n";
   for (const auto& s : r.stacks) {
     h += fmt::format(
@@ -530,11 +450,13 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
         "load.</p>\n<table>",
         escapeHtml(s.name), s.arms, s.plates, escapeHtml(s.type), escapeHtml(s.material), s.mode,
         s.loadKind);
-    row("forward current", fmt::format("{:.4f} A average, {:.4f} A rms, {:.4f} A peak",
-                                       s.currentAverage, s.currentRms, s.currentPeak));
-    if (s.surgeKnown) row("switch-on surge", fmt::format("{:.3f} A", s.surgePeak));
-    row("dissipation", fmt::format("{:.3f} W forward, {:.3f} W reverse, {:.3f} W per plate",
-                                   s.powerForward, s.powerReverse, s.powerPerPlate));
+    row("forward current",
+        fmt::format("{} average, {} rms, {} peak", siValue(s.currentAverage, "A"),
+                    siValue(s.currentRms, "A"), siValue(s.currentPeak, "A")));
+    if (s.surgeKnown) row("switch-on surge", siValue(s.surgePeak, "A"));
+    row("dissipation",
+        fmt::format("{} forward, {} reverse, {} per plate", siValue(s.powerForward, "W"),
+                    siValue(s.powerReverse, "W"), siValue(s.powerPerPlate, "W")));
     row("hottest plate",
         fmt::format("{:.1f} &deg;C at end, {:.1f} &deg;C steady estimate, limit {:.0f} &deg;C",
                     toC(s.temperatureEnd), toC(s.temperatureSteady), toC(s.temperatureLimit)));
@@ -561,11 +483,24 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
     h += "</ul>\n";
   }
   h += "<h2>Plots</h2>\n";
-  for (const auto& [name, svg] : runPlots(nl, out)) h += "<div>" + svg + "</div>\n";
+  const auto plots = runPlotList(nl, out);
+  for (std::size_t k = 0; k < plots.size(); ++k) {
+    // The whole run and its settled window side by side.
+    const bool pair = plots[k].name == "output-voltage" && k + 1 < plots.size() &&
+                      plots[k + 1].name == "output-ripple";
+    if (pair) {
+      h += "<div class=\"pair\">" + detail::plotFigureHtml(plots[k], k) +
+           detail::plotFigureHtml(plots[k + 1], k + 1) + "</div>\n";
+      ++k;
+    } else {
+      h += detail::plotFigureHtml(plots[k], k);
+    }
+  }
   h += fmt::format(
       "<p><small>libdisc {}; {} steps, {} rejected, {} Newton iterations, {:.3f} s.</small></p>\n",
       kVersion, r.stats.acceptedSteps, r.stats.rejectedSteps, r.stats.newtonIterations,
       r.stats.wallSeconds);
+  h += detail::plotScriptHtml(plots);
   h += "</body></html>\n";
   return h;
 }

@@ -369,7 +369,21 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
           "re-forms (state {:.2f} at the end of the run): raise the voltage slowly, e.g. through a "
           "variac or a series lamp, and watch for heat",
           s.name, s.formingStart, s.formingEnd));
+    for (const auto& v : s.verdicts)
+      if (rank(v.level) > rank(s.worst)) s.worst = v.level;
     rep.stacks.push_back(std::move(s));
+  }
+  // Paralleled stacks: the same anode and cathode nodes; each one's share of their current.
+  for (std::size_t a = 0; a < stacks.size(); ++a) {
+    double sum = 0.0;
+    std::string names;
+    for (std::size_t b = 0; b < stacks.size(); ++b)
+      if (stacks[b]->terminals() == stacks[a]->terminals()) {
+        sum += rep.stacks[b].currentAverage;
+        names += (names.empty() ? "" : " ") + stacks[b]->name();
+      }
+    rep.stacks[a].paralleled = names;
+    rep.stacks[a].parallelShare = sum > 0.0 ? rep.stacks[a].currentAverage / sum : 1.0;
   }
   // Electrolytics and thermistors against their own ratings.
   for (const auto& d : c.devices()) {
