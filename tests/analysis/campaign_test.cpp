@@ -213,10 +213,20 @@ TEST_CASE("A campaign's table is the same on 1 thread, 2 and every core, in any 
   for (std::size_t r = 0; r < one.rows(); ++r)
     CHECK(one["SR1.arm1.share"].values[r] + one["SR1.arm2.share"].values[r] ==
           Approx(1.0).epsilon(1e-9));
-  // Columns hold the figures they name: the input delivers the output and the losses; a
-  // stack's rms current is at least its average (Cauchy-Schwarz); no plate failed.
+  // Columns hold the figures they name: the input delivers the output and the losses
+  // (Tellegen's theorem: the sum of v i over all branches vanishes, so the balance is off only
+  // by the solver's residual, reltol 1e-3 by default, times the powers involved); efficiency
+  // is at most 1; a stack's rms current is at least its average (Cauchy-Schwarz); no plate
+  // failed.
+  const double reltol = nl.analyses.back().transient.tol.reltol;
   for (std::size_t r = 0; r < one.rows(); ++r) {
-    CHECK(one["output.input_power"].values[r] > one["output.power"].values[r]);
+    const double in = one["output.input_power"].values[r];
+    const double out = one["output.power"].values[r];
+    const double losses = one["output.losses"].values[r];
+    CHECK(losses > 0.0);
+    CHECK(std::abs(in - out - losses) <= reltol * (std::abs(in) + std::abs(out) + losses));
+    CHECK(one["output.efficiency"].values[r] <= 1.0);
+    CHECK(one["output.efficiency"].values[r] == Approx(out / in));
     CHECK(one["SR1.current_rms"].values[r] >= one["SR1.current_average"].values[r]);
     CHECK(one["failures"].values[r] == 0);
   }

@@ -254,6 +254,7 @@ class Layout {
         if (hasSpread(*s)) num(s->name() + ".seed", "");
     if (report_) {
       for (const auto& f : kOutputFigures) num(std::string("output.") + f.name, f.unit);
+      num("output.losses", "W");
       num("output.settled", "");
       num("failures", "");
       text("worst");
@@ -444,6 +445,12 @@ class Layout {
     const SupplyReport rep = makeSupplyReport(variant, r);
     const auto& out = rep.output;
     for (const auto& f : kOutputFigures) w.num(out.*f.member);
+    // Everything the input feeds besides the load, so that a row's energy balance can be
+    // checked: input_power = power + losses (Tellegen's theorem).
+    double losses = 0.0;
+    for (const auto& l : out.losses) losses += l.power;
+    for (const auto& b : out.batteries) losses += b.power;
+    w.num(losses);
     w.num(rep.settled ? 1.0 : 0.0);
     w.num(static_cast<double>(rep.failures.size()));
     w.word(rep.worst);
