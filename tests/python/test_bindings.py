@@ -317,3 +317,15 @@ def test_stack_storage_temperature_and_starting_age():
         math.exp(-20 / tau * w(308.15, se.get("storage_activation_eV"))), rel=1e-9)
     assert r["hours:SR1"][0] == pytest.approx(
         15000 * w(318.15, se.get("age_activation_eV")), rel=1e-9)
+
+
+def test_meter_report_from_python():
+    # A mean-responding meter's sweeps reach Python through the report dict (docs/report.md).
+    _, report = disc.load(NETLISTS / "meter-rectifier-cuox.disc").run()
+    meter = report["meter"]
+    assert meter["movement"] == "RMETER"
+    assert meter["range_V"] == 10.0
+    assert len(meter["levels"]) == 6
+    by_f = {p["frequency_Hz"]: p for p in meter["frequencies"]}
+    assert by_f[10000.0]["reading_V"] < by_f[50.0]["reading_V"]
+    assert [p["kind"] for p in report["parts"]] == ["meter"]

@@ -25,6 +25,7 @@
 #include "disc/error.hpp"
 #include "disc/failure.hpp"
 #include "disc/measures.hpp"
+#include "disc/meter.hpp"
 #include "disc/netlist.hpp"
 #include "disc/plate_curve.hpp"
 #include "disc/plate_fit.hpp"

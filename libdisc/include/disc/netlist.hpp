@@ -59,7 +59,14 @@ struct OutputSpec {
   std::string positive, negative, load;
   std::string input;  ///< the source whose power is the input (empty: chosen by the report)
   enum class LoadKind { Auto, Capacitive, Resistive } kind = LoadKind::Auto;
+  /// An instrument output (`full-scale=`, `range=`): the load is a mean-responding moving-coil
+  /// movement whose full-scale current `fullScale` (A) marks `range` (V rms of a sine) on the
+  /// scale. 0 when the output is not an instrument.
+  double fullScale = 0.0, range = 0.0;
+  double accuracyClass =
+      2.5;  ///< `class=`: IEC 60051 class index, the permitted error in % of range
   bool given = false;
+  bool meter() const { return fullScale > 0.0; }
 };
 
 /// The word of an analysis kind in the language: "operating-point", "transient", "periodic",

@@ -1,9 +1,11 @@
 // The supply report: what a restorer needs before switching on, computed from a run.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
+#include "disc/meter.hpp"
 #include "disc/netlist.hpp"
 #include "disc/result.hpp"
 
@@ -108,7 +110,10 @@ struct SupplyReport {
   double window0 = 0, window1 = 0;  ///< s
   OutputFigures output;
   std::vector<StackFigures> stacks;
-  std::vector<PartFigures> parts;  ///< electrolytics and thermistors with ratings
+  std::vector<PartFigures> parts;  ///< electrolytics, thermistors and a meter with ratings
+  /// The instrument, when the output is a meter (`full-scale=`, `range=`); its verdicts are
+  /// the part named after the load, of kind "meter".
+  std::optional<MeterFigures> meter;
   std::vector<std::string> warnings;
   std::vector<std::string> cautions;
   std::string disclaimer;
@@ -127,6 +132,11 @@ Verdict judgeFigure(std::string figure, double value, double limit, std::string 
 std::vector<std::string> reportSignals(const Netlist& netlist);
 /// Computes the report from a transient result that recorded reportSignals().
 SupplyReport makeSupplyReport(const Netlist& netlist, const Result& transient);
+
+/// The meter's verdicts from `report.meter` (the reading at the input, and the worst of the
+/// level sweep when present), as the part named after the load; the report's worst level
+/// follows.
+void judgeMeter(SupplyReport& report, const std::string& load);
 
 /// What in a circuit can hurt someone: chooses the cautions of a report.
 struct Hazards {

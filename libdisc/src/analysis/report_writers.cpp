@@ -124,6 +124,55 @@ std::vector<std::vector<std::string>> overviewRows(const SupplyReport& r) {
 }
 
 /// The stack with the hottest plate (steady-state estimate), or null without stacks.
+/// The meter's readings as rows: applied rms, frequency, reading, error in % of range.
+std::vector<std::vector<std::string>> meterRows(const MeterFigures& m) {
+  std::vector<std::vector<std::string>> rows{
+      {"sweep", "applied", "frequency", "reading", "error, % of range"}};
+  auto add = [&](const char* sweep, const MeterPoint& p) {
+    rows.push_back({sweep, siValue(p.rms, "V"), siValue(p.frequency, "Hz"), siValue(p.reading, "V"),
+                    fmt::format("{:+.2f}", 100 * p.error)});
+  };
+  add("input", m.atInput);
+  for (const auto& p : m.levels) add("range", p);
+  for (const auto& p : m.frequencies) add("frequency", p);
+  return rows;
+}
+
+/// The frequencies, around the netlist's own, over which the meter stays within its class.
+std::string meterBand(const MeterFigures& m) {
+  if (m.frequencies.empty()) return "";
+  const double limit = m.accuracyClass / 100.0;
+  const MeterPoint* lo = nullptr;
+  const MeterPoint* hi = nullptr;
+  // The swept points in rising frequency, the run's own frequency among them.
+  std::vector<const MeterPoint*> f;
+  for (const auto& p : m.frequencies) f.push_back(&p);
+  std::sort(f.begin(), f.end(), [](auto* a, auto* b) { return a->frequency < b->frequency; });
+  for (const MeterPoint* p : f) {
+    if (std::abs(p->error) <= limit) {
+      if (!lo) lo = p;
+      hi = p;
+    } else if (lo) {
+      break;
+    }
+  }
+  if (!lo) return fmt::format("outside class {:g} at every frequency swept", m.accuracyClass);
+  std::string s = fmt::format("within class {:g} from {} to {}", m.accuracyClass,
+                              siValue(lo->frequency, "Hz"), siValue(hi->frequency, "Hz"));
+  if (hi != f.back())
+    s += fmt::format("; at {} it reads {:.1f} % of range {}", siValue(f.back()->frequency, "Hz"),
+                     100 * std::abs(f.back()->error), f.back()->error < 0 ? "low" : "high");
+  return s;
+}
+
+std::string meterHeading(const MeterFigures& m) {
+  return fmt::format(
+      "meter {}: a {} movement marks {} rms at full scale; accuracy class {:g} allows {} "
+      "(IEC 60051)",
+      m.movement, siValue(m.fullScale, "A"), siValue(m.range, "V"), m.accuracyClass,
+      siValue(m.accuracyClass / 100.0 * m.range, "V"));
+}
+
 const StackFigures* hottestStack(const SupplyReport& r) {
   const StackFigures* h = nullptr;
   for (const auto& st : r.stacks)
@@ -232,6 +281,16 @@ std::string reportText(const SupplyReport& r) {
       line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value,
                        v.unit, v.limit, v.unit));
   }
+  if (r.meter) {
+    line("");
+    line("METER");
+    line("  " + meterHeading(*r.meter));
+    const auto rows = meterRows(*r.meter);
+    for (const auto& row : rows)
+      line(fmt::format("  {:<10} {:>10} {:>10} {:>10} {:>18}", row[0], row[1], row[2], row[3],
+                       row[4]));
+    if (const std::string band = meterBand(*r.meter); !band.empty()) line("  " + band);
+  }
   line("");
   line(fmt::format("OVERALL: {}", r.worst));
   s += detail::closingBlock(r.warnings, r.cautions, r.disclaimer);
@@ -313,6 +372,28 @@ std::string reportJson(const SupplyReport& r) {
     auto v = nlohmann::json::array();
     for (const auto& x : part.verdicts) v.push_back(verdictJson(x));
     j["parts"].push_back({{"name", part.name}, {"kind", part.kind}, {"verdicts", v}});
+  }
+  if (r.meter) {
+    const auto& m = *r.meter;
+    auto points = [](const std::vector<MeterPoint>& ps) {
+      nlohmann::json a = nlohmann::json::array();
+      for (const auto& p : ps)
+        a.push_back({{"frequency_Hz", p.frequency},
+                     {"rms_V", p.rms},
+                     {"reading_V", p.reading},
+                     {"error_of_range", p.error}});
+      return a;
+    };
+    j["meter"] = {{"full_scale_A", m.fullScale},
+                  {"range_V", m.range},
+                  {"accuracy_class", m.accuracyClass},
+                  {"movement", m.movement},
+                  {"source", m.source},
+                  {"at_input", points({m.atInput}).front()},
+                  {"levels", points(m.levels)},
+                  {"frequencies", points(m.frequencies)}};
+  } else {
+    j["meter"] = nullptr;
   }
   j["failures"] = failuresJson(r.failures);
   j["overall"] = r.worst;
@@ -425,6 +506,16 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   auto row = [&](const std::string& k, const std::string& v) {
     h += "<tr><th>" + k + "</th><td>" + v + "</td></tr>";
   };
+  auto verdictTable = [&](const std::vector<Verdict>& verdicts) {
+    h += "<table><tr><th>figure</th><th>value</th><th>limit</th><th>verdict</th><th>rule</th></tr>";
+    for (const auto& v : verdicts)
+      h += fmt::format(
+          "<tr class=\"{}\"><td>{}</td><td>{:.3g} {}</td><td>{:.3g} "
+          "{}</td><td>{}</td><td>{}</td></tr>",
+          v.level, escapeHtml(v.figure), v.value, v.unit, v.limit, v.unit, v.level,
+          escapeHtml(v.rule));
+    h += "</table>\n";
+  };
   row("DC voltage", siValue(o.mean, "V"));
   row("ripple",
       fmt::format("{} peak-to-peak, {} rms, factor {:.4f}", siValue(o.ripplePeakToPeak, "V"),
@@ -467,15 +558,25 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
     }
     row("forming state",
         fmt::format("{:.3f} at start, {:.3f} at end", s.formingStart, s.formingEnd));
-    h += "</table>\n<table><tr><th>figure</th><th>value</th><th>limit</th><th>verdict</"
-         "th><th>rule</th></tr>";
-    for (const auto& v : s.verdicts)
-      h += fmt::format(
-          "<tr class=\"{}\"><td>{}</td><td>{:.3g} {}</td><td>{:.3g} "
-          "{}</td><td>{}</td><td>{}</td></tr>",
-          v.level, escapeHtml(v.figure), v.value, v.unit, v.limit, v.unit, v.level,
-          escapeHtml(v.rule));
     h += "</table>\n";
+    verdictTable(s.verdicts);
+  }
+  for (const auto& part : r.parts) {
+    h += fmt::format("<h2>{} {}</h2>\n", escapeHtml(part.kind), escapeHtml(part.name));
+    if (part.kind == "meter" && r.meter) {
+      h += "<p>" + escapeHtml(meterHeading(*r.meter)) + "</p>\n<table>";
+      const auto rows = meterRows(*r.meter);
+      for (std::size_t k = 0; k < rows.size(); ++k) {
+        h += "<tr>";
+        for (const auto& c : rows[k])
+          h += (k == 0 ? "<th>" : "<td>") + escapeHtml(c) + (k == 0 ? "</th>" : "</td>");
+        h += "</tr>";
+      }
+      h += "</table>\n";
+      if (const std::string band = meterBand(*r.meter); !band.empty())
+        h += "<p>" + escapeHtml(band) + "</p>\n";
+    }
+    verdictTable(part.verdicts);
   }
   if (!r.warnings.empty()) {
     h += "<h2>Warnings</h2><ul>";

@@ -6,6 +6,8 @@
 #include "disc/devices/stack.hpp"
 #include "disc/session.hpp"
 
+#include "disc/meter.hpp"
+
 namespace disc {
 
 std::vector<std::string> runSignals(const Netlist& nl, const std::vector<std::string>& extra) {
@@ -185,6 +187,9 @@ RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> pro
         break;
       }
     }
+    // A meter's reading over its range and over frequency: each point its own periodic steady
+    // state, so only for the run that makes the report.
+    if (reports && out.report.meter) sweepMeter(nl, out.report);
     out.analyses.push_back(std::move(ao));
     if (reports) {
       out.hasReport = true;

@@ -184,6 +184,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   for (const auto& d : c.devices())
     if (const Waveform* w = sourceWave(*d); w && w->frequency() > 0.0) anyAlternating = true;
   double vrms = 0, irms = 0, charging = 0, discharging = 0;
+  std::string firstVoltageInput;
   for (const auto& d : c.devices()) {
     const auto& term = d->terminals();
     const bool isLoad = nl.output.given && d->name() == nl.output.load;
@@ -203,6 +204,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
           vrms = measure::rms(t, r[fmt::format("v:{},{}", vname(c, term[0]), vname(c, term[1]))],
                               w0, w1);
           irms = measure::rms(t, r["i:" + d->name()], w0, w1);
+          firstVoltageInput = d->name();
         }
       } else {
         BatteryFigures b{d->name(), measure::mean(t, r["i:" + d->name()], w0, w1), p,
@@ -225,6 +227,21 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   const double useful = std::max(0.0, o.outputPower) + charging;
   o.efficiency = supplied > 0 && o.outputPower > 0 ? useful / supplied : 0.0;
   o.powerFactor = vrms * irms > 0 ? o.inputPower / (vrms * irms) : 0.0;
+  if (nl.output.meter()) {
+    // A moving-coil movement deflects with the mean of its current; the scale is marked in the
+    // rms of a sine, so it reads range x mean / full-scale current.
+    MeterFigures m;
+    m.fullScale = nl.output.fullScale;
+    m.range = nl.output.range;
+    m.accuracyClass = nl.output.accuracyClass;
+    m.movement = nl.output.load;
+    m.source = firstVoltageInput;
+    m.atInput.frequency = rep.frequency;
+    m.atInput.rms = vrms;
+    m.atInput.reading = m.range * std::abs(o.loadCurrent) / m.fullScale;
+    m.atInput.error = (m.atInput.reading - vrms) / m.range;
+    rep.meter = std::move(m);
+  }
   if (o.loadState == "discharging")
     rep.warnings.push_back(fmt::format(
         "the load {} is a battery that discharges ({:.3g} A out of it): the supply does not "
@@ -437,6 +454,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   for (const auto& s : rep.parts)
     for (const auto& v : s.verdicts)
       if (rank(v.level) > rank(rep.worst)) rep.worst = v.level;
+  judgeMeter(rep, nl.output.load);
   rep.failures = r.failures();
   if (!rep.failures.empty()) rep.worst = "fails";
   if (r.failed())
@@ -448,6 +466,39 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   rep.cautions = safetyCautions(hazardsOf(nl, &r));
   rep.disclaimer = simulationDisclaimer();
   return rep;
+}
+
+void judgeMeter(SupplyReport& rep, const std::string& load) {
+  if (!rep.meter) return;
+  const MeterFigures& m = *rep.meter;
+  const double limit = m.accuracyClass / 100.0 * m.range;
+  const std::string rule = fmt::format(
+      "|reading - true rms| against accuracy class {:g}: {:g} % of the {:g} V range (IEC "
+      "60051-1, the error as a percentage of the fiducial value)",
+      m.accuracyClass, m.accuracyClass, m.range);
+  PartFigures part{load, "meter", {}};
+  part.verdicts.push_back(judgeFigure(
+      "reading error at the input", std::abs(m.atInput.reading - m.atInput.rms), limit, "V", rule));
+  if (!m.levels.empty()) {
+    const auto worst = std::max_element(m.levels.begin(), m.levels.end(), [](auto& a, auto& b) {
+      return std::abs(a.error) < std::abs(b.error);
+    });
+    part.verdicts.push_back(judgeFigure(
+        fmt::format("largest reading error over the range (at {:.3g} V rms)", worst->rms),
+        std::abs(worst->reading - worst->rms), limit, "V", rule));
+  }
+  // Judged again after a sweep: the verdicts and warnings of the first judgement go.
+  std::erase_if(rep.parts, [&](const PartFigures& p) { return p.kind == "meter"; });
+  const std::string prefix = fmt::format("meter {}: ", load);
+  std::erase_if(rep.warnings, [&](const std::string& w) { return w.starts_with(prefix); });
+  for (const auto& v : part.verdicts) {
+    if (rank(v.level) > rank(rep.worst)) rep.worst = v.level;
+    if (v.level != "ok")
+      rep.warnings.push_back(fmt::format(
+          "{}{} is {:.3g} {}, {} the {:.3g} {} limit ({})", prefix, v.figure, v.value, v.unit,
+          v.level == "exceeds" ? "above" : "close to", v.limit, v.unit, v.rule));
+  }
+  rep.parts.push_back(std::move(part));
 }
 
 Hazards hazardsOf(const Netlist& nl, const Result* r) {

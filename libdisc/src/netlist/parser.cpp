@@ -781,14 +781,37 @@ class Builder {
             nl_.output.kind = OutputSpec::LoadKind::Resistive;
           else
             return error(t[k].valueWhere, "kind is capacitive or resistive");
+        } else if (t[k].keyValue && t[k].key == "class") {
+          const auto v = number(t[k].value, Dim::None, t[k].valueWhere);
+          if (!v) return;
+          if (!(*v > 0.0 && *v <= 20.0))
+            return error(t[k].valueWhere,
+                         "class is the meter's accuracy class (IEC 60051), the permitted error "
+                         "in % of its range, e.g. class=2.5");
+          nl_.output.accuracyClass = *v;
+        } else if (t[k].keyValue && (t[k].key == "full-scale" || t[k].key == "range")) {
+          const bool current = t[k].key == "full-scale";
+          const auto v = number(t[k].value, current ? Dim::Current : Dim::Voltage, t[k].valueWhere);
+          if (!v) return;
+          if (!(*v > 0.0) || !std::isfinite(*v))
+            return error(t[k].valueWhere,
+                         fmt::format("{} must be positive: the meter's {}", t[k].key,
+                                     current ? "full-scale current, e.g. full-scale=1mA"
+                                             : "range in volts rms, e.g. range=10V"));
+          (current ? nl_.output.fullScale : nl_.output.range) = *v;
         } else {
-          return error(
-              t[k].where,
-              fmt::format("unexpected '{}': output takes load=, kind= and input=", t[k].text));
+          return error(t[k].where,
+                       fmt::format("unexpected '{}': output takes load=, kind=, input=, and for "
+                                   "a meter full-scale=, range= and class=",
+                                   t[k].text));
         }
       }
       if (nl_.output.load.empty())
         return error(s.where, "output needs load=NAME (the element that is the load)");
+      if ((nl_.output.fullScale > 0.0) != (nl_.output.range > 0.0))
+        return error(s.where,
+                     "a meter output needs both full-scale= (the movement's current) and range= "
+                     "(the volts rms that full scale marks)");
       nl_.output.given = true;
     } else if (w == "record") {
       if (t.size() < 2)
