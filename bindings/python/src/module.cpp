@@ -13,5 +13,6 @@ PYBIND11_MODULE(_disc, m) {
   disc::python::registerCircuit(m);
   disc::python::registerFit(m);
   disc::python::registerReplace(m);
+  disc::python::registerPowerUp(m);
   disc::python::registerCampaign(m);
 }

@@ -11,6 +11,7 @@ void registerResult(pybind11::module_& m);
 void registerCircuit(pybind11::module_& m);
 void registerFit(pybind11::module_& m);
 void registerReplace(pybind11::module_& m);
+void registerPowerUp(pybind11::module_& m);
 void registerCampaign(pybind11::module_& m);
 
 }  // namespace disc::python

@@ -190,6 +190,64 @@ void registerCircuit(py::module_& m) {
           py::arg("duration"), py::arg("record"), py::arg("reltol"),
           py::arg("progress") = py::none())
       .def(
+          "warm_up",
+          [](const Netlist& n, double duration, const std::vector<std::string>& record,
+             double reltol, py::object progress) {
+            checkNetlist(n);
+            EnvelopeOptions o;
+            o.duration = duration;
+            if (reltol > 0.0) o.reltol = reltol;
+            o.record = record;
+            o.progress = throttledProgress(progress);
+            const Netlist copy = n;  // copied under the GIL, run without it
+            AnalysisOutcome ao;
+            SupplyReport report;
+            {
+              py::gil_scoped_release nogil;
+              ao = warmUpAnalysis(copy, o, &report);
+            }
+            const WarmUpSummary& w = ao.warmUp;
+            py::dict d;
+            d["duration_s"] = w.duration;
+            d["end_time_s"] = w.endTime;
+            d["stopped_by"] = w.stoppedBy;
+            py::list limits;
+            for (const auto& c : w.firstLimits) {
+              py::dict x;
+              x["what"] = c.what;
+              x["time_s"] = c.time;
+              x["limit"] = c.limit;
+              x["unit"] = c.unit;
+              limits.append(x);
+            }
+            d["first_limits"] = limits;
+            py::list trends;
+            for (const auto& t : w.trends) {
+              py::dict x;
+              x["what"] = t.what;
+              x["unit"] = t.unit;
+              x["start"] = t.start;
+              x["end"] = t.end;
+              trends.append(x);
+            }
+            d["trends"] = trends;
+            py::dict stats;
+            stats["slow_steps"] = w.stats.slowSteps;
+            stats["rejected_slow_steps"] = w.stats.rejectedSlowSteps;
+            stats["periodic_solves"] = w.stats.periodicSolves;
+            stats["shooting_iterations"] = w.stats.shootingIterations;
+            stats["period_integrations"] = w.stats.periodIntegrations;
+            stats["wall_s"] = w.stats.wallSeconds;
+            d["stats"] = stats;
+            d["text"] = warmUpText(w);
+            return py::make_tuple(own(std::move(ao.result)), d,
+                                  n.output.given ? py::object(py::str(reportJson(report)))
+                                                 : py::object(py::none()));
+          },
+          py::arg("duration"), py::arg("record"), py::arg("reltol"),
+          py::arg("progress") = py::none(),
+          "A warm-up as `run warm-up` makes it: (series, summary dict, report JSON or None).")
+      .def(
           "run_op",
           [](const Netlist& n, const std::vector<std::string>& record) {
             checkNetlist(n);

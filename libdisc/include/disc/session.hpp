@@ -53,6 +53,14 @@ struct RunOutcome {
   SupplyReport report;
 };
 
+/// A warm-up of the netlist as its `run warm-up` statement makes it: the series records
+/// `options.record`, the run's own signals and per stack its temperature, forming, leakage and
+/// dissipation (and those of its first plates); the summary gives the trends and the time each
+/// rating is first reached (with an output statement). With an output statement and `report`
+/// given, `*report` is the supply report of the settled period at the end.
+AnalysisOutcome warmUpAnalysis(const Netlist& netlist, EnvelopeOptions options,
+                               SupplyReport* report = nullptr);
+
 /// The warm-up block of the text report: trends, first limits, failures.
 std::string warmUpText(const WarmUpSummary& summary);
 

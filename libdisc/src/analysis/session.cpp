@@ -118,6 +118,49 @@ void addTrends(const Netlist& nl, const Result& series, WarmUpSummary& w) {
 
 }  // namespace
 
+AnalysisOutcome warmUpAnalysis(const Netlist& nl, EnvelopeOptions o, SupplyReport* report) {
+  AnalysisOutcome ao;
+  ao.request.kind = AnalysisRequest::Kind::WarmUp;
+  o.periodic.record = runSignals(nl, o.periodic.record);
+  {
+    std::vector<std::string> record = o.record;
+    for (const auto& s : warmUpSignals(nl))
+      if (std::find(record.begin(), record.end(), s) == record.end()) record.push_back(s);
+    o.record = std::move(record);
+  }
+  ao.request.warmUp = o;
+  ao.request.warmUp.progress = {};  // the request keeps no callback of the caller's
+  LimitWatch limits;
+  if (nl.output.given)
+    o.onPeriod = [&](double t, const Result& period) {
+      limits.step(t, makeSupplyReport(nl, period));
+      return true;
+    };
+  EnvelopeResult er = warmUp(nl.circuit, o);
+  WarmUpSummary& w = ao.warmUp;
+  w.duration = o.duration;
+  w.endTime = er.endTime;
+  w.stoppedBy = er.stoppedBy;
+  w.firstLimits = limits.crossings();
+  w.failures = er.failures;
+  w.stats = er.stats;
+  addTrends(nl, er.series, w);
+  ao.result = std::move(er.series);
+  ao.result.failureEvents() = er.failures;
+  if (report && nl.output.given) {
+    *report = makeSupplyReport(nl, er.last.waveforms);
+    report->failures = er.failures;
+    if (!er.failures.empty()) report->worst = "fails";
+    if (er.failed())
+      report->warnings.insert(
+          report->warnings.begin(),
+          fmt::format("the warm-up stopped at {} where a plate was destroyed: the figures "
+                      "are those of the last settled period before it",
+                      formatDuration(er.endTime)));
+  }
+  return ao;
+}
+
 RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> progress) {
   RunOutcome out;
   std::size_t lastReportable = nl.analyses.size();
@@ -153,37 +196,9 @@ RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> pro
       }
       case AnalysisRequest::Kind::WarmUp: {
         EnvelopeOptions o = a.warmUp;
-        o.periodic.record = record;
-        o.record = warmUpSignals(nl);
         o.progress = progress;
-        LimitWatch limits;
-        if (nl.output.given)
-          o.onPeriod = [&](double t, const Result& period) {
-            limits.step(t, makeSupplyReport(nl, period));
-            return true;
-          };
-        EnvelopeResult er = warmUp(nl.circuit, o);
-        WarmUpSummary& w = ao.warmUp;
-        w.duration = o.duration;
-        w.endTime = er.endTime;
-        w.stoppedBy = er.stoppedBy;
-        w.firstLimits = limits.crossings();
-        w.failures = er.failures;
-        w.stats = er.stats;
-        addTrends(nl, er.series, w);
-        ao.result = std::move(er.series);
-        ao.result.failureEvents() = er.failures;
-        if (reports) {
-          out.report = makeSupplyReport(nl, er.last.waveforms);
-          out.report.failures = er.failures;
-          if (!er.failures.empty()) out.report.worst = "fails";
-          if (er.failed())
-            out.report.warnings.insert(
-                out.report.warnings.begin(),
-                fmt::format("the warm-up stopped at {} where a plate was destroyed: the figures "
-                            "are those of the last settled period before it",
-                            formatDuration(er.endTime)));
-        }
+        ao = warmUpAnalysis(nl, o, reports ? &out.report : nullptr);
+        ao.request = a;
         break;
       }
     }
