@@ -14,6 +14,7 @@ from . import _disc
 from ._errors import NetlistError, SimulationError, TraceError
 from .campaign import CampaignResult, campaign
 from .circuit import Circuit, Element, Result
+from .warm_up import PowerUpPlan, WarmUp
 
 __version__ = _disc.__version__  # the project() version in CMakeLists.txt
 
@@ -120,7 +121,7 @@ def replace_stacks(path, stacks, *, diode=None, loads=(0.5, 1.0, 1.2), target="f
                                     str(target))
 
 
-__all__ = ["Circuit", "Element", "Result", "PlateType", "PlateCurve", "Trace", "NetlistError",
+__all__ = ["Circuit", "Element", "Result", "WarmUp", "PowerUpPlan", "PlateType", "PlateCurve", "Trace", "NetlistError",
            "SimulationError", "TraceError", "load", "parse", "plate_types", "plate_type",
            "load_plate_types", "reference_circuit", "load_trace", "trace", "fit_plate",
            "model_current", "judge_plate_health", "replace_stacks"]

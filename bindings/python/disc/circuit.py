@@ -3,6 +3,7 @@ import json
 import math
 
 from . import _disc
+from .warm_up import PowerUpPlan, WarmUp
 
 
 def _text(value):
@@ -332,6 +333,35 @@ class Circuit:
         res, stopped, failures = self._net.run_warm_up(float(duration), list(record or []),
                                                        float(reltol), progress)
         return Result(self, res), stopped, list(failures)
+
+    def warm_up(self, duration, record=None, reltol=0.0, progress=None):
+        """A warm-up over duration (s) as the netlist's ``run warm-up`` makes it: a WarmUp with
+        the series (record plus the run's own signals and every stack's temperature, forming,
+        leakage and dissipation), the trends, the time each rating is first reached
+        (``first_limits``), the failures and the supply report at the end. progress as for
+        run_transient."""
+        res, summary, report = self._net.warm_up(float(duration), list(record or []),
+                                                 float(reltol), progress)
+        return WarmUp(Result(self, res), summary, report)
+
+    def plan_power_up(self, stack, source=None, *, margin=None, first_level=None,
+                      smallest_step=None, turn=None, min_hold=None, max_hold=None,
+                      settle_leakage=None, settle_temperature=None, max_time=None,
+                      max_steps=None, max_slow_step=None, progress=None):
+        """Plans the variac schedule that brings ``stack`` up (docs/power-up.md), as
+        ``disc power-up`` does: a PowerUpPlan. ``source``: the variac-fed voltage source
+        (default: the one sine source). Options left at None keep the library's defaults:
+        margin (fraction of each limit used, 0.9), first_level (0.1) and smallest_step (0.05)
+        as fractions of full, turn (10 s), min_hold (60 s), max_hold (1800 s), settle_leakage
+        (0.05 per minute), settle_temperature (0.5 K per minute), max_time (s, 8 h: not up by
+        then, replace), max_steps (12), max_slow_step (60 s). progress(line) is called before
+        each envelope run; returning False cancels (KeyboardInterrupt)."""
+        return PowerUpPlan(_disc.plan_power_up(
+            self._net, stack, source or "", margin=margin, first_level=first_level,
+            smallest_step=smallest_step, turn=turn, min_hold=min_hold, max_hold=max_hold,
+            settle_leakage=settle_leakage, settle_temperature=settle_temperature,
+            max_total=max_time, max_steps=max_steps, max_slow_step=max_slow_step,
+            progress=progress))
 
     def run_op(self, record=None):
         """DC operating point (one time point)."""

@@ -240,9 +240,9 @@ void registerCircuit(py::module_& m) {
             stats["wall_s"] = w.stats.wallSeconds;
             d["stats"] = stats;
             d["text"] = warmUpText(w);
-            return py::make_tuple(own(std::move(ao.result)), d,
-                                  n.output.given ? py::object(py::str(reportJson(report)))
-                                                 : py::object(py::none()));
+            return py::make_tuple(
+                own(std::move(ao.result)), d,
+                n.output.given ? py::object(py::str(reportJson(report))) : py::object(py::none()));
           },
           py::arg("duration"), py::arg("record"), py::arg("reltol"),
           py::arg("progress") = py::none(),

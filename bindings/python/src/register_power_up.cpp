@@ -71,13 +71,13 @@ void registerPowerUp(py::module_& m) {
         py::gil_scoped_release nogil;
         return planPowerUp(copy, o);
       },
-      py::arg("netlist"), py::arg("stack"), py::arg("source") = "",
-      py::arg("margin") = py::none(), py::arg("first_level") = py::none(),
-      py::arg("smallest_step") = py::none(), py::arg("turn") = py::none(),
-      py::arg("min_hold") = py::none(), py::arg("max_hold") = py::none(),
-      py::arg("settle_leakage") = py::none(), py::arg("settle_temperature") = py::none(),
-      py::arg("max_total") = py::none(), py::arg("max_steps") = py::none(),
-      py::arg("max_slow_step") = py::none(), py::arg("progress") = py::none());
+      py::arg("netlist"), py::arg("stack"), py::arg("source") = "", py::arg("margin") = py::none(),
+      py::arg("first_level") = py::none(), py::arg("smallest_step") = py::none(),
+      py::arg("turn") = py::none(), py::arg("min_hold") = py::none(),
+      py::arg("max_hold") = py::none(), py::arg("settle_leakage") = py::none(),
+      py::arg("settle_temperature") = py::none(), py::arg("max_total") = py::none(),
+      py::arg("max_steps") = py::none(), py::arg("max_slow_step") = py::none(),
+      py::arg("progress") = py::none());
 }
 
 }  // namespace disc::python
