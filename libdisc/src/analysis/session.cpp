@@ -157,6 +157,7 @@ AnalysisOutcome warmUpAnalysis(const Netlist& nl, EnvelopeOptions o, SupplyRepor
           fmt::format("the warm-up stopped at {} where a plate was destroyed: the figures "
                       "are those of the last settled period before it",
                       formatDuration(er.endTime)));
+    if (report->meter) sweepMeter(nl, *report);
   }
   return ao;
 }
@@ -204,7 +205,9 @@ RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> pro
     }
     // A meter's reading over its range and over frequency: each point its own periodic steady
     // state, so only for the run that makes the report.
-    if (reports && out.report.meter) sweepMeter(nl, out.report);
+    // (warmUpAnalysis sweeps its own.)
+    if (reports && out.report.meter && a.kind != AnalysisRequest::Kind::WarmUp)
+      sweepMeter(nl, out.report);
     out.analyses.push_back(std::move(ao));
     if (reports) {
       out.hasReport = true;
