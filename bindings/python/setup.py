@@ -41,6 +41,8 @@ class CMakeBuild(build_ext):
         built = next((build / "python" / "disc").glob("_disc*.so"))
         out.mkdir(parents=True, exist_ok=True)
         self.copy_file(str(built), str(out / built.name))
+        # The example netlists the build copied into the package (disc.example_path()).
+        self.copy_tree(str(build / "python" / "disc" / "examples"), str(out / "examples"))
 
 
 setup(

@@ -17,5 +17,9 @@ c.voltage("V1", "a", "gnd", rms=10, frequency=50)
 c.resistor("R1", "a", "gnd", 100)
 r = c.run_transient(stop=0.04, record=["i:R1"])
 assert abs(max(r["i:R1"]) - 0.1414) < 1e-3
+# The examples travel with the installed package (disc.example_path()).
+example = disc.example_path("table-radio-half-wave.disc")
+assert "env" in str(example) and example.is_file(), example
+assert disc.example_path("traces/stored-stack-sweep.csv").is_file()
 print("installed package works:", disc.__file__)
 PY

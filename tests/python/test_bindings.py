@@ -329,3 +329,19 @@ def test_meter_report_from_python():
     by_f = {p["frequency_Hz"]: p for p in meter["frequencies"]}
     assert by_f[10000.0]["reading_V"] < by_f[50.0]["reading_V"]
     assert [p["kind"] for p in report["parts"]] == ["meter"]
+
+
+def test_example_path_finds_the_bundled_netlists_from_anywhere(tmp_path, monkeypatch):
+    # The package carries the repository's netlists/ (and its traces), the same files byte for
+    # byte, so a notebook opened in any folder finds them.
+    monkeypatch.chdir(tmp_path)
+    folder = disc.example_path()
+    assert folder.is_dir() and folder.name == "examples"
+    for p in NETLISTS.glob("*.disc"):
+        assert (folder / p.name).read_bytes() == p.read_bytes()
+    sweep = disc.example_path("traces/stored-stack-sweep.csv")
+    assert sweep.read_bytes() == (NETLISTS / "traces" / "stored-stack-sweep.csv").read_bytes()
+    radio = disc.load(disc.example_path("table-radio-half-wave.disc"))
+    assert "SR1" in radio.elements
+    with pytest.raises(FileNotFoundError, match="table-radio-half-wave.disc"):
+        disc.example_path("no-such-radio.disc")   # the message lists what there is

@@ -37,9 +37,28 @@ def test_every_notebook_is_found():
             "three-columns-campaign.ipynb", "stored-stack-power-up.ipynb"} <= set(ALL)
 
 
+def test_notebooks_find_their_data_through_the_package_and_plot_inline():
+    # No path into the repository's layout and no forced backend (docs/python.md).
+    for name in ALL:
+        nb = nbformat.read(NOTEBOOKS / name, as_version=4)
+        code = "\n".join(c.source for c in nb.cells if c.cell_type == "code")
+        assert "../" not in code, f"{name} opens a path relative to the repository"
+        assert "matplotlib.use(" not in code, f"{name} forces a matplotlib backend"
+        if "matplotlib" in code:
+            assert "%matplotlib inline" in code, f"{name} draws but does not plot inline"
+
+
 @pytest.mark.parametrize("name", ALL)
-def test_notebook_runs(name, kernel):
+def test_notebook_runs(name, kernel, tmp_path):
+    # Executed in an empty folder of its own, as if the notebook were opened anywhere: its data
+    # come from disc.example_path().
     nb = nbformat.read(NOTEBOOKS / name, as_version=4)
     client = nbclient.NotebookClient(nb, timeout=600, kernel_name=kernel,
-                                     resources={"metadata": {"path": str(NOTEBOOKS)}})
+                                     resources={"metadata": {"path": str(tmp_path)}})
     client.execute()
+    code = "\n".join(c.source for c in nb.cells if c.cell_type == "code")
+    if "matplotlib" in code:
+        # The figures reach the notebook as inline images.
+        images = [o for c in nb.cells if c.cell_type == "code" for o in c.outputs
+                  if "image/png" in o.get("data", {})]
+        assert images, f"{name} showed no inline figure"

@@ -10,6 +10,8 @@ A simulation plans work; it is no substitute for local electrical codes, the mak
 qualified technician. Mains, valve high voltages and charged capacitors can kill; overheated
 selenium gives off toxic fumes.
 """
+import pathlib
+
 from . import _disc
 from ._errors import NetlistError, SimulationError, TraceError
 from .campaign import CampaignResult, campaign
@@ -48,6 +50,26 @@ def plate_type(name):
         if t.name == name:
             return t
     raise ValueError(f"unknown plate type '{name}'")
+
+
+def example_path(name=None):
+    """The folder of the example netlists and traces that come with the package (a
+    pathlib.Path), or the file ``name`` in it ("table-radio-half-wave.disc",
+    "traces/stored-stack-sweep.csv"), so a notebook or script finds them wherever it is opened:
+    from the build tree, after ``cmake --install`` or after ``pip install``."""
+    folder = pathlib.Path(__file__).resolve().parent / "examples"
+    if not folder.is_dir():
+        raise FileNotFoundError(
+            f"the disc package at {folder.parent} has no examples folder: build the _disc target "
+            "(it copies netlists/ into the package) or reinstall the package")
+    if name is None:
+        return folder
+    path = folder / name
+    if not path.is_file():
+        known = sorted(p.relative_to(folder).as_posix() for p in folder.rglob("*") if p.is_file())
+        raise FileNotFoundError(f"no example '{name}' in {folder}; the examples are: "
+                                + ", ".join(known))
+    return path
 
 
 def reference_circuit(name):
@@ -121,7 +143,8 @@ def replace_stacks(path, stacks, *, diode=None, loads=(0.5, 1.0, 1.2), target="f
                                     str(target))
 
 
-__all__ = ["Circuit", "Element", "Result", "WarmUp", "PowerUpPlan", "PlateType", "PlateCurve", "Trace", "NetlistError",
-           "SimulationError", "TraceError", "load", "parse", "plate_types", "plate_type",
-           "load_plate_types", "reference_circuit", "load_trace", "trace", "fit_plate",
-           "model_current", "judge_plate_health", "replace_stacks"]
+__all__ = ["Circuit", "Element", "Result", "WarmUp", "PowerUpPlan", "PlateType", "PlateCurve",
+           "Trace", "NetlistError", "SimulationError", "TraceError", "load", "parse",
+           "plate_types", "plate_type", "load_plate_types", "reference_circuit", "example_path",
+           "load_trace", "trace", "fit_plate", "model_current", "judge_plate_health",
+           "replace_stacks"]
