@@ -295,6 +295,7 @@ struct CampaignArgs {
   bool keepPlates = false;
   bool json = false;
   bool quiet = false;
+  std::string basis = "auto";
   disc::CampaignOptions options;
 };
 
@@ -316,6 +317,9 @@ int runCampaignFile(const CampaignArgs& a) {
         "to it, or give --builds, --vary or --tolerance",
         a.file));
   disc::CampaignOptions o = a.options;
+  o.basis = a.basis == "periodic"    ? disc::CampaignBasis::Periodic
+            : a.basis == "transient" ? disc::CampaignBasis::Transient
+                                     : disc::CampaignBasis::Automatic;
   const bool tty = isatty(fileno(stderr)) != 0 && !a.quiet;
   if (tty)
     o.progress = [](std::size_t done, std::size_t total) {
@@ -492,8 +496,18 @@ int main(int argc, char** argv) {
   campaign->add_option("--threads", ca.options.threads, "Worker threads (default: every core)")
       ->check(CLI::Range(1, 4096));
   campaign
-      ->add_option("--stop", ca.options.stop, "Transient end time, s (default: the netlist's run)")
+      ->add_option("--stop", ca.options.stop,
+                   "Transient end time, s (default: the netlist's run); asks for the transient")
       ->check(CLI::PositiveNumber);
+  campaign
+      ->add_option("--basis", ca.basis,
+                   "Figures from the settled period (periodic; no switch-on surge) or a transient "
+                   "from cold; auto: periodic when the circuit has a period and no --stop is given")
+      ->check(CLI::IsMember({"auto", "periodic", "transient"}));
+  campaign
+      ->add_option("--reltol", ca.options.reltol,
+                   "Relative tolerance of each variant (default: the netlist's transient's)")
+      ->check(CLI::Range(1e-9, 0.1));
   campaign->add_option("-o,--out", ca.outDir, "Output folder (default out/<file stem>-campaign)");
   campaign->add_flag("--json", ca.json, "Print the summary as JSON");
   campaign->add_flag("-q,--quiet", ca.quiet, "Print nothing; only write the files");

@@ -35,19 +35,33 @@ class VariantRandom {
   std::uint64_t seed_, variant_;
 };
 
+/// What a variant's supply-report figures come from.
+enum class CampaignBasis {
+  /// The periodic steady state when the circuit has a period and no stop time is given, a
+  /// transient otherwise.
+  Automatic,
+  Periodic,   ///< the settled period (a variant whose periodic state fails runs the transient)
+  Transient,  ///< a transient from the netlist's start (cold), switch-on surge included
+};
+
 /// How a campaign runs.
 struct CampaignOptions {
   int threads = 0;  ///< worker threads; 0 = every core (and never more than the cores)
   /// s, the transient's stop time; 0 = the netlist's last transient (or 1 s).
   double stop = 0.0;
+  CampaignBasis basis = CampaignBasis::Automatic;
+  /// Relative tolerance of each variant's analysis; 0 = the netlist's transient's (1e-3 by
+  /// default). The periodic steady state takes the transient's tolerances.
+  double reltol = 0.0;
   /// Called from worker threads as variants finish, with (done, total); return false to cancel
   /// (the campaign then throws Cancelled). May be called concurrently: keep it thread-safe.
   std::function<bool(std::size_t, std::size_t)> progress;
   void validate() const;
 };
 
-/// A column of the campaign table: numbers (NaN only where the variant failed, with its
-/// status column saying why) or words.
+/// A column of the campaign table: numbers (NaN where the variant failed, with its status
+/// column saying why, or where its basis has no such figure: surge_peak on the periodic basis)
+/// or words.
 struct CampaignColumn {
   std::string name, unit;
   bool text = false;

@@ -2,6 +2,7 @@
 // electrical state over one period, with the slow states (temperatures, forming) held fixed.
 #pragma once
 
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -10,6 +11,11 @@
 #include "disc/result.hpp"
 
 namespace disc {
+
+/// A settled period kept to start the shooting of another circuit of the same structure (the
+/// same devices, nodes and unknowns) whose values differ a little: its start state, step grid
+/// and monodromy matrix. Opaque; shared read-only between threads.
+struct PeriodicOrbit;
 
 /// Options of the periodic steady state.
 struct PeriodicOptions {
@@ -26,6 +32,12 @@ struct PeriodicOptions {
   /// s, the slow clock held over the period (a variac schedule's time, a valve's warm-up).
   double slowTime = 0.0;
   std::vector<std::string> record;  ///< signals; empty = every node voltage and device current
+  /// Starts from this orbit instead of a warm-up transient (warmupPeriods and start are then
+  /// unused): its settled start state for the fast unknowns, its step grid, and its monodromy
+  /// for chord steps, which converge in a few periods when the circuit differs little. Used
+  /// when the circuit has the orbit's structure and period; otherwise the warm-up runs
+  /// (PeriodicStats::fromOrbit says which).
+  std::shared_ptr<const PeriodicOrbit> from;
   void validate() const;
 };
 
@@ -39,6 +51,7 @@ struct PeriodicStats {
   /// periodic state is stable; near 1 a mode settles over many periods (a large reservoir).
   double largestMultiplier = 0.0;
   int stepsPerPeriod = 0;
+  bool fromOrbit = false;  ///< started from PeriodicOptions::from (no warm-up transient)
 };
 
 /// The settled period.
@@ -49,6 +62,8 @@ struct PeriodicResult {
   /// the tolerance).
   Result waveforms;
   PeriodicStats stats;
+  /// The settled period, to start a similar circuit from (PeriodicOptions::from).
+  std::shared_ptr<const PeriodicOrbit> orbit;
 };
 
 /// Finds the periodic steady state of a circuit driven by periodic sources. Throws

@@ -17,6 +17,7 @@
 #include "disc/devices/stack.hpp"
 #include "disc/error.hpp"
 #include "disc/measures.hpp"
+#include "disc/periodic.hpp"
 #include "disc/session.hpp"
 #include "disc/supply_report.hpp"
 
@@ -127,6 +128,9 @@ void CampaignOptions::validate() const {
   if (threads < 0) throw InputError("campaign: threads must be 0 (every core) or positive");
   if (!(stop >= 0.0) || !std::isfinite(stop))
     throw InputError("campaign: stop must be 0 (the netlist's run) or a positive time");
+  if (!(reltol >= 0.0) || !(reltol < 1.0))
+    throw InputError(
+        fmt::format("campaign: reltol must be 0 (the netlist's) or in (0, 1), got {}", reltol));
 }
 
 // ---- the table -------------------------------------------------------------------------------
@@ -239,6 +243,7 @@ class Layout {
     num("grid", "");
     num("build", "");
     text("status");
+    if (report_) text("basis");
     // A parameter both on the grid and toleranced: the grid value is its nominal.
     for (const auto& a : spec.axes) {
       const std::string name = a.element + "." + a.parameter;
@@ -279,6 +284,32 @@ class Layout {
     }
   }
 
+  /// Chooses the basis of the figures and, for the periodic one, finds the nominal circuit's
+  /// settled period once: every variant's shooting starts from it (the same start whichever
+  /// thread, range or worker runs the variant, so the rows do not depend on them).
+  void prepare(const CampaignOptions& o) {
+    if (o.reltol > 0.0) transient_.tol.reltol = o.reltol;
+    if (!report_ || o.basis == CampaignBasis::Transient) return;
+    if (o.basis == CampaignBasis::Automatic && o.stop > 0.0) return;  // a stop asks for a transient
+    try {
+      (void)circuitPeriod(nl_.circuit);
+    } catch (const InputError& e) {
+      if (o.basis == CampaignBasis::Periodic)
+        throw InputError(fmt::format("campaign: no periodic basis: {}", e.what()));
+      return;
+    }
+    periodic_ = true;
+    try {
+      orbit_ = periodicSteadyState(nl_.circuit, periodicOptions(nl_, {})).orbit;
+    } catch (const Cancelled&) {
+      throw;
+    } catch (const Error& e) {
+      // Each variant then tries its own periodic state from a warm-up, and says so if it too
+      // fails.
+      nominalFailure_ = e.what();
+    }
+  }
+
   CampaignTable emptyTable(std::size_t rows) const {
     CampaignTable t;
     for (const auto& c : columns_) {
@@ -301,6 +332,7 @@ class Layout {
     w.num(static_cast<double>(grid));
     w.num(static_cast<double>(v % builds));
     const std::size_t statusColumn = w.next++;
+    const std::size_t basisColumn = report_ ? w.next++ : 0;
     Netlist variant = nl_;
     const VariantRandom rnd(spec_.seed, v);
     try {
@@ -335,7 +367,7 @@ class Layout {
           w.num(seed);
         }
       if (report_)
-        runReport(variant, w, o);
+        runReport(variant, w, o, t.columns[basisColumn].words[r]);
       else
         runValues(variant, w);
       t.columns[statusColumn].words[r] = "ok";
@@ -433,7 +465,32 @@ class Layout {
     return to;
   }
 
-  void runReport(const Netlist& variant, Writer& w, const CampaignOptions& o) const {
+  PeriodicOptions periodicOptions(const Netlist& variant, std::vector<std::string> extra) const {
+    PeriodicOptions po;
+    po.tol = transient_.tol;  // the campaign's tolerance, as its transient would have
+    po.record = runSignals(variant, extra);
+    return po;
+  }
+
+  /// The variant's settled period: from the nominal orbit, else (it failed or there is none)
+  /// from a warm-up of its own.
+  Result settledPeriod(const Netlist& variant, const std::vector<std::string>& extra) const {
+    PeriodicOptions po = periodicOptions(variant, extra);
+    if (orbit_) {
+      po.from = orbit_;
+      try {
+        return periodicSteadyState(variant.circuit, po).waveforms;
+      } catch (const Cancelled&) {
+        throw;
+      } catch (const Error&) {
+        po.from.reset();
+      }
+    }
+    return periodicSteadyState(variant.circuit, po).waveforms;
+  }
+
+  void runReport(const Netlist& variant, Writer& w, const CampaignOptions& o,
+                 std::string& basisWord) const {
     std::vector<std::string> extra;
     for (const Stack* s : stacks_)
       if (s->options().arms > 1)
@@ -441,7 +498,25 @@ class Layout {
           extra.push_back(fmt::format("temp:{}#{}", s->name(), k));
           extra.push_back(fmt::format("pplate:{}#{}", s->name(), k));
         }
-    const Result r = transient(variant.circuit, transientOptions(variant, o, extra));
+    Result r;
+    std::string basis = "transient";
+    if (periodic_) {
+      try {
+        r = settledPeriod(variant, extra);
+        basis = "periodic";
+      } catch (const Cancelled&) {
+        throw;
+      } catch (const Error& e) {
+        // The row says why its figures come from a transient (with its switch-on surge).
+        basis = nominalFailure_.empty()
+                    ? fmt::format("transient: no periodic steady state ({})", e.what())
+                    : fmt::format(
+                          "transient: no periodic steady state ({}; of the nominal circuit: {})",
+                          e.what(), nominalFailure_);
+      }
+    }
+    if (basis != "periodic") r = transient(variant.circuit, transientOptions(variant, o, extra));
+    basisWord = basis;
     const SupplyReport rep = makeSupplyReport(variant, r);
     const auto& out = rep.output;
     for (const auto& f : kOutputFigures) w.num(out.*f.member);
@@ -458,7 +533,10 @@ class Layout {
     for (std::size_t k = 0; k < stacks_.size(); ++k) {
       const StackFigures& f = rep.stacks[k];
       const auto* st = dynamic_cast<const Stack*>(variant.circuit.find(f.name));
-      for (const auto& fig : kStackFigures) w.num(f.*fig.member);
+      for (const auto& fig : kStackFigures)
+        w.num(fig.member == &StackFigures::surgePeak && !f.surgeKnown
+                  ? std::numeric_limits<double>::quiet_NaN()  // a settled period has no switch-on
+                  : f.*fig.member);
       for (const char* key : kVerdicts) {
         const auto it = std::find_if(f.verdicts.begin(), f.verdicts.end(),
                                      [&](const Verdict& v) { return slug(v.figure) == key; });
@@ -517,6 +595,9 @@ class Layout {
   TransientOptions transient_;
   std::vector<const Stack*> stacks_;
   std::vector<ColumnSpec> columns_;
+  bool periodic_ = false;
+  std::shared_ptr<const PeriodicOrbit> orbit_;  // the nominal circuit's settled period
+  std::string nominalFailure_;                  // why it could not be found
 };
 
 }  // namespace
@@ -534,7 +615,8 @@ CampaignTable runCampaign(const Netlist& nl, const CampaignSpec& spec, const Cam
     throw InputError(
         fmt::format("campaign: first variant {} is beyond its {} variants", first, total));
   const std::size_t n = count == 0 ? total - first : std::min(count, total - first);
-  const Layout layout(nl, spec);
+  Layout layout(nl, spec);
+  layout.prepare(o);
   CampaignTable table = layout.emptyTable(n);
   std::atomic<std::size_t> done{0};
   std::atomic<bool> cancelled{false};

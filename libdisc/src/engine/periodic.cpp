@@ -21,6 +21,7 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <memory>
 
 #include "disc/devices/sources.hpp"
 #include "disc/error.hpp"
@@ -91,6 +92,12 @@ double periodStart(const System& sys, double period) {
 }
 
 namespace {
+
+// An orbit a solver can start from: solved, with its grid and a monodromy of its states.
+bool haveMonodromyOf(const PeriodicOrbit& o) {
+  const auto m = static_cast<Eigen::Index>(o.states.size());
+  return o.monodromy.rows() == m && o.monodromy.cols() == m && !o.grid.empty();
+}
 
 /// out += a * (C S), C given by its slot values on the system's pattern.
 void addChargeTimes(const System& sys, const std::vector<double>& C, double a,
@@ -378,13 +385,24 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
   bool chord = haveMonodromy_;
   double lastNorm = HUGE_VAL;
   int worstState = -1;
+  bool lastFixed = false;  // the last pass ran on the present fixed grid
   for (int it = 0; it < o_.maxIterations; ++it) {
     const std::vector<double> z0 = x;
     const bool sens = !chord;
-    const Pass pass = integrate(x, adaptive, slowTime, nullptr, stats, sens);
+    const bool sameGrid = !adaptive && lastFixed;
+    // A pass that follows an update within a few tolerances usually settles: record it, so
+    // that the settled period need not be integrated once more.
+    Recorder* recThis = rec && lastNorm <= 4.0 ? rec : nullptr;
+    if (recThis) recThis->clear();
+    const Pass pass = integrate(x, adaptive, slowTime, recThis, stats, sens);
     ++ps.periodIntegrations;
-    if (!pass.ok || (!adaptive && pass.worstError > 2.0)) {
-      // The fixed grid failed this orbit, or no longer meets the tolerance along it.
+    // A fixed grid whose error estimate along this orbit exceeds the tolerance is stale. From
+    // another circuit's orbit (no Jacobian needed) its pass still gives the chord update, as
+    // the first pass from that orbit's grid usually is stale; otherwise it is redone.
+    const bool stale = !adaptive && pass.worstError > (needJacobian ? 2.0 : 4.0);
+    if (!pass.ok || (stale && needJacobian)) {
+      // The fixed grid failed this orbit, or no longer meets the tolerance along it: choose
+      // it afresh from the same start.
       x = z0;
       adaptive = true;
       continue;
@@ -414,24 +432,28 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
       delta.cwiseAbs().maxCoeff(&j);
       worstState = states_[static_cast<std::size_t>(j)];
     }
-    if (norm <= 1.0 && (sens || !needJacobian)) {
+    if (norm <= 1.0 && !stale && (sens || !needJacobian)) {
       // z0 was settled to the tolerance: this pass is the period. Its averages and (with
       // sensitivities) the orbit's response to the slow values are kept.
       x = z0;
       finish(out, sens);
       ps.stepsPerPeriod = static_cast<int>(grid_.size());
-      if (rec) recordPeriod(x, slowTime, *rec, stats);
+      if (rec && !recThis) recordPeriod(x, slowTime, *rec, stats);
       solved_ = true;
       return;
     }
     // A chord step that contracts poorly, or a settled chord pass that must yield a
-    // Jacobian, is followed by a pass with sensitivities.
-    if (chord && (norm <= 1.0 || norm > 0.25 * lastNorm)) chord = false;
+    // Jacobian, is followed by a pass with sensitivities. Without the need for a Jacobian
+    // (a start from another circuit's orbit), the contraction is judged only between passes
+    // on the same fixed grid: a new grid moves the period map by about its truncation error,
+    // which a slowly decaying mode (a multiplier near 1) magnifies in the update.
+    if (chord && needJacobian && (norm <= 1.0 || norm > 0.25 * lastNorm)) chord = false;
+    if (chord && !needJacobian && sameGrid && norm > 0.7 * lastNorm) chord = false;
     // The update of every unknown follows from the sensitivity (algebraic ones too) on passes
     // that have it; a chord pass moves the shooting variables and lets the rest follow.
     double damp = 1.0;
     if (it >= 2 && norm > 4.0 * lastNorm) damp = 0.5;  // outside Newton's reach: half a step
-    if (norm > 1.0 || !needJacobian) {
+    if (norm > 1.0 || stale || !needJacobian) {
       // Newton's new start z0 + delta; the algebraic unknowns start from their prediction.
       if (sens) {
         const Eigen::VectorXd full = S_.leftCols(m_) * delta;
@@ -446,7 +468,11 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
       x = z0;  // settled, but a pass with sensitivities must follow from the same start
     }
     lastNorm = norm;
-    if (adaptive && norm < 100.0) adaptive = false;
+    lastFixed = !adaptive && !stale;
+    if (stale)
+      adaptive = true;
+    else if (adaptive && norm < 100.0)
+      adaptive = false;
   }
   throw ConvergenceError(
       fmt::format(
@@ -512,6 +538,35 @@ void PeriodicSolver::recordPeriod(const std::vector<double>& x, double slowTime,
         "", 0.0);
 }
 
+std::shared_ptr<const PeriodicOrbit> PeriodicSolver::orbit(const std::vector<double>& x) const {
+  auto o = std::make_shared<PeriodicOrbit>();
+  o->unknowns = sys_.size();
+  o->period = period_;
+  o->startTime = t0_;
+  o->x = x;
+  o->grid = grid_;
+  o->states = states_;
+  o->monodromy = monodromy_;
+  o->shootingLu = shootingLu_;
+  o->multiplier = multiplier_;
+  return o;
+}
+
+bool PeriodicSolver::adopt(const PeriodicOrbit& o) {
+  if (o.unknowns != sys_.size() || !haveMonodromyOf(o) ||
+      std::abs(o.period - period_) > 1e-12 * period_)
+    return false;
+  grid_ = o.grid;
+  states_ = o.states;
+  m_ = static_cast<int>(states_.size());
+  statesKnown_ = true;
+  monodromy_ = o.monodromy;
+  shootingLu_ = o.shootingLu;
+  multiplier_ = o.multiplier;
+  haveMonodromy_ = true;
+  return true;
+}
+
 void PeriodicSolver::predict(std::vector<double>& x, const std::vector<double>& ds) const {
   for (int c = 0; c < ns_; ++c)
     x[static_cast<std::size_t>(slow_[static_cast<std::size_t>(c)])] +=
@@ -567,13 +622,38 @@ PeriodicResult periodicSteadyState(const Circuit& circuit, const PeriodicOptions
   stats.unknowns = sys.size();
   std::vector<double> x;
   const std::vector<int> slow = detail::slowUnknowns(sys);
-  pr.startTime = detail::warmStart(sys, ls, options, pr.period, x, slow, stats);
-  detail::PeriodicSolver solver(sys, ls, options, pr.period, pr.startTime, slow);
+  const PeriodicOrbit* from = options.from.get();
+  std::unique_ptr<detail::PeriodicSolver> solver;
+  if (from && from->unknowns == sys.size()) {
+    // The orbit's settled fast unknowns, this circuit's own slow ones (its initial state).
+    x.assign(static_cast<std::size_t>(sys.size()) + 1, 0.0);
+    sys.initialState(x);
+    for (int k = 0; k < sys.size(); ++k)
+      if (!sys.isSlow(k)) x[static_cast<std::size_t>(k)] = from->x[static_cast<std::size_t>(k)];
+    sys.freeze(slow, x);
+    solver = std::make_unique<detail::PeriodicSolver>(sys, ls, options, pr.period, from->startTime,
+                                                      slow);
+    if (solver->adopt(*from))
+      pr.startTime = from->startTime;
+    else
+      solver.reset();
+  }
+  pr.stats.fromOrbit = solver != nullptr;
+  if (!solver) {
+    pr.startTime = detail::warmStart(sys, ls, options, pr.period, x, slow, stats);
+    solver =
+        std::make_unique<detail::PeriodicSolver>(sys, ls, options, pr.period, pr.startTime, slow);
+  }
   detail::Recorder rec(sys, options.record, pr.waveforms);
   detail::PeriodSolution sol;
-  solver.solve(x, options.slowTime, &rec, sol, stats);
+  // From an orbit, chord steps on its monodromy settle the period; no new sensitivities are
+  // needed unless they stop contracting.
+  solver->solve(x, options.slowTime, &rec, sol, stats, !pr.stats.fromOrbit);
+  const bool fromOrbit = pr.stats.fromOrbit;
   pr.stats = sol.stats;
-  pr.stats.warmupPeriods = options.warmupPeriods;
+  pr.stats.fromOrbit = fromOrbit;
+  pr.stats.warmupPeriods = fromOrbit ? 0 : options.warmupPeriods;
+  pr.orbit = solver->orbit(x);
   for (double& t : pr.waveforms.timeColumn()) t -= pr.startTime;
   stats.wallSeconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();

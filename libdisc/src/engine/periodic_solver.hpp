@@ -2,6 +2,7 @@
 #pragma once
 
 #include <Eigen/Dense>
+#include <memory>
 #include <vector>
 
 #include "disc/periodic.hpp"
@@ -9,6 +10,21 @@
 #include "newton.hpp"
 #include "recorder.hpp"
 #include "system.hpp"
+
+namespace disc {
+
+struct PeriodicOrbit {
+  int unknowns = 0;  // System::size() of the circuit it was found on
+  double period = 0.0, startTime = 0.0;
+  std::vector<double> x;     // settled start state (size unknowns + 1)
+  std::vector<double> grid;  // accepted step sizes of the settled period
+  std::vector<int> states;   // shooting variables
+  Eigen::MatrixXd monodromy;
+  Eigen::PartialPivLU<Eigen::MatrixXd> shootingLu;  // of monodromy - I
+  double multiplier = 0.0;
+};
+
+}  // namespace disc
 
 namespace disc::detail {
 
@@ -49,6 +65,12 @@ class PeriodicSolver {
   /// Predicts the settled start state for slow values changed by ds (first order, from the
   /// last solve's sensitivity); x is updated in place, its slow entries included.
   void predict(std::vector<double>& x, const std::vector<double>& ds) const;
+
+  /// The settled orbit from start x (after solve()), for a solver of a similar circuit.
+  std::shared_ptr<const PeriodicOrbit> orbit(const std::vector<double>& x) const;
+  /// Starts from another circuit's orbit: its grid, shooting variables and monodromy (the first
+  /// passes are chord steps). False (nothing adopted) when the structure or period differ.
+  bool adopt(const PeriodicOrbit& orbit);
 
   double period() const { return period_; }
   double startTime() const { return t0_; }

@@ -97,6 +97,11 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
   }
 }
 
+void Recorder::clear() {
+  result_.timeColumn().clear();
+  for (std::size_t k = 0; k < result_.signals().size(); ++k) result_.column(k).clear();
+}
+
 void Recorder::record(const EvalContext& ctx) {
   result_.timeColumn().push_back(ctx.time);
   for (std::size_t k = 0; k < signals_.size(); ++k) {

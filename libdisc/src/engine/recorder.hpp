@@ -15,6 +15,8 @@ class Recorder {
   Recorder(const System& sys, std::vector<std::string> specs, Result& result);
   /// Appends one time point.
   void record(const EvalContext& ctx);
+  /// Drops every point recorded so far (the signals stay).
+  void clear();
   const Result& result() const { return result_; }
 
  private:
