@@ -421,3 +421,123 @@ TEST_CASE("Campaign options and specs are checked", "[campaign]") {
   spec.axes = {{"R1", "resistance", {1.0}}, {"R1", "resistance", {2.0}}};
   CHECK_THROWS_WITH(spec.validate(), Catch::Contains("R1.resistance is varied twice"));
 }
+
+TEST_CASE("On the periodic basis the table is the same on 1 thread, 2 and every core, in any range",
+          "[campaign][threads][periodic]") {
+  Netlist nl = signalling();
+  appendNetlist(nl,
+                "campaign builds=4 seed=8\ntolerance C1 capacitance -20% +50%\n"
+                "tolerance MAINS rms 10%\n");
+  CampaignOptions o;  // no stop time: the settled period of each variant
+  o.threads = 1;
+  const CampaignTable one = runCampaign(nl, nl.campaign, o);
+  REQUIRE(one.rows() == 4);
+  for (std::size_t r = 0; r < one.rows(); ++r) {
+    REQUIRE(one["status"].words[r] == "ok");
+    REQUIRE(one["basis"].words[r] == "periodic");
+    CHECK(one["output.settled"].values[r] == 1.0);
+    CHECK(std::isnan(one["SR1.surge_peak"].values[r]));  // a settled period has no switch-on
+  }
+  o.threads = 2;
+  requireIdentical(one, runCampaign(nl, nl.campaign, o));
+  o.threads = 0;
+  requireIdentical(one, runCampaign(nl, nl.campaign, o));
+  requireIdentical(one, joinCampaignTables({runCampaign(nl, nl.campaign, o, 0, 1),
+                                            runCampaign(nl, nl.campaign, o, 1, 2),
+                                            runCampaign(nl, nl.campaign, o, 3, 0)}));
+}
+
+TEST_CASE("The periodic basis gives the transient route's settled figures",
+          "[campaign][periodic]") {
+  Netlist nl = signalling();
+  appendNetlist(nl,
+                "campaign builds=3 seed=21\ntolerance C1 capacitance -20% +50%\n"
+                "tolerance MAINS rms 10%\n");
+  CampaignOptions o;
+  o.basis = CampaignBasis::Transient;  // the netlist's 1.5 s from cold
+  const CampaignTable tr = runCampaign(nl, nl.campaign, o);
+  o.basis = CampaignBasis::Periodic;
+  const CampaignTable ps = runCampaign(nl, nl.campaign, o);
+  const double reltol = nl.analyses.back().transient.tol.reltol;
+  // The transient route's window is settled when consecutive cycles' mean outputs agree within
+  // 0.2 % (the supply report's rule), so its output lies within that of the settled one; each
+  // route integrates to reltol: the output within 0.2 % + 2 reltol.
+  const double output = 2e-3 + 2 * reltol;
+  for (std::size_t r = 0; r < tr.rows(); ++r) {
+    INFO("variant " << r);
+    REQUIRE(tr["basis"].words[r] == "transient");
+    REQUIRE(ps["basis"].words[r] == "periodic");
+    CHECK(tr["SR1.surge_peak"].values[r] > tr["SR1.current_peak"].values[r]);  // switch-on
+    for (const char* f : {"output.mean", "output.load_current", "output.power"}) {
+      INFO(f);
+      const double scale = std::string(f) == "output.power" ? 2.0 : 1.0;  // v^2 / R
+      CHECK(ps[f].values[r] == Approx(tr[f].values[r]).epsilon(scale * output));
+    }
+    // SR1 and SR2 carry the two half-cycles' current to the output (SR3 and SR4 return it):
+    // their sum is the load current and agrees as the output does. Each alone depends also on
+    // the magnetizing current's DC offset, which decays with the transformer's Floquet
+    // multiplier 0.9954 a period (4.3 s): 70 % of it remains after the 1.5 s run and moves up
+    // to 2 % of the current between the half-cycles (an 8 s transient of the nominal circuit
+    // takes SR1 from 259.4 to 261.1 mA, its periodic state 262.1 mA): 3 % each.
+    const double sumT = tr["SR1.current_average"].values[r] + tr["SR2.current_average"].values[r];
+    const double sumP = ps["SR1.current_average"].values[r] + ps["SR2.current_average"].values[r];
+    CHECK(sumP == Approx(sumT).epsilon(output));
+    for (const char* s : {"SR1", "SR2", "SR3", "SR4"}) {
+      INFO(s);
+      const std::string n = s;
+      CHECK(ps[n + ".current_average"].values[r] ==
+            Approx(tr[n + ".current_average"].values[r]).epsilon(0.03));
+      for (int m = 1; m <= 2; ++m) {
+        const std::string a = fmt::format("{}.arm{}", s, m);
+        // The paralleled columns see one voltage, so an offset that moves the stack's current
+        // moves both alike: a share changes only to second order, within the output's window.
+        CHECK(ps[a + ".share"].values[r] ==
+              Approx(tr[a + ".share"].values[r]).margin(output * tr[a + ".share"].values[r]));
+        // The hottest plate's rise over ambient follows its dissipation, about the current
+        // squared through the plate's resistance: twice the 3 % of the stack current.
+        const double ta = nl.circuit.ambient();
+        CHECK(ps[a + ".hottest"].values[r] - ta ==
+              Approx(tr[a + ".hottest"].values[r] - ta).epsilon(0.06));
+        CHECK(ps[a + ".verdict"].words[r] == tr[a + ".verdict"].words[r]);
+      }
+    }
+  }
+}
+
+TEST_CASE("A variant without a periodic steady state runs the transient and says why",
+          "[campaign][periodic]") {
+  // An invented half-wave rectifier with a hum source in series: at 75 Hz the hum shares no
+  // whole period with the 50 Hz supply, so that variant has no periodic steady state.
+  const Netlist nl = parseNetlist(R"(
+voltage VIN a gnd sine rms=10V frequency=50Hz resistance=1ohm
+voltage VHUM in a sine amplitude=0.2V frequency=100Hz
+diode D1 in out
+capacitor C1 out gnd 100uF
+resistor RL out gnd 1k
+output out gnd load=RL
+run transient stop=0.2s
+vary VHUM frequency 100 75
+)");
+  const CampaignTable t = runCampaign(nl, nl.campaign, {});
+  REQUIRE(t.rows() == 2);
+  CHECK(t["status"].words[0] == "ok");
+  CHECK(t["basis"].words[0] == "periodic");
+  CHECK(t["status"].words[1] == "ok");
+  CHECK_THAT(t["basis"].words[1], Catch::StartsWith("transient: no periodic steady state (") &&
+                                      Catch::Contains("75 Hz is not a whole multiple"));
+  CHECK(std::isfinite(t["output.mean"].values[1]));
+  // A stop time asks for the transient; the periodic basis needs a period.
+  CampaignOptions o;
+  o.stop = 0.1;
+  CHECK(runCampaign(nl, nl.campaign, o)["basis"].words[0] == "transient");
+  const Netlist dc = parseNetlist(
+      "voltage VS a gnd dc=10V\nresistor R1 a b 1k\nresistor R2 b gnd 1k\noutput b gnd load=R2\n"
+      "run transient stop=1ms\nvary R1 resistance 1k 2k\n");
+  o = {};
+  CHECK(runCampaign(dc, dc.campaign, o)["basis"].words[0] == "transient");
+  o.basis = CampaignBasis::Periodic;
+  CHECK_THROWS_WITH(runCampaign(dc, dc.campaign, o), Catch::Contains("no periodic basis"));
+  o = {};
+  o.reltol = 2.0;
+  CHECK_THROWS_AS(o.validate(), InputError);
+}

@@ -75,6 +75,26 @@ def test_dask_local_cluster_gives_the_local_table():
     assert seen == [(1, 4), (2, 4), (3, 4), (4, 4)]  # one call per returned chunk
 
 
+def test_periodic_basis_on_a_dask_cluster_gives_the_local_table():
+    # Each worker finds the nominal circuit's settled period itself and starts its variants'
+    # shooting from it, as the local run does: the same rows, number for number.
+    need_module("pandas")
+    distributed = need_module("distributed")
+    pss = dict(MC, basis="periodic")
+    del pss["stop"]
+    local = disc.campaign(SIGNALLING, threads=2, **pss).table
+    assert (local["basis"] == "periodic").all()
+    assert local["SR1.surge_peak"].isna().all()  # a settled period has no switch-on
+    assert (local["output.settled"] == 1).all()
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster, \
+            distributed.Client(cluster) as client:
+        remote = disc.campaign(SIGNALLING, client=client, chunk=1, **pss).table
+    assert remote.equals(local)
+    with pytest.raises(ValueError, match="basis must be"):
+        disc.campaign(SIGNALLING, **dict(pss, basis="steady"))
+
+
 def test_progress_reports_and_cancels():
     calls = []
     disc.campaign(SIGNALLING, threads=1, progress=lambda d, t: calls.append((d, t)), **MC)

@@ -84,13 +84,14 @@ def _source(source):
     return source, "<text>", _disc.parse(source, "<text>")
 
 
-def _chunk(text, name, statements, first, count, stop, threads):
+def _chunk(text, name, statements, first, count, stop, threads, basis="auto", reltol=0.0):
     """One worker's share: rebuilds the netlist from its text and runs variants
     [first, first + count)."""
     net = _disc.parse(text, name)
     for s in statements:
         net.statement(s)
-    return _disc.run_campaign(net, threads=threads, stop=stop, first=first, count=count)
+    return _disc.run_campaign(net, threads=threads, stop=stop, first=first, count=count,
+                              basis=basis, reltol=reltol)
 
 
 def _join(parts):
@@ -107,14 +108,19 @@ def _join(parts):
 
 
 def campaign(source, builds=None, seed=None, vary=None, tolerance=None, keep_plates=False,
-             threads=0, stop=0.0, progress=None, client=None, chunk=None, worker_threads=1):
+             threads=0, stop=0.0, progress=None, client=None, chunk=None, worker_threads=1,
+             basis="auto", reltol=0.0):
     """Runs a campaign: the netlist's own (`campaign`, `vary`, `tolerance` statements) with these
     additions, in the language's words: vary=["RRELAYS resistance 40 60 80"],
     tolerance=["C1 capacitance -20% +50%", "MAINS rms 10%"], builds=1000, seed=7,
     keep_plates=True (no new plates per build).
 
     source: a .disc path, netlist text or a Circuit. threads: local worker threads (0: every
-    core). stop: transient end time, s (0: the netlist's run). progress(done, total): called at
+    core). stop: transient end time, s (0: the netlist's run; a stop time asks for the
+    transient). basis: "periodic" (each variant's settled period, no switch-on surge; a variant
+    without one runs the transient and its "basis" column says why), "transient" (from cold),
+    or "auto" (periodic when the circuit has a period and no stop is given). reltol: each
+    variant's relative tolerance (0: the netlist's transient's). progress(done, total): called at
     most every 0.1 s locally, and as each chunk returns from a cluster; a False return cancels
     a local run (KeyboardInterrupt, as Ctrl-C).
 
@@ -130,7 +136,8 @@ def campaign(source, builds=None, seed=None, vary=None, tolerance=None, keep_pla
         net.statement(s)
     if client is None:
         return CampaignResult(net, _disc.run_campaign(net, threads=int(threads), stop=float(stop),
-                                                      progress=progress))
+                                                      progress=progress, basis=str(basis),
+                                                      reltol=float(reltol)))
     if text is None:
         raise ValueError("a cluster run rebuilds the circuit from netlist text on each worker: "
                          "give a .disc path or netlist text, not a Circuit")
@@ -143,7 +150,8 @@ def campaign(source, builds=None, seed=None, vary=None, tolerance=None, keep_pla
         raise ValueError(f"chunk must be at least 1 variant, got {chunk}")
     starts = list(range(0, total, chunk))
     futures = [client.submit(_chunk, text, name, statements, first, min(chunk, total - first),
-                             float(stop), int(worker_threads), pure=False) for first in starts]
+                             float(stop), int(worker_threads), str(basis), float(reltol),
+                             pure=False) for first in starts]
     if progress is not None:
         from distributed import as_completed
 

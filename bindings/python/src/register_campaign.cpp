@@ -85,10 +85,18 @@ void registerCampaign(py::module_& m) {
   m.def(
       "run_campaign",
       [](const Netlist& n, int threads, double stop, std::size_t first, std::size_t count,
-         py::object progress) {
+         py::object progress, const std::string& basis, double reltol) {
         CampaignOptions o;
         o.threads = threads;
         o.stop = stop;
+        if (basis == "periodic")
+          o.basis = CampaignBasis::Periodic;
+        else if (basis == "transient")
+          o.basis = CampaignBasis::Transient;
+        else if (basis != "auto")
+          throw InputError("campaign: basis must be 'auto', 'periodic' or 'transient', got '" +
+                           basis + "'");
+        o.reltol = reltol;
         o.progress = campaignProgress(progress);
         const Netlist copy = n;  // copied under the GIL, run without it
         CampaignTable t;
@@ -99,9 +107,11 @@ void registerCampaign(py::module_& m) {
         return tableColumns(std::move(t));
       },
       py::arg("netlist"), py::arg("threads") = 0, py::arg("stop") = 0.0, py::arg("first") = 0,
-      py::arg("count") = 0, py::arg("progress") = py::none(),
+      py::arg("count") = 0, py::arg("progress") = py::none(), py::arg("basis") = "auto",
+      py::arg("reltol") = 0.0,
       "Variants [first, first + count) of the netlist's campaign as [(name, unit, values)]; "
-      "progress(done, total) at most every 0.1 s (False cancels: KeyboardInterrupt).");
+      "progress(done, total) at most every 0.1 s (False cancels: KeyboardInterrupt); basis "
+      "'auto', 'periodic' or 'transient'; reltol 0: the netlist's.");
   m.def(
       "campaign_variants", [](const Netlist& n) { return n.campaign.variants(); },
       py::arg("netlist"));
