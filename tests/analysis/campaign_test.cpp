@@ -438,6 +438,11 @@ TEST_CASE("On the periodic basis the table is the same on 1 thread, 2 and every 
     CHECK(one["output.settled"].values[r] == 1.0);
     CHECK(std::isnan(one["SR1.surge_peak"].values[r]));  // a settled period has no switch-on
   }
+  const CampaignSummary s = summariseCampaign(nl, nl.campaign, one);
+  CHECK(s.periodicBasis == 4);
+  CHECK(s.transientBasis == 0);
+  CHECK_THAT(campaignText(s), Catch::Contains("settled period (periodic steady state) in 4"));
+  CHECK_THAT(campaignJson(s), Catch::Contains("\"periodic\": 4"));
   o.threads = 2;
   requireIdentical(one, runCampaign(nl, nl.campaign, o));
   o.threads = 0;

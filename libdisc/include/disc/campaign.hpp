@@ -118,6 +118,9 @@ struct ArmSummary {
 struct CampaignSummary {
   std::string title, file;
   std::size_t variants = 0, failed = 0;
+  /// Variants whose figures come from their settled period, and from a transient (the
+  /// table's basis column; both 0 without a supply report).
+  std::size_t periodicBasis = 0, transientBasis = 0;
   int builds = 1;
   std::vector<std::string> varied;   ///< what the campaign varies, in words
   std::vector<std::string> reading;  ///< the plain-language reading, first thing in every report

@@ -79,6 +79,11 @@ CampaignSummary summariseCampaign(const Netlist& nl, const CampaignSpec& spec,
   out.failed = static_cast<std::size_t>(
       std::count_if(status.begin(), status.end(), [](const std::string& s) { return s != "ok"; }));
   const std::size_t ran = out.variants - out.failed;
+  if (t.has("basis"))
+    for (const auto& b : t["basis"].words) {
+      if (b == "periodic") ++out.periodicBasis;
+      if (b.rfind("transient", 0) == 0) ++out.transientBasis;
+    }
   for (const auto& a : spec.axes)
     out.varied.push_back(
         fmt::format("{}.{} over {} values", a.element, a.parameter, a.values.size()));
@@ -204,6 +209,13 @@ std::string campaignText(const CampaignSummary& s) {
   std::string o =
       fmt::format("libdisc campaign: {}\nfile {}, {} variant(s), {} build(s) per grid point\n\n",
                   s.title, s.file, s.variants, s.builds);
+  if (s.periodicBasis + s.transientBasis > 0) {
+    o.pop_back();
+    o += fmt::format(
+        "figures from the settled period (periodic steady state) in {}, from a transient from "
+        "cold in {} (the basis column says why)\n\n",
+        s.periodicBasis, s.transientBasis);
+  }
   o += "READING\n";
   for (const auto& r : s.reading) o += "  " + r + "\n";
   o += "\nVARIED\n";
@@ -244,6 +256,7 @@ std::string campaignJson(const CampaignSummary& s) {
   j["file"] = s.file;
   j["variants"] = s.variants;
   j["failed"] = s.failed;
+  j["basis"] = {{"periodic", s.periodicBasis}, {"transient", s.transientBasis}};
   j["builds"] = s.builds;
   j["reading"] = s.reading;
   j["varied"] = s.varied;
