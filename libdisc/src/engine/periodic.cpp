@@ -438,7 +438,10 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
       x = z0;
       finish(out, sens);
       ps.stepsPerPeriod = static_cast<int>(grid_.size());
-      if (rec && !recThis) recordPeriod(x, slowTime, *rec, stats);
+      if (rec && !recThis) {
+        rec->clear();  // what an earlier, unsettled pass recorded
+        recordPeriod(x, slowTime, *rec, stats);
+      }
       solved_ = true;
       return;
     }
