@@ -64,10 +64,24 @@ def brute(cli, tmp, stop, reltol):
     wall, rss = timed([cli, "run", "-q", path, "-o", out])
     c = columns(os.path.join(out, "transient-1.csv"))
     t, v = c["time"], c["v:c"]
-    t0 = stop - 1.0 / 60.0  # the last mains cycle
-    area = sum(0.5 * (v[k] + v[k - 1]) * (t[k] - t[k - 1])
-               for k in range(1, len(t)) if t[k - 1] >= t0)
-    return wall, rss, area / (t[-1] - t0), c["temp:SR1"][-1]
+    t0 = t[-1] - 1.0 / 60.0  # the last mains cycle
+    return wall, rss, window_mean(t, v, t0), c["temp:SR1"][-1]
+
+
+def window_mean(t, v, t0):
+    """Mean of the piecewise-linear v(t) over exactly [t0, t[-1]] (v interpolated at t0), so the
+    window is one whole period whatever the sample times."""
+    area = 0.0
+    for k in range(1, len(t)):
+        a, b = t[k - 1], t[k]
+        if b <= t0:
+            continue
+        va = v[k - 1]
+        if a < t0:  # the sample interval that straddles t0: start at t0
+            va = v[k - 1] + (v[k] - v[k - 1]) * (t0 - a) / (b - a)
+            a = t0
+        area += 0.5 * (va + v[k]) * (b - a)
+    return area / (t[-1] - t0)
 
 
 def main():
