@@ -16,6 +16,7 @@ import os
 import pathlib
 import re
 import shutil
+import signal
 import subprocess
 import sys
 import tempfile
@@ -35,7 +36,8 @@ def start_browser(profile):
         [exe, "--headless=new", "--no-sandbox", "--disable-gpu", "--no-first-run",
          "--remote-debugging-port=0", f"--user-data-dir={profile}",
          f"--window-size={WIDTH},900", "about:blank"],
-        stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+        stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True,
+        start_new_session=True)  # its own process group, so every helper process is stopped
     deadline = time.time() + 60
     while time.time() < deadline:
         line = proc.stderr.readline()
@@ -44,8 +46,26 @@ def start_browser(profile):
         m = re.search(r"DevTools listening on ws://([^/]+)/", line)
         if m:
             return proc, m.group(1)
-    proc.kill()
+    stop_browser(proc)
     sys.exit("html_check: chromium did not open its DevTools port")
+
+
+def stop_browser(proc):
+    # Chromium's helper processes outlive the main one and keep writing to the profile, so the
+    # whole group is stopped before the profile is removed.
+    try:
+        os.killpg(proc.pid, signal.SIGKILL)
+    except ProcessLookupError:
+        pass
+    proc.wait()
+
+
+def remove_profile(profile):
+    for _ in range(50):
+        shutil.rmtree(profile, ignore_errors=True)
+        if not os.path.exists(profile):
+            return
+        time.sleep(0.1)
 
 
 class Page:
@@ -93,7 +113,8 @@ PROBE = """JSON.stringify({
 
 def problems_of(page_path, screenshot):
     problems = []
-    with tempfile.TemporaryDirectory() as profile:
+    profile = tempfile.mkdtemp(prefix="disc-chromium-")
+    try:
         proc, host = start_browser(profile)
         try:
             page = Page(host)
@@ -140,8 +161,9 @@ def problems_of(page_path, screenshot):
             print(f"{page_path}: {len(probe['charts'])} chart(s), {probe['svgs']} SVG plot(s), "
                   f"{probe['height']} px long; screenshot {screenshot}")
         finally:
-            proc.kill()
-            proc.wait()
+            stop_browser(proc)
+    finally:
+        remove_profile(profile)
     return problems
 
 
