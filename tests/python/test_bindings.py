@@ -345,3 +345,30 @@ def test_example_path_finds_the_bundled_netlists_from_anywhere(tmp_path, monkeyp
     assert "SR1" in radio.elements
     with pytest.raises(FileNotFoundError, match="table-radio-half-wave.disc"):
         disc.example_path("no-such-radio.disc")   # the message lists what there is
+
+
+def test_waveform_parameters_set_like_any_other():
+    # A first-order RC low-pass in its periodic steady state: the capacitor's peak voltage is
+    # V_peak / sqrt(1 + (w R C)^2) (phasor analysis; J. W. Nilsson and S. A. Riedel, Electric
+    # Circuits, chapter 9). The source's rms and frequency are changed from Python only.
+    c = disc.parse("voltage VIN in gnd rms=10V frequency=50Hz\n"
+                   "resistor R1 in out 1k\ncapacitor C1 out gnd 1u\n")
+
+    def settled_peak():
+        v = c.run_periodic(record=["v:out"], reltol=1e-7)["v:out"]
+        return (v.max() - v.min()) / 2
+
+    def expected(rms, f):
+        return rms * math.sqrt(2) / math.sqrt(1 + (2 * math.pi * f * 1e3 * 1e-6) ** 2)
+
+    # The recorded period's points miss the crest by at most 1 - cos(pi / points): well under
+    # 1e-3 for the hundreds of points a tight tolerance takes per period.
+    assert settled_peak() == pytest.approx(expected(10, 50), rel=1e-3)
+    c["VIN"].rms = 5
+    c["VIN"].frequency = 500
+    assert c["VIN"].rms == pytest.approx(5) and c["VIN"].frequency == pytest.approx(500)
+    assert settled_peak() == pytest.approx(expected(5, 500), rel=1e-3)
+    c["VIN"].amplitude = 5  # a peak value: the same source as rms = 5 / sqrt(2)
+    assert c["VIN"].rms == pytest.approx(5 / math.sqrt(2))
+    with pytest.raises(ValueError):
+        c["VIN"].frequency = -1
