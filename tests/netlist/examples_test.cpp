@@ -33,6 +33,26 @@ Run runExample(const std::string& name) {
 
 double windowMean(const Run& r, const std::string& sig);
 
+/// Input = output + losses + what batteries absorb, within reltol, and efficiency at most 1.
+/// Tellegen's theorem: the sum of v i over all branches vanishes for any currents obeying
+/// Kirchhoff's current law, so the balance is off only by the solver's residual, reltol (1e-3
+/// by default, on every current) times the powers involved.
+void checkBalanceSums(const SupplyReport& rep, double losses, double magnitude, double reltol) {
+  const auto& o = rep.output;
+  // A battery that is neither load nor input absorbs (charging) or delivers (discharging).
+  double charging = 0.0, discharging = 0.0;
+  for (const auto& b : o.batteries) {
+    INFO("battery " << b.name << ": " << b.power << " W");
+    CHECK(b.state == (b.power >= 0 ? "charging" : "discharging"));
+    losses += b.power;
+    magnitude += std::abs(b.power);
+    (b.power >= 0 ? charging : discharging) += std::abs(b.power);
+  }
+  CHECK(std::abs(o.inputPower - o.outputPower - losses) <= reltol * magnitude);
+  CHECK(o.efficiency <= 1.0);
+  CHECK(o.efficiency == Approx((o.outputPower + charging) / (o.inputPower + discharging)));
+}
+
 /// The report's energy balance: input = output + every loss, each loss checked on its own.
 void checkEnergyBalance(const Run& r) {
   const auto& o = r.out.report.output;
@@ -60,23 +80,9 @@ void checkEnergyBalance(const Run& r) {
       CHECK(l.power > -1e-9);  // passive: absorbs on average
     }
   }
-  // A battery that is neither load nor input absorbs (charging) or delivers (discharging).
-  double charging = 0.0, discharging = 0.0;
-  for (const auto& b : o.batteries) {
-    INFO("battery " << b.name << ": " << b.power << " W");
+  for (const auto& b : o.batteries)
     CHECK(b.power == Approx(windowMean(r, "p:" + b.name)).epsilon(1e-9).margin(1e-12));
-    CHECK(b.state == (b.power >= 0 ? "charging" : "discharging"));
-    losses += b.power;
-    magnitude += std::abs(b.power);
-    (b.power >= 0 ? charging : discharging) += std::abs(b.power);
-  }
-  // Tellegen's theorem: the sum of v i over all branches vanishes for any currents obeying
-  // Kirchhoff's current law, so the balance is off only by the solver's residual, reltol (1e-3
-  // by default, on every current) times the powers involved.
-  const double reltol = r.nl.analyses.back().transient.tol.reltol;
-  CHECK(std::abs(o.inputPower - o.outputPower - losses) <= reltol * magnitude);
-  CHECK(o.efficiency <= 1.0);
-  CHECK(o.efficiency == Approx((o.outputPower + charging) / (o.inputPower + discharging)));
+  checkBalanceSums(r.out.report, losses, magnitude, r.nl.analyses.back().transient.tol.reltol);
 }
 
 double windowMean(const Run& r, const std::string& sig) {
@@ -468,6 +474,20 @@ TEST_CASE("Table radio warm-up: the report from one settled period balances, the
   r.out = runNetlist(r.nl);
   REQUIRE(r.out.hasReport);
   CHECK(r.out.reportAnalysis == 1);
+  {
+    // The report at the warm-up's end adds up too, to the warm-up's own reltol (1e-3,
+    // EnvelopeOptions::reltol): its period is the shooting's last pass, whose start and end
+    // differ by up to the shooting's tolerance, so the capacitors' stored energy (no loss of
+    // theirs) moves a little over the period and the balance is looser than at a cold start.
+    const auto& o = r.out.report.output;
+    REQUIRE(o.inputPower > 0.0);
+    double losses = 0.0, magnitude = o.inputPower + std::abs(o.outputPower);
+    for (const auto& l : o.losses) {
+      losses += l.power;
+      magnitude += std::abs(l.power);
+    }
+    checkBalanceSums(r.out.report, losses, magnitude, EnvelopeOptions{}.reltol);
+  }
   const WarmUpSummary& w = r.out.analyses[1].warmUp;
   CHECK(w.endTime == Approx(3600.0));
   CHECK(w.failures.empty());
