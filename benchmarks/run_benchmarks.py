@@ -109,12 +109,12 @@ def python_overhead(build):
     walls, inner = [], []
     for _ in range(5):
         t0 = time.perf_counter()
-        r = c.run_transient(stop=1.0, record=["v:out"], method="trap")
+        r = c.run_transient(stop=1.0, record=["v:out"], method="trapezoidal")
         walls.append(time.perf_counter() - t0)
         inner.append(r.stats["wall_s"])
     py, cpp = min(walls), min(inner)
-    print(f"1 s bridge, trap: {py * 1e3:.1f} ms from Python, {cpp * 1e3:.1f} ms inside the C++ "
-          f"run: overhead {100 * (py - cpp) / cpp:.2f} %")
+    print(f"1 s bridge, trapezoidal: {py * 1e3:.1f} ms from Python, {cpp * 1e3:.1f} ms inside "
+          f"the C++ run: overhead {100 * (py - cpp) / cpp:.2f} %")
     # Best of three loops: the first pays one-time costs of the interpreter and NumPy (0.8 us
     # per access against 0.3 us after).
     n = 100000
@@ -184,13 +184,13 @@ def scipy_comparison(cli, build):
              (1e-9, 1e-10)]
     for reltol, abstol in [(1e-3, None), (1e-4, None), (1e-5, None), (1e-6, None),
                            (1e-7, None)] + tight:
-        runs = [disc_figures(cli, "shockley-bridge", "trap", reltol, abstol=abstol)
+        runs = [disc_figures(cli, "shockley-bridge", "trapezoidal", reltol, abstol=abstol)
                 for _ in range(3)]
         f = min(runs, key=lambda r: r["wall_s"])
-        wave = circuit.run_transient(stop=stop, record=["v:out"], method="trap", reltol=reltol,
+        wave = circuit.run_transient(stop=stop, record=["v:out"], method="trapezoidal", reltol=reltol,
                                      abstol=abstol or 0.0)
         tol = f"{reltol:g}" + (f" (abstol {abstol:g})" if abstol else "")
-        rows.append(("libdisc trap", tol, f["wall_s"],
+        rows.append(("libdisc trapezoidal", tol, f["wall_s"],
                      abs(f["output_mean_V"] - ref_mean) / ref_mean,
                      waveform_error(np.asarray(wave.time), np.asarray(wave["v:out"]))))
     # SciPy: atol a thousandth of rtol, and its loosest finishing rtol once more with a tighter
@@ -214,7 +214,7 @@ def scipy_comparison(cli, build):
     # libdisc run in the table at least as accurate on the waveform (a bound that depends on
     # how finely the table samples the tolerances); and the same on the waveform and the mean.
     print()
-    ours = [r for r in rows if r[0] == "libdisc trap"]
+    ours = [r for r in rows if r[0] == "libdisc trapezoidal"]
     for name, rtol, wall, err_mean, err_wave in rows:
         if name != "SciPy Radau":
             continue

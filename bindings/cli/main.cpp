@@ -118,7 +118,7 @@ int listPlates() {
 
 struct ExampleArgs {
   std::string name;
-  std::string method = "trap";
+  std::string method = "trapezoidal";
   double stop = 1.0;
   int cycles = 1;
   bool json = false;
@@ -369,8 +369,17 @@ int main(int argc, char** argv) {
   ExampleArgs ex;
   auto* example = app.add_subcommand("example", "Run a reference circuit built into the library");
   example->add_option("name", ex.name, "Reference circuit (or 'list')")->required();
-  example->add_option("--method", ex.method, "Integration method: trap, bdf2 or ida")
-      ->check(CLI::IsMember({"trap", "bdf2", "ida"}));
+  example->add_option("--method", ex.method, "Integration method: trapezoidal, bdf2 or ida")
+      ->check(
+          [](const std::string& v) {
+            try {
+              disc::parseMethod(v);
+              return std::string();
+            } catch (const disc::InputError& e) {
+              return std::string(e.what());
+            }
+          },
+          "METHOD");
   example->add_option("--stop", ex.stop, "End time of the transient, s")
       ->check(CLI::PositiveNumber);
   example->add_option("--cycles", ex.cycles, "Settled mains cycles to measure over")

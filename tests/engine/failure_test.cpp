@@ -315,7 +315,7 @@ capacitor C1 b gnd 100uF
 resistor RL b gnd 200ohm
 output b gnd load=RL
 )";
-  const char* method = GENERATE("trap", "ida");
+  const char* method = GENERATE("trapezoidal", "ida");
   INFO("method " << method);
   Netlist nl = parseNetlist(text + "run transient stop=20s method=" + method + "\n");
   const RunOutcome out = runNetlist(nl);

@@ -251,7 +251,7 @@ TEST_CASE("The silicon diode's parameters have descriptive names", "[netlist][pa
                                  "junction-capacitance", "built-in-potential", "grading-exponent",
                                  "transit-time", "breakdown-voltage", "breakdown-current",
                                  "thermal-resistance", "heat-capacity", "temperature",
-                                 "nominal-temperature"});
+                                 "reference-temp"});
   CHECK(d.parameter("series-resistance") == Approx(0.05));
 
   // Units are checked against each parameter's own unit; ranges by the device.
@@ -290,15 +290,57 @@ TEST_CASE("run transient takes a temperature tolerance of its own", "[netlist][p
               "temperature-abstol (K) must lie above 0");
 }
 
-TEST_CASE("A diode's nominal temperature is a parameter, 300.15 K unless given",
+TEST_CASE("A diode's reference temperature is a parameter, 300.15 K unless given",
           "[netlist][parser]") {
   const Netlist nl = parseNetlist(
       "current I1 gnd a dc=1mA\ndiode D1 a gnd saturation-current=1e-6 temperature=300K\n"
-      "diode D2 a gnd saturation-current=1e-6 temperature=300K nominal-temperature=300K\n");
+      "diode D2 a gnd saturation-current=1e-6 temperature=300K reference-temp=300K\n");
   CHECK(static_cast<const Diode&>(*nl.circuit.find("D1")).params().referenceTemperature == 300.15);
   CHECK(static_cast<const Diode&>(*nl.circuit.find("D2")).params().referenceTemperature ==
         Approx(300.0));
-  CHECK(nl.circuit.find("D2")->parameter("nominal-temperature") == Approx(300.0));
+  CHECK(nl.circuit.find("D2")->parameter("reference-temp") == Approx(300.0));
+}
+
+TEST_CASE("The names of the naming pass, and each old spelling an error naming the new one",
+          "[netlist][parser][names]") {
+  // on-resistance and off-resistance: a closed switch of 2 ohm into 2 ohm halves 1 V; opened,
+  // 1 Mohm into 2 ohm leaves 2 uV (Ohm's law).
+  for (const auto& [when, expected] : std::vector<std::pair<std::string, double>>{
+           {"open=1s", 0.5}, {"close=1s", 2.0 / (1e6 + 2.0)}}) {
+    const Netlist nl = parseNetlist("voltage V1 a gnd dc=1V\nswitch S1 a b " + when +
+                                    " on-resistance=2ohm off-resistance=1Mohm\n"
+                                    "resistor R1 b gnd 2ohm\nrun operating-point\n");
+    OperatingPointOptions o;
+    o.record = {"v:b"};
+    INFO(when);
+    CHECK(operatingPoint(nl.circuit, o)["v:b"].front() == Approx(expected).epsilon(1e-9));
+  }
+  expectError(kOk + "switch S1 a gnd open=1s ron=1\n", 3, 25,
+              "'ron' is now called 'on-resistance' (in ohm)");
+  expectError(kOk + "switch S1 a gnd open=1s roff=1G\n", 3, 25,
+              "'roff' is now called 'off-resistance' (in ohm)");
+  expectError(kOk + "switch S1 a gnd open=1s on-resistence=1\n", 3, 25,
+              "did you mean 'on-resistance'");
+
+  // method=trapezoidal, the trapezoidal rule's name; trap is the old spelling.
+  const Netlist nl = parseNetlist(kOk + "run transient stop=1ms method=trapezoidal\n");
+  REQUIRE(nl.analyses.size() == 1);
+  CHECK(nl.analyses[0].transient.method == Method::Trapezoidal);
+  CHECK(std::string(methodName(Method::Trapezoidal)) == "trapezoidal");
+  expectError(kOk + "run transient stop=1ms method=trap\n", 3, 31,
+              "method 'trap' is now called 'trapezoidal'");
+  expectError(kOk + "run transient stop=1ms method=euler\n", 3, 31, "use trapezoidal, bdf2 or ida");
+  CHECK_THROWS_WITH(parseMethod("trap"), Contains("now called 'trapezoidal'"));
+
+  // reference-temp on the diode, as on the thermistor; nominal-temperature is the old name.
+  expectError(kOk + "diode D1 a gnd nominal-temperature=300K\n", 3, 16,
+              "'nominal-temperature' is now called 'reference-temp' (in K)");
+  Diode d("D9", 0, kGround);
+  CHECK_THROWS_WITH(d.setParameter("nominal-temperature", 300.0), Contains("'reference-temp'"));
+
+  // A signal as a function of its node, v(b), is written kind:target.
+  expectError(kOk + "record v(a)\n", 3, 8, "signal 'v(a)' is written v:a (kind:target)");
+  expectError(kOk + "record i(R1)\n", 3, 8, "is written i:R1");
 }
 
 TEST_CASE("Lamps, valve loads and level schedules in the language", "[netlist][parser]") {

@@ -88,7 +88,7 @@ def test_simulation_errors_are_typed():
     c.capacitor("C1", "a", "b", 1e-6)
     c.capacitor("C2", "b", "gnd", 1e-6)
     with pytest.raises(disc.SimulationError, match="no DC path"):
-        c.run_op()
+        c.run_operating_point()
 
 
 def test_parameters_by_name_drive_a_sweep_without_reparsing():
@@ -116,7 +116,7 @@ def test_diode_keywords_are_the_netlist_names():
                             "junction_capacitance", "built_in_potential", "grading_exponent",
                             "transit_time", "breakdown_voltage", "breakdown_current",
                             "thermal_resistance", "heat_capacity", "temperature",
-                            "nominal_temperature"]
+                            "reference_temp"]
     assert d.saturation_current == pytest.approx(5e-9)
     assert d.junction_capacitance == pytest.approx(33e-12)
     d.series_resistance = 0.1
@@ -126,6 +126,31 @@ def test_diode_keywords_are_the_netlist_names():
         d.n = 2.0
     with pytest.raises(ValueError, match="'is' is now called 'saturation-current'"):
         c.statement("diode D2 a k is=5n")
+
+
+def test_names_of_the_naming_pass_and_their_old_spellings():
+    # The switch's resistances by their own names: closed, 2 ohm into 2 ohm halves 1 V (Ohm's
+    # law); the old short names, the old method word and run_op() are errors naming the new one.
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", dc=1)
+    c.switch("S1", "a", "b", open=1.0, on_resistance=2, off_resistance=1e6)
+    c.resistor("R1", "b", "gnd", 2)
+    assert c.run_operating_point(record=["v:b"])["v:b"][0] == pytest.approx(0.5, rel=1e-9)
+    with pytest.raises(TypeError, match="'ron' is now called 'on_resistance'"):
+        c.switch("S2", "a", "b", open=1.0, ron=2)
+    with pytest.raises(TypeError, match="'roff' is now called 'off_resistance'"):
+        c.switch("S2", "a", "b", open=1.0, roff=1e6)
+    with pytest.raises(TypeError, match="unexpected keyword argument 'closed'"):
+        c.switch("S2", "a", "b", closed=1.0)
+    with pytest.raises(TypeError, match="'nominal_temperature' is now called 'reference_temp'"):
+        c.diode("D1", "a", "gnd", nominal_temperature=300)
+    with pytest.raises(ValueError, match="'ron' is now called 'on-resistance'"):
+        c.statement("switch S3 a b open=1s ron=1")
+    with pytest.raises(AttributeError, match=r"run_op\(\) is now called .*run_operating_point"):
+        c.run_op()
+    with pytest.raises(ValueError, match="'trap' is now called 'trapezoidal'"):
+        c.run_transient(stop=1e-3, method="trap")
+    assert c.run_transient(stop=1e-3, method="trapezoidal").stats["method"] == "trapezoidal"
 
 
 def test_clone_is_independent():
@@ -140,7 +165,7 @@ def test_clone_is_independent():
 
 def test_operating_point_and_csv(tmp_path):
     c = disc.parse("voltage V1 in gnd dc=12V\nresistor R1 in mid 1k\nresistor R2 mid gnd 2k\n")
-    r = c.run_op(record=["v:mid"])
+    r = c.run_operating_point(record=["v:mid"])
     assert r["v:mid"][0] == pytest.approx(8.0, rel=1e-6)
     r.to_csv(tmp_path / "op.csv")
     assert (tmp_path / "op.csv").read_text().startswith("time [s],v:mid [V]")
@@ -225,18 +250,18 @@ def test_absolute_tolerance_reaches_the_engine():
     assert tight["v:b"][-1] == pytest.approx(loose["v:b"][-1], rel=1e-3)
 
 
-def test_nominal_temperature_and_temperature_tolerance():
-    # Shockley's law at the nominal temperature: with the device at that temperature the
+def test_reference_temperature_and_temperature_tolerance():
+    # Shockley's law at the reference temperature: with the device at that temperature the
     # saturation current is the one given, so V = n kT/q ln(I/Is + 1) (A. S. Sedra and K. C.
     # Smith, Microelectronic Circuits, the diode equation). Given at 300.15 K but run at 300 K,
     # the current source's voltage differs.
     k_over_q = 1.380649e-23 / 1.602176634e-19
     volts = []
-    for nominal in (300.0, None):
+    for reference in (300.0, None):
         c = disc.Circuit()
         c.current("I1", "gnd", "a", dc=1e-3)
         c.diode("D1", "a", "gnd", saturation_current=1e-9, ideality=1.0, series_resistance=0,
-                temperature=300.0, nominal_temperature=nominal)
+                temperature=300.0, reference_temp=reference)
         r = c.run_transient(stop=1e-3, start="operating-point", record=["v:a"],
                             temperature_abstol=1e-6)
         volts.append(r["v:a"][-1])

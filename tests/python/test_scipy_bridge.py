@@ -78,7 +78,7 @@ def run_disc(method, reltol=1e-6, extra=()):
     return json.loads(out)
 
 
-@pytest.mark.parametrize("method", ["trap", "bdf2", "ida"])
+@pytest.mark.parametrize("method", ["trapezoidal", "bdf2", "ida"])
 def test_bridge_matches_scipy_radau(reference, method):
     got = run_disc(method)
     # Issue targets: mean output within 0.1 %, ripple within 1 %.
@@ -87,7 +87,7 @@ def test_bridge_matches_scipy_radau(reference, method):
 
 
 def test_methods_agree_within_a_thousandth():
-    figures = [run_disc(m) for m in ("trap", "bdf2", "ida")]
+    figures = [run_disc(m) for m in ("trapezoidal", "bdf2", "ida")]
     means = [f["output_mean_V"] for f in figures]
     ripples = [f["ripple_pp_V"] for f in figures]
     assert max(means) - min(means) <= 1e-3 * min(means)
@@ -99,7 +99,7 @@ def test_python_module_matches_scipy_radau(reference):
     import disc  # a broken module must fail here, not skip
 
     r = disc.reference_circuit("shockley-bridge").run_transient(stop=STOP, record=["v:out"],
-                                                               method="trap", reltol=1e-6)
+                                                               method="trapezoidal", reltol=1e-6)
     t, v = r.time, r["v:out"]
     keep = t >= STOP - 1 / FREQ
     mean = np.trapz(v[keep], t[keep]) / (t[keep][-1] - t[keep][0])
@@ -110,8 +110,8 @@ def test_python_module_matches_scipy_radau(reference):
 def test_tighter_absolute_tolerance_is_more_accurate(reference):
     # Below about 1e-6 relative accuracy the absolute tolerances (1e-6 V and A by default) set
     # the error: --abstol tightens them (reference: the Radau solution above).
-    loose = run_disc("trap", 1e-8)
-    tight = run_disc("trap", 1e-8, ["--abstol", "1e-9"])
+    loose = run_disc("trapezoidal", 1e-8)
+    tight = run_disc("trapezoidal", 1e-8, ["--abstol", "1e-9"])
     assert tight["abstol"] == 1e-9 and loose["abstol"] == 1e-6
     err = [abs(f["output_mean_V"] - reference["mean"]) / reference["mean"] for f in (loose, tight)]
     assert err[1] < 1e-6

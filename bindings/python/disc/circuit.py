@@ -29,6 +29,18 @@ def _params(**kwargs):
     return [(k.replace("_", "-"), _text(v)) for k, v in kwargs.items() if v is not None]
 
 
+def _refuse_retired(method, given, renamed):
+    """A keyword argument by a name the language no longer uses: a TypeError naming the new one."""
+    for old in given:
+        if old in renamed:
+            raise TypeError(f"{method}(): '{old}' is now called '{renamed[old]}'")
+        raise TypeError(f"{method}() got an unexpected keyword argument '{old}'")
+
+
+# Circuit methods renamed in the naming pass (docs/netlist.md, "Names").
+_RETIRED_METHODS = {"run_op": "run_operating_point"}
+
+
 class Element:
     """One element of a circuit; its parameters read and set as attributes (netlist names with
     '_' for '-'), e.g. ``c["SR1"].plates = 6`` or ``c["RL"].resistance = 1200``."""
@@ -194,12 +206,13 @@ class Circuit:
               series_resistance=None, junction_capacitance=None, built_in_potential=None,
               grading_exponent=None, transit_time=None, breakdown_voltage=None,
               breakdown_current=None, thermal_resistance=None, heat_capacity=None,
-              temperature=None, nominal_temperature=None):
+              temperature=None, reference_temp=None, **retired):
         """Silicon diode: saturation current (A), ideality, series resistance (ohm), zero-bias
         junction capacitance (F), built-in potential (V), grading exponent, transit time (s),
         reverse breakdown voltage (V) and the current there (A), junction-to-ambient thermal
         resistance (K/W) and heat capacity (J/K), temperature (K; default the ambient), and the
-        nominal temperature the saturation current is given at (K; default 300.15)."""
+        reference temperature the saturation current is given at (K; default 300.15)."""
+        _refuse_retired("diode", retired, {"nominal_temperature": "reference_temp"})
         return self._add("diode", name, (anode, cathode), saturation_current=saturation_current,
                          ideality=ideality, series_resistance=series_resistance,
                          junction_capacitance=junction_capacitance,
@@ -207,7 +220,7 @@ class Circuit:
                          transit_time=transit_time, breakdown_voltage=breakdown_voltage,
                          breakdown_current=breakdown_current,
                          thermal_resistance=thermal_resistance, heat_capacity=heat_capacity,
-                         temperature=temperature, nominal_temperature=nominal_temperature)
+                         temperature=temperature, reference_temp=reference_temp)
 
     def stack(self, name, anode, cathode, type, plates=None, parallel=None, mode=None,
               spread=None, seed=None, forming=None, stored_years=None, stored_temp=None,
@@ -260,9 +273,13 @@ class Circuit:
                          forming_time=forming_time, forming=forming, stored_years=stored_years,
                          storage_years=storage_years)
 
-    def switch(self, name, a, b, close=None, open=None, ron=None, roff=None):
-        """Switch closing and/or opening at the given times (s)."""
-        return self._add("switch", name, (a, b), close=close, open=open, ron=ron, roff=roff)
+    def switch(self, name, a, b, close=None, open=None, on_resistance=None, off_resistance=None,
+               **retired):
+        """Switch closing and/or opening at the given times (s); its resistance closed and open
+        (ohm; default 1 mohm and 1 Gohm)."""
+        _refuse_retired("switch", retired, {"ron": "on_resistance", "roff": "off_resistance"})
+        return self._add("switch", name, (a, b), close=close, open=open,
+                         on_resistance=on_resistance, off_resistance=off_resistance)
 
     # -- circuit-level statements --------------------------------------------------------
     def output(self, positive, negative, load, kind=None):
@@ -304,9 +321,9 @@ class Circuit:
         self._net.check()
 
     # -- analyses -------------------------------------------------------------------------
-    def run_transient(self, stop, record=None, method="trap", start="cold", max_step=0.0,
+    def run_transient(self, stop, record=None, method="trapezoidal", start="cold", max_step=0.0,
                       reltol=0.0, abstol=0.0, temperature_abstol=0.0, progress=None):
-        """Transient from 0 to stop (s). method: 'trap', 'bdf2' or 'ida'; start: 'cold' or
+        """Transient from 0 to stop (s). method: 'trapezoidal', 'bdf2' or 'ida'; start: 'cold' or
         'operating-point'; reltol (default 1e-3), abstol (volts and amperes, default 1e-6) and
         temperature_abstol (kelvin, default 1e-4), 0 for the defaults. The run works on a copy
         of the circuit taken at the call and releases the GIL; Ctrl-C stops it. progress(time,
@@ -363,9 +380,15 @@ class Circuit:
             max_total=max_time, max_steps=max_steps, max_slow_step=max_slow_step,
             progress=progress))
 
-    def run_op(self, record=None):
+    def run_operating_point(self, record=None):
         """DC operating point (one time point)."""
-        return Result(self, self._net.run_op(list(record or [])))
+        return Result(self, self._net.run_operating_point(list(record or [])))
+
+    def __getattr__(self, key):
+        # Only reached for names the class lacks: a renamed method's old name says the new one.
+        if key in _RETIRED_METHODS:
+            raise AttributeError(f"Circuit.{key}() is now called Circuit.{_RETIRED_METHODS[key]}()")
+        raise AttributeError(f"'Circuit' object has no attribute '{key}'")
 
     def run(self, progress=None):
         """Runs the analyses the netlist names; returns (results, report dict or None).

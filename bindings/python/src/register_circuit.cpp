@@ -248,7 +248,7 @@ void registerCircuit(py::module_& m) {
           py::arg("progress") = py::none(),
           "A warm-up as `run warm-up` makes it: (series, summary dict, report JSON or None).")
       .def(
-          "run_op",
+          "run_operating_point",
           [](const Netlist& n, const std::vector<std::string>& record) {
             checkNetlist(n);
             OperatingPointOptions o;

@@ -101,7 +101,7 @@ StepEstimate estimateSteps(const Circuit& circuit, const TransientOptions& optio
 void checkStepBudget(const Circuit& circuit, const TransientOptions& options);
 
 const char* methodName(Method m);
-/// Parses "trap", "bdf2" or "ida"; throws InputError otherwise.
+/// Parses "trapezoidal", "bdf2" or "ida"; throws InputError otherwise ("trap" with the new name).
 Method parseMethod(const std::string& name);
 
 }  // namespace disc

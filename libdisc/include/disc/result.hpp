@@ -12,7 +12,7 @@ namespace disc {
 
 /// Work counters of one analysis run.
 struct RunStats {
-  std::string method;  ///< "operating-point", "trap", "bdf2" or "ida"
+  std::string method;  ///< "operating-point", "trapezoidal", "bdf2" or "ida"
   long acceptedSteps = 0;
   long rejectedSteps = 0;  ///< truncation-error and Newton-failure rejections together
   long newtonIterations = 0;

@@ -65,7 +65,7 @@ const std::vector<DeviceParameter>& Diode::parameterTable() const {
       field("thermal-resistance", &P::thermalResistance, "K/W", {"rth"}),
       field("heat-capacity", &P::heatCapacity, "J/K", {"cth"}),
       field("temperature", &P::temperature, "K", {}),
-      field("nominal-temperature", &P::referenceTemperature, "K", {})};
+      field("reference-temp", &P::referenceTemperature, "K", {"nominal-temperature"})};
   return t;
 }
 

@@ -16,7 +16,7 @@ namespace disc {
 const char* methodName(Method m) {
   switch (m) {
     case Method::Trapezoidal:
-      return "trap";
+      return "trapezoidal";
     case Method::Bdf2:
       return "bdf2";
     case Method::Ida:
@@ -26,10 +26,13 @@ const char* methodName(Method m) {
 }
 
 Method parseMethod(const std::string& name) {
-  if (name == "trap") return Method::Trapezoidal;
+  if (name == "trapezoidal") return Method::Trapezoidal;
   if (name == "bdf2") return Method::Bdf2;
   if (name == "ida") return Method::Ida;
-  throw InputError(fmt::format("unknown integration method '{}': use trap, bdf2 or ida", name));
+  if (name == "trap")
+    throw InputError("method 'trap' is now called 'trapezoidal' (the trapezoidal rule)");
+  throw InputError(
+      fmt::format("unknown integration method '{}': use trapezoidal, bdf2 or ida", name));
 }
 
 void TransientOptions::validate() const {

@@ -36,6 +36,7 @@ constexpr Dim kWord = static_cast<Dim>(-1);  // a parameter whose value is a wor
 struct ParamSpec {
   const char* name;
   Dim dim;
+  const char* retired = nullptr;  // the name it had before, an error naming this one
 };
 
 struct KindSpec {
@@ -130,8 +131,8 @@ const std::vector<KindSpec>& kinds() {
        nullptr,
        {{"close", Dim::Time},
         {"open", Dim::Time},
-        {"ron", Dim::Resistance},
-        {"roff", Dim::Resistance}},
+        {"on-resistance", Dim::Resistance, "ron"},
+        {"off-resistance", Dim::Resistance, "roff"}},
        {}},
   };
   return k;
@@ -506,6 +507,10 @@ class Builder {
         std::vector<std::string> names;
         for (const auto& ps : spec.params) names.emplace_back(ps.name);
         std::string hint = spec.table ? retiredParameterHint(*spec.table, tok.key) : "";
+        for (const auto& ps : spec.params)
+          if (hint.empty() && ps.retired && tok.key == ps.retired)
+            hint =
+                fmt::format(": '{}' is now called '{}' (in {})", tok.key, ps.name, dimUnit(ps.dim));
         if (hint.empty()) hint = didYouMean(tok.key, names);
         error(tok.where, fmt::format("a {} has no parameter '{}'{}", spec.kind, tok.key, hint));
         ok = false;
@@ -730,8 +735,8 @@ class Builder {
       std::vector<double> times;
       for (const auto& e : events) times.push_back(e.first);
       const bool closedAtStart = !events.front().second;
-      return std::make_unique<Switch>(name, n[0], n[1], closedAtStart, times, p.get("ron", 1e-3),
-                                      p.get("roff", 1e9));
+      return std::make_unique<Switch>(name, n[0], n[1], closedAtStart, times,
+                                      p.get("on-resistance", 1e-3), p.get("off-resistance", 1e9));
     }
     (void)s;
     return nullptr;
@@ -902,11 +907,11 @@ class Builder {
             a.transient.stop = *v;
             haveStop = true;
           } else if (tok.key == "method") {
-            if (tok.value == "trap" || tok.value == "bdf2" || tok.value == "ida")
+            try {
               a.transient.method = parseMethod(tok.value);
-            else
-              error(tok.valueWhere,
-                    fmt::format("method is trap, bdf2 or ida, got '{}'", tok.value));
+            } catch (const InputError& e) {
+              error(tok.valueWhere, e.what());
+            }
           } else if (tok.key == "max-steps") {
             // The step budget (docs/limits.md): a whole number, raised to run a long job.
             auto v = number(tok.value, Dim::None, tok.valueWhere);
@@ -1160,6 +1165,12 @@ class Builder {
   /// "" when a signal name refers to existing nodes and device quantities.
   std::string checkSignal(const std::string& sig) {
     const auto colon = sig.find(':');
+    // A quantity written as a function of its node or element, v(b): the form is kind:target.
+    if (const auto paren = sig.find('('); colon == std::string::npos &&
+                                          paren != std::string::npos && paren > 0 &&
+                                          sig.back() == ')' && paren + 2 < sig.size())
+      return fmt::format("signal '{}' is written {}:{} (kind:target)", sig, sig.substr(0, paren),
+                         sig.substr(paren + 1, sig.size() - paren - 2));
     if (colon == std::string::npos || colon == 0 || colon + 1 == sig.size())
       return fmt::format("signal '{}' must be kind:target (v:node, i:element, temp:stack#3, ...)",
                          sig);
