@@ -319,6 +319,8 @@ TEST_CASE("The names of the naming pass, and each old spelling an error naming t
               "'ron' is now called 'on-resistance' (in ohm)");
   expectError(kOk + "switch S1 a gnd open=1s roff=1G\n", 3, 25,
               "'roff' is now called 'off-resistance' (in ohm)");
+  expectError(kOk + "run warm-up duration=1h temperature-tolerance=0.01\n", 3, 25,
+              "'temperature-tolerance' is now called 'temperature-abstol' (in K)");
   expectError(kOk + "switch S1 a gnd open=1s on-resistence=1\n", 3, 25,
               "did you mean 'on-resistance'");
 
@@ -393,7 +395,7 @@ TEST_CASE("run periodic and run warm-up in the language", "[netlist][parser][per
   const Netlist nl = parseNetlist(kOk +
                                   "run periodic reltol=1e-6 at=2min warm-up-periods=5 "
                                   "temperature-abstol=1e-3 start=cold\n"
-                                  "run warm-up duration=2h reltol=1e-4 temperature-tolerance=0.01 "
+                                  "run warm-up duration=2h reltol=1e-4 temperature-abstol=0.01 "
                                   "periodic-reltol=1e-5 max-step=10min\n");
   REQUIRE(nl.analyses.size() == 2);
   const auto& p = nl.analyses[0];

@@ -982,9 +982,14 @@ class Builder {
             else if (v)
               eo.reltol = *v;
           } else if (tok.key == "temperature-tolerance") {
+            // The same word as on run transient and run periodic.
+            error(tok.where,
+                  "run warm-up: 'temperature-tolerance' is now called "
+                  "'temperature-abstol' (in K)");
+          } else if (tok.key == "temperature-abstol") {
             auto v = number(tok.value, Dim::None, tok.valueWhere);
             if (v && (*v <= 0.0 || *v > 10.0))
-              error(tok.valueWhere, "temperature-tolerance (K) must lie above 0 and at most 10");
+              error(tok.valueWhere, "temperature-abstol (K) must lie above 0 and at most 10");
             else if (v)
               eo.temperatureTol = *v;
           } else if (tok.key == "periodic-reltol") {
@@ -994,9 +999,8 @@ class Builder {
             else if (v)
               eo.periodic.tol.reltol = *v;
           } else {
-            unknownKey(
-                tok, "warm-up",
-                {"duration", "max-step", "reltol", "temperature-tolerance", "periodic-reltol"});
+            unknownKey(tok, "warm-up",
+                       {"duration", "max-step", "reltol", "temperature-abstol", "periodic-reltol"});
           }
         }
         if (!haveDuration)

@@ -7,7 +7,8 @@
 
 namespace disc {
 
-/// Resistance ron when closed, roff when open (ohm); toggles at each listed time (s).
+/// Its on-resistance when closed and off-resistance when open (ohm); toggles at each listed time
+/// (s).
 class Switch : public DeviceBase<Switch> {
  public:
   Switch(std::string name, NodeId a, NodeId b, bool closedAtStart, std::vector<double> toggles,
