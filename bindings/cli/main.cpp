@@ -65,6 +65,7 @@ std::string stemOf(const std::string& path) {
 int runFile(const RunArgs& a) {
   disc::Netlist nl = disc::loadNetlist(a.file, includePolicy());
   const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) : a.outDir;
+  disc::checkOutputFolder(dir);  // refused before the run, not after it
   disc::RunOutcome out;
   {
     Progress progress;
@@ -209,8 +210,10 @@ int fitTraces(FitArgs& a) {
   for (const auto& path : a.traces) traces.push_back(disc::loadTrace(path));
   a.options.temperature = a.temperatureC + 273.15;
   a.options.dynamic = !a.staticOnly;
+  const std::string dir =
+      a.outDir.empty() ? "out/fit-" + disc::safeFileStem(a.options.name) : a.outDir;
+  disc::checkOutputFolder(dir);
   const disc::PlateFit fit = disc::fitPlate(traces, a.options);
-  const std::string dir = a.outDir.empty() ? "out/fit-" + a.options.name : a.outDir;
   const auto files = disc::writeFitFiles(fit, dir);
   if (!a.quiet) {
     fmt::print("{}", disc::fitReportText(fit));
@@ -300,7 +303,7 @@ struct CampaignArgs {
 };
 
 int runCampaignFile(const CampaignArgs& a) {
-  disc::Netlist nl = disc::loadNetlist(a.file);
+  disc::Netlist nl = disc::loadNetlist(a.file, includePolicy());
   // The options become statements of the language, so they are checked and reported alike.
   std::string extra;
   for (const auto& v : a.vary) extra += "vary " + v + "\n";
@@ -316,6 +319,8 @@ int runCampaignFile(const CampaignArgs& a) {
         "{} declares no campaign: add 'campaign builds=N' (and vary or tolerance statements) "
         "to it, or give --builds, --vary or --tolerance",
         a.file));
+  const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) + "-campaign" : a.outDir;
+  disc::checkOutputFolder(dir);
   disc::CampaignOptions o = a.options;
   o.basis = a.basis == "periodic"    ? disc::CampaignBasis::Periodic
             : a.basis == "transient" ? disc::CampaignBasis::Transient
@@ -330,7 +335,6 @@ int runCampaignFile(const CampaignArgs& a) {
   const disc::CampaignTable table = disc::runCampaign(nl, nl.campaign, o);
   if (tty) fmt::print(stderr, "\r{:50}\r", "");
   const disc::CampaignSummary summary = disc::summariseCampaign(nl, nl.campaign, table);
-  const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) + "-campaign" : a.outDir;
   const auto files = disc::writeFiles(dir, {{"campaign.csv", disc::campaignCsv(table)},
                                             {"campaign.json", disc::campaignJson(summary)},
                                             {"campaign.html", disc::campaignHtml(summary, table)}});
@@ -344,6 +348,8 @@ int runCampaignFile(const CampaignArgs& a) {
 }  // namespace
 
 int main(int argc, char** argv) {
+  // Ctrl-C during a write leaves no temporary folder or file behind.
+  disc::installInterruptCleanup();
   CLI::App app{"disc: simulate power supplies with selenium and copper-oxide plate rectifiers"};
   app.set_version_flag("--version", std::string("disc ") + disc::kVersion);
   app.require_subcommand(1);

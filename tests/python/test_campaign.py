@@ -41,7 +41,7 @@ def test_table_is_a_dataframe_with_units_and_a_summary(tmp_path):
     assert {s["stack"] for s in res.summary["sharing"]} == {"SR1", "SR2", "SR3", "SR4"}
     files = res.write(tmp_path / "mc")
     assert sorted(pathlib.Path(f).name for f in files) == [
-        "campaign.csv", "campaign.html", "campaign.json"]
+        "campaign.csv", "campaign.html", "campaign.json", "disc-manifest.txt"]
     # The CSV reads back into the same numbers (17 significant digits).
     import pandas as pd
 

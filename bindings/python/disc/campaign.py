@@ -43,17 +43,12 @@ class CampaignResult:
         return list(self.summary["reading"])
 
     def write(self, folder):
-        """Writes campaign.csv, campaign.json and campaign.html into folder."""
-        folder = pathlib.Path(folder)
-        folder.mkdir(parents=True, exist_ok=True)
-        paths = []
-        for name, text in (("campaign.csv", self.csv), ("campaign.json",
-                                                        json.dumps(self.summary, indent=2)),
-                           ("campaign.html", self.html)):
-            p = folder / name
-            p.write_bytes(text.encode())  # as written: the CSV ends its records with CRLF
-            paths.append(str(p))
-        return paths
+        """Writes campaign.csv, campaign.json and campaign.html as the whole of folder, swapped
+        into place at once with a manifest (as the disc program writes its folders)."""
+        return list(_disc.write_files(str(folder), [
+            ("campaign.csv", self.csv.encode()),  # as written: records end with CRLF
+            ("campaign.json", json.dumps(self.summary, indent=2).encode()),
+            ("campaign.html", self.html.encode())]))
 
 
 def _statements(builds, seed, vary, tolerance, keep_plates):

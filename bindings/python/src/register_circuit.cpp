@@ -284,6 +284,7 @@ void registerCircuit(py::module_& m) {
       .def("report_text",
            [](const Netlist& n, const Result& r) { return reportText(makeSupplyReport(n, r)); })
       .def("write_files", [](const Netlist& n, const std::string& dir) {
+        checkOutputFolder(dir);  // refused before the run, not after it
         const Netlist copy = n;  // copied under the GIL, run without it
         RunOutcome out;
         {

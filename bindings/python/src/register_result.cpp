@@ -80,6 +80,15 @@ void registerResult(py::module_& m) {
           "to_csv",
           [](const Result& r, const std::string& path) { writeFileAtomically(path, resultCsv(r)); },
           "Writes every signal as CSV (header 'name [unit]').");
+  m.def(
+      "write_files",
+      [](const std::string& dir, const std::vector<std::pair<std::string, py::bytes>>& files) {
+        std::vector<std::pair<std::string, std::string>> f;
+        for (const auto& [name, content] : files) f.emplace_back(name, std::string(content));
+        return writeFiles(dir, f);
+      },
+      py::arg("folder"), py::arg("files"),
+      "Writes (name, bytes) files as the whole of a folder, swapped into place (disc/files.hpp).");
 }
 
 }  // namespace disc::python

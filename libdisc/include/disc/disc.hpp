@@ -24,6 +24,7 @@
 #include "disc/diagnostics.hpp"
 #include "disc/error.hpp"
 #include "disc/failure.hpp"
+#include "disc/files.hpp"
 #include "disc/measures.hpp"
 #include "disc/meter.hpp"
 #include "disc/netlist.hpp"

@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "disc/files.hpp"
 #include "disc/netlist.hpp"
 #include "disc/result.hpp"
 #include "disc/supply_report.hpp"
@@ -112,14 +113,8 @@ std::string siValue(double value, const std::string& unit, int digits = 4);
 /// The colour of series `k` of `n` in a plot: all `n` distinct (CSS colour text).
 std::string seriesColour(std::size_t k, std::size_t n);
 
-/// Writes report.json, report.html, one CSV per analysis and the SVG plots into `dir` (created
-/// if missing). Every file is written under a temporary name and renamed into place.
+/// Writes report.json, report.html, one CSV per analysis and the SVG plots as the whole of
+/// folder `dir`, swapped into place at once (writeFiles, disc/files.hpp).
 std::vector<std::string> writeRunFiles(const Netlist& netlist, const RunOutcome& outcome,
                                        const std::string& dir);
-/// Writes each (name, content) into `dir` (created if missing), atomically; returns the paths.
-std::vector<std::string> writeFiles(const std::string& dir,
-                                    const std::vector<std::pair<std::string, std::string>>& files);
-/// Writes a file atomically (temporary name, then rename); throws Error on failure.
-void writeFileAtomically(const std::string& path, const std::string& content);
-
 }  // namespace disc

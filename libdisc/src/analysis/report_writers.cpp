@@ -606,41 +606,6 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
   return h;
 }
 
-void writeFileAtomically(const std::string& path, const std::string& content) {
-  const std::string tmp = path + ".part";
-  {
-    std::ofstream f(tmp, std::ios::binary);
-    if (!f) throw Error(fmt::format("cannot write '{}'", tmp));
-    f << content;
-    f.flush();
-    if (!f) {
-      std::remove(tmp.c_str());
-      throw Error(fmt::format("failed writing '{}' (disk full?)", tmp));
-    }
-  }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
-    std::remove(tmp.c_str());
-    throw Error(fmt::format("cannot move '{}' into place", path));
-  }
-}
-
-std::vector<std::string> writeFiles(const std::string& dir,
-                                    const std::vector<std::pair<std::string, std::string>>& files) {
-  std::error_code ec;
-  std::filesystem::create_directories(dir, ec);
-  if (ec) throw Error(fmt::format("cannot create the output folder '{}': {}", dir, ec.message()));
-  std::vector<std::string> written;
-  for (const auto& [name, content] : files) {
-    // Names are file names, never paths: nothing is written outside `dir`.
-    if (name != safeFileStem(name))
-      throw InputError(fmt::format("'{}' is not a safe file name", excerpt(name)));
-    const std::string path = (std::filesystem::path(dir) / name).string();
-    writeFileAtomically(path, content);
-    written.push_back(path);
-  }
-  return written;
-}
-
 std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
                                        const std::string& dir) {
   std::vector<std::pair<std::string, std::string>> files;

@@ -12,6 +12,7 @@
 #include "core/safe_io.hpp"
 #include "core/text_match.hpp"
 #include "disc/error.hpp"
+#include "disc/files.hpp"
 #include "disc/limits.hpp"
 
 namespace disc {
@@ -398,15 +399,7 @@ std::string PlateLibrary::toJson() const {
 }
 
 void PlateLibrary::save(const PlateType& type, const std::string& path) {
-  const std::string tmp = path + ".tmp";
-  {
-    std::ofstream out(tmp);
-    if (!out) throw InputError(fmt::format("cannot write '{}'", path));
-    out << toJson(type) << "\n";
-    if (!out) throw InputError(fmt::format("failed writing '{}'", path));
-  }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0)
-    throw InputError(fmt::format("cannot move '{}' into place", path));
+  writeFileAtomically(path, toJson(type) + "\n");
 }
 
 }  // namespace disc
