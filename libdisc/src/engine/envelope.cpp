@@ -107,15 +107,18 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   detail::PeriodSolution sol;
   double solvedTime = -1.0;
   std::vector<double> solvedY;
-  auto settle = [&](double t, const std::vector<double>& y, bool jacobian) {
-    if (t == solvedTime && y == solvedY && (sol.hasJacobian || !jacobian)) return;
+  // With `rec`, the settled period is recorded into it; false when nothing was solved (the
+  // last solve is still the one asked for, so the caller records it).
+  auto settle = [&](double t, const std::vector<double>& y, bool jacobian,
+                    detail::Recorder* rec = nullptr) {
+    if (t == solvedTime && y == solvedY && (sol.hasJacobian || !jacobian)) return false;
     std::vector<double> ds(ns);
     for (std::size_t c = 0; c < ns; ++c)
       ds[c] = y[c] * scale[c] - x[static_cast<std::size_t>(slow[c])];
     solver.predict(x, ds);
     sys.setFrozenValues(x);
     try {
-      solver.solve(x, t, nullptr, sol, stats, jacobian);
+      solver.solve(x, t, rec, sol, stats, jacobian);
     } catch (const ConvergenceError& e) {
       throw ConvergenceError(fmt::format("warm-up at t = {:.6g} s: {}", t, e.what()),
                              e.worstEquation(), e.residual());
@@ -125,6 +128,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     es.periodIntegrations += sol.stats.periodIntegrations;
     solvedTime = t;
     solvedY = y;
+    return true;
   };
   detail::SlowOdeSystem ode;
   ode.evaluate = [&](double t, const std::vector<double>& y, std::vector<double>& dydt,
@@ -187,11 +191,13 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   double tPrev = 0.0;
   std::vector<double> yPrev;
   auto recordRow = [&](double t, const std::vector<double>& yy) {
-    settle(t, yy, false);
     Result period;
     {
+      // The next slow step starts with the Jacobian here: the one pass with sensitivities
+      // gives it, the averages and the recorded period together.
       detail::Recorder rec(sys, record, period);
-      solver.recordPeriod(x, t, rec, stats);
+      if (!settle(t, yy, t < options.duration * (1.0 - 1e-12), &rec))
+        solver.recordPeriod(x, t, rec, stats);
     }
     for (double& tp : period.timeColumn()) tp -= t0;
     appendRow(er.series, t, period, first);

@@ -138,4 +138,18 @@ void LinearSolver::solve(double* rhs, int n) {
     throw SingularCircuitError("the circuit matrix could not be solved with its factors", "");
 }
 
+void LinearSolver::solveRows(double* b, int n, int cols) {
+  if (useProgram_) {
+    program_.solveRows(b, cols);
+    return;
+  }
+  const auto un = static_cast<std::size_t>(n), uc = static_cast<std::size_t>(cols);
+  columns_.resize(un * uc);
+  for (std::size_t r = 0; r < un; ++r)
+    for (std::size_t c = 0; c < uc; ++c) columns_[c * un + r] = b[r * uc + c];
+  for (std::size_t c = 0; c < uc; ++c) solve(columns_.data() + c * un, n);
+  for (std::size_t r = 0; r < un; ++r)
+    for (std::size_t c = 0; c < uc; ++c) b[r * uc + c] = columns_[c * un + r];
+}
+
 }  // namespace disc::detail

@@ -43,6 +43,8 @@ class LinearSolver {
   void factor(System& sys, double a0, double gmin);
   /// Solves J dx = rhs in place (size n).
   void solve(double* rhs, int n);
+  /// Solves J X = B in place for `cols` right-hand sides, B row-major (n x cols).
+  void solveRows(double* b, int n, int cols);
   /// How far elimination cancelled the present factors' pivots (StaticLu::pivotCancellation);
   /// infinite for KLU's own factors, which do not report it.
   double pivotCancellation() const { return useProgram_ ? program_.pivotCancellation() : HUGE_VAL; }
@@ -63,7 +65,8 @@ class LinearSolver {
   StaticLu program_;         // refactorisation in KLU's last pivot order
   bool useProgram_ = false;  // the current factors are the program's (else KLU's)
   std::vector<int> p_, q_, pNew_, qNew_;
-  std::vector<int> gminSlots_;  // diagonal slots of node rows
+  std::vector<int> gminSlots_;   // diagonal slots of node rows
+  std::vector<double> columns_;  // solveRows through KLU: B by columns
   bool analyzed_ = false;
   bool repivot_ = false;
   double rcondFull_ = 0.0;   // condition estimate at the last full factorisation

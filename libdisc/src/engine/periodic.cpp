@@ -99,9 +99,11 @@ bool haveMonodromyOf(const PeriodicOrbit& o) {
   return o.monodromy.rows() == m && o.monodromy.cols() == m && !o.grid.empty();
 }
 
+using RowMatrix = Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>;
+
 /// out += a * (C S), C given by its slot values on the system's pattern.
-void addChargeTimes(const System& sys, const std::vector<double>& C, double a,
-                    const Eigen::MatrixXd& S, Eigen::MatrixXd& out) {
+void addChargeTimes(const System& sys, const std::vector<double>& C, double a, const RowMatrix& S,
+                    RowMatrix& out) {
   if (a == 0.0) return;
   const auto& J = sys.jacobian();
   const int* outer = J.outerIndexPtr();
@@ -181,7 +183,7 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     statesKnown_ = true;
   }
   const int cols = m_ + ns_;
-  Eigen::MatrixXd S = Eigen::MatrixXd::Zero(n, cols), Sp, Sp2, rhs(n, cols);
+  RowMatrix S = RowMatrix::Zero(n, cols), Sp, Sp2, rhs(n, cols);
   for (int j = 0; j < m_; ++j) S(states_[static_cast<std::size_t>(j)], j) = 1.0;
   for (int c = 0; c < ns_; ++c) S(slow_[static_cast<std::size_t>(c)], m_ + c) = 1.0;
   std::vector<double> C0 = sys_.C, Cp, Cp2;
@@ -319,7 +321,7 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
       addChargeTimes(sys_, C0, -a1, S, rhs);
       if (!euler) addChargeTimes(sys_, Cp, -a2, Sp, rhs);
       for (int c = 0; c < ns_; ++c) rhs(slow_[static_cast<std::size_t>(c)], m_ + c) = 1.0;
-      for (int j = 0; j < cols; ++j) ls_.solve(rhs.col(j).data(), n);
+      ls_.solveRows(rhs.data(), n, cols);
       Sp2.swap(Sp);
       Sp.swap(S);
       S.swap(rhs);
@@ -382,7 +384,9 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
   // takes the monodromy of the last one with them (a chord step, contracting at about the
   // change of M since): warm starts need no new sensitivities until a step fails to contract.
   bool adaptive = grid_.empty();
-  bool chord = haveMonodromy_;
+  // A Jacobian needs a pass with sensitivities at the settled orbit anyway: from a warm start
+  // (the prediction is usually within tolerance) that pass comes first, not after a chord pass.
+  bool chord = haveMonodromy_ && !needJacobian;
   double lastNorm = HUGE_VAL;
   int worstState = -1;
   bool lastFixed = false;  // the last pass ran on the present fixed grid
@@ -390,9 +394,9 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
     const std::vector<double> z0 = x;
     const bool sens = !chord;
     const bool sameGrid = !adaptive && lastFixed;
-    // A pass that follows an update within a few tolerances usually settles: record it, so
-    // that the settled period need not be integrated once more.
-    Recorder* recThis = rec && lastNorm <= 4.0 ? rec : nullptr;
+    // A pass that follows an update within a few tolerances, or the first from a warm start,
+    // usually settles: record it, so that the settled period need not be integrated once more.
+    Recorder* recThis = rec && (lastNorm <= 4.0 || (it == 0 && solved_)) ? rec : nullptr;
     if (recThis) recThis->clear();
     const Pass pass = integrate(x, adaptive, slowTime, recThis, stats, sens);
     ++ps.periodIntegrations;

@@ -102,7 +102,9 @@ class PeriodicSolver {
   bool haveMonodromy_ = false;
   Eigen::PartialPivLU<Eigen::MatrixXd> shootingLu_;  // of M - I
   int m_ = 0, ns_ = 0;                               // shooting variables, slow unknowns
-  Eigen::MatrixXd S_;          // n x (m + ns) sensitivity at the end of the last pass
+  // Row-major, so that the charge products and the many-column solves run along rows.
+  using RowMatrix = Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>;
+  RowMatrix S_;                // n x (m + ns) sensitivity at the end of the last pass
   Eigen::MatrixXd dzds_;       // m x ns, settled state's response to the slow values
   Eigen::MatrixXd monodromy_;  // m x m
   double multiplier_ = 0.0;    // largest Floquet multiplier of monodromy_ (0: not computed)

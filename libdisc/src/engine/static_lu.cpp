@@ -248,4 +248,34 @@ void StaticLu::solve(double* b) const {
   for (int k = 0; k < n_; ++k) b[qperm[k]] = y[k];
 }
 
+void StaticLu::solveRows(double* b, int cols) const {
+  const auto w = static_cast<std::size_t>(cols);
+  if (workRows_.size() < static_cast<std::size_t>(n_) * w)
+    workRows_.resize(static_cast<std::size_t>(n_) * w);
+  double* y = workRows_.data();
+  const double* lu = lu_.data();
+  const double* inv = invPivot_.data();
+  auto row = [&](double* base, int k) { return base + static_cast<std::size_t>(k) * w; };
+  for (int k = 0; k < n_; ++k)
+    std::copy_n(row(b, perm_[static_cast<std::size_t>(k)]), w, row(y, k));
+  for (const SolveOp& o : lower_) {
+    const double l = lu[o.entry];
+    double* d = row(y, o.dst);
+    const double* s = row(y, o.src);
+    for (std::size_t j = 0; j < w; ++j) d[j] -= l * s[j];
+  }
+  for (int k = 0; k < n_; ++k) {
+    double* d = row(y, k);
+    for (std::size_t j = 0; j < w; ++j) d[j] *= inv[k];
+  }
+  for (const SolveOp& o : upperSolve_) {
+    const double u = lu[o.entry];
+    double* d = row(y, o.dst);
+    const double* s = row(y, o.src);
+    for (std::size_t j = 0; j < w; ++j) d[j] -= u * s[j];
+  }
+  for (int k = 0; k < n_; ++k)
+    std::copy_n(row(y, k), w, row(b, qperm_[static_cast<std::size_t>(k)]));
+}
+
 }  // namespace disc::detail

@@ -42,6 +42,9 @@ class StaticLu {
   /// Solves A x = b in place with the last factors (L unit lower, U scaled to unit diagonal, D
   /// the pivots).
   void solve(double* b) const;
+  /// Solves A X = B in place for `cols` right-hand sides, B row-major (n x cols): one pass
+  /// over the solve program, each operation on a whole row of B.
+  void solveRows(double* b, int cols) const;
 
   /// Entries of L and U together (diagonal once) and multiply-subtract operations per factor.
   std::size_t factorEntries() const { return lu_.size(); }
@@ -88,7 +91,7 @@ class StaticLu {
   std::vector<double> invPivot_;
   std::vector<PivotTerm> pivotTerms_;  // the operations whose destination is a pivot
   std::vector<double> pivotMass_;      // per pivot: |entry as loaded| + sum of |products|
-  mutable std::vector<double> work_;
+  mutable std::vector<double> work_, workRows_;
   double pivotRatio_ = 0.0;
   double pivotCancellation_ = HUGE_VAL;
 };
