@@ -421,3 +421,36 @@ TEST_CASE("run periodic and run warm-up in the language", "[netlist][parser][per
   expectError(kOk + "run periodic warm-up-periods=2.5\n", 3, 30, "whole number");
   expectError(kOk + "run perodic\n", 3, 5, "did you mean 'periodic'");
 }
+
+TEST_CASE("Mistakes in output and record are refused at their place", "[netlist][parser]") {
+  const std::string stack =
+      "voltage V1 line gnd mains rms=120V frequency=60Hz resistance=1ohm\n"
+      "stack SR1 line top type=se-25mm-36v plates=8\ncapacitor C1 top gnd 50uF\n"
+      "resistor RL top gnd 2k\n";
+  // An output across one node reads 0 V: refused at its second node.
+  expectError(kOk + "output a a load=R1\n", 3, 10, "across one node, 'a'");
+  // A voltage across one node always reads 0 V.
+  expectError(kOk + "record v:a,a\n", 3, 8, "across one node, 'a'");
+  // A plate index past the stack's plates, or on a quantity that is not numbered.
+  expectError(stack + "record temp:SR1#9\n", 5, 8, "SR1 has 8 of them, numbered from 1 to 8");
+  expectError(stack + "record temp:SR1#0\n", 5, 8, "a number from 1");
+  expectError(kOk + "record i:R1#2\n", 3, 8, "'i' of a resistor is not numbered; write i:R1");
+  // The recorder's own wording reaches the parser: the quantities that exist are listed.
+  expectError(kOk + "record temp:R1\n", 3, 8, "a resistor has no quantity 'temp' (it has: ");
+  // A plate index within range is accepted.
+  CHECK_NOTHROW(parseNetlist(stack + "record temp:SR1#8\n", "t.disc"));
+  // A source as the load: a current source, or the alternating input itself.
+  auto d = errorsOf(kOk + "current I1 a gnd dc=1mA\noutput a gnd load=I1\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("'I1' is a current source"));
+  d = errorsOf(stack + "output top gnd load=V1\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("'V1' is an alternating source (60 Hz)"));
+  // The input (a source) named as the load too.
+  d = errorsOf(stack + "voltage VB top gnd dc=90V\noutput top gnd load=VB input=VB\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("'VB' is named both as the load and as the input"));
+  // A DC voltage source stays a valid load: a battery on charge (common practice).
+  CHECK_NOTHROW(
+      parseNetlist(stack + "voltage VB top gnd dc=90V\noutput top gnd load=VB\n", "t.disc"));
+}

@@ -19,6 +19,51 @@ std::vector<std::string> defaultSignals(const System& sys) {
   return out;
 }
 
+DeviceSignal deviceSignal(const Circuit& circuit, const std::string& spec) {
+  const auto colon = spec.find(':');
+  const std::string kind = spec.substr(0, colon), target = spec.substr(colon + 1);
+  // "kind:device#n" names instance n of a numbered quantity (plate n of a stack).
+  std::string deviceName = target;
+  DeviceSignal s;
+  if (const auto hash = target.find('#'); hash != std::string::npos) {
+    deviceName = target.substr(0, hash);
+    try {
+      std::size_t used = 0;
+      s.instance = std::stoi(target.substr(hash + 1), &used);
+      if (used != target.size() - hash - 1 || s.instance < 1) throw std::invalid_argument("");
+    } catch (const std::exception&) {
+      throw InputError(fmt::format("signal '{}': '#' must be followed by a number from 1", spec));
+    }
+  }
+  s.device = circuit.find(deviceName);
+  if (!s.device)
+    throw InputError(fmt::format("signal '{}': no element named '{}'", spec, deviceName));
+  const auto probes = s.device->probes();
+  const auto it = std::find(probes.begin(), probes.end(), kind);
+  if (it == probes.end())
+    throw InputError(fmt::format("signal '{}': a {} has no quantity '{}' (it has: {})", spec,
+                                 s.device->kind(), kind, fmt::join(probes, ", ")));
+  s.probe = static_cast<int>(it - probes.begin());
+  if (s.instance > 0) {
+    const int count = s.device->probeInstances(s.probe);
+    if (count == 0)
+      throw InputError(fmt::format("signal '{}': '{}' of a {} is not numbered; write {}:{}", spec,
+                                   kind, s.device->kind(), kind, deviceName));
+    if (s.instance > count)
+      throw InputError(fmt::format("signal '{}': {} has {} of them, numbered from 1 to {}", spec,
+                                   deviceName, count, count));
+  }
+  return s;
+}
+
+void checkVoltagePair(const std::string& spec, const std::string& a, const std::string& b) {
+  if (a == b)
+    throw InputError(fmt::format(
+        "signal '{}' is taken across one node, '{}', and always reads 0 V: name two different "
+        "nodes (v:{},gnd or v:{})",
+        spec, a, a, a));
+}
+
 Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& result)
     : result_(result) {
   if (specs.empty()) specs = defaultSignals(sys);
@@ -43,6 +88,8 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
     std::string unit;
     if (kind == "v") {
       const auto comma = target.find(',');
+      if (comma != std::string::npos)
+        checkVoltagePair(spec, target.substr(0, comma), target.substr(comma + 1));
       s.a = nodeIndex(target.substr(0, comma), spec);
       s.b = comma == std::string::npos ? sys.ground() : nodeIndex(target.substr(comma + 1), spec);
       unit = "V";
@@ -55,42 +102,11 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
       static const char* units[] = {"V", "A", "K", ""};
       unit = units[static_cast<int>(sys.kind(s.a))];
     } else {
-      // "kind:device#n" names instance n of a numbered quantity (plate n of a stack).
-      std::string deviceName = target;
-      int instance = 0;
-      if (const auto hash = target.find('#'); hash != std::string::npos) {
-        deviceName = target.substr(0, hash);
-        try {
-          std::size_t used = 0;
-          instance = std::stoi(target.substr(hash + 1), &used);
-          if (used != target.size() - hash - 1 || instance < 1) throw std::invalid_argument("");
-        } catch (const std::exception&) {
-          throw InputError(
-              fmt::format("signal '{}': '#' must be followed by a number from 1", spec));
-        }
-      }
-      const Device* d = circuit.find(deviceName);
-      if (!d) throw InputError(fmt::format("signal '{}': no device named '{}'", spec, deviceName));
-      const auto probes = d->probes();
-      const auto it = std::find(probes.begin(), probes.end(), kind);
-      if (it == probes.end()) {
-        std::string list;
-        list = fmt::format("{}", fmt::join(probes, ", "));
-        throw InputError(fmt::format("signal '{}': a {} has no quantity '{}'; it has: {}", spec,
-                                     d->kind(), kind, list));
-      }
-      s.device = d;
-      s.probe = static_cast<int>(it - probes.begin());
-      s.instance = instance;
-      if (instance > 0) {
-        const int count = d->probeInstances(s.probe);
-        if (count == 0)
-          throw InputError(
-              fmt::format("signal '{}': '{}' of a {} is not numbered", spec, kind, d->kind()));
-        if (instance > count)
-          throw InputError(fmt::format("signal '{}': {} has {} of them", spec, deviceName, count));
-      }
-      unit = d->probeUnit(s.probe);
+      const DeviceSignal ds = deviceSignal(circuit, spec);
+      s.device = ds.device;
+      s.probe = ds.probe;
+      s.instance = ds.instance;
+      unit = s.device->probeUnit(s.probe);
     }
     result_.addSignal(spec, unit);
     signals_.push_back(s);

@@ -30,6 +30,20 @@ class Recorder {
   std::vector<Signal> signals_;
 };
 
+/// A device quantity named by a signal ("i:R1", "temp:SR1#3"): the device, its probe and the
+/// instance of a numbered probe (0: the aggregate).
+struct DeviceSignal {
+  const Device* device = nullptr;
+  int probe = -1;
+  int instance = 0;
+};
+/// Resolves `kind:device[#n]` against a circuit. Throws InputError naming what exists (the
+/// probes, the number of instances); the parser checks `record` with it before any run.
+DeviceSignal deviceSignal(const Circuit& circuit, const std::string& spec);
+
+/// Throws InputError for `v:a,a`: a difference across one node reads 0 whatever happens.
+void checkVoltagePair(const std::string& spec, const std::string& a, const std::string& b);
+
 /// The default signal set: every node voltage and every device current.
 std::vector<std::string> defaultSignals(const System& sys);
 

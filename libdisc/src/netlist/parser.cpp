@@ -24,6 +24,7 @@
 #include "disc/devices/valve_load.hpp"
 #include "disc/limits.hpp"
 #include "disc/netlist.hpp"
+#include "engine/recorder.hpp"
 #include "lexer.hpp"
 #include "units.hpp"
 
@@ -762,6 +763,11 @@ class Builder {
         if (!nodeExists(t[static_cast<std::size_t>(k)].text))
           return error(t[static_cast<std::size_t>(k)].where,
                        fmt::format("no node named '{}'", t[static_cast<std::size_t>(k)].text));
+      if (t[1].text == t[2].text)
+        return error(t[2].where,
+                     fmt::format("output is taken across one node, '{}', so it reads 0 V and "
+                                 "no power: name the + node first, then the - node (usually gnd)",
+                                 t[1].text));
       nl_.output.positive = t[1].text;
       nl_.output.negative = t[2].text;
       for (std::size_t k = 3; k < t.size(); ++k) {
@@ -770,6 +776,7 @@ class Builder {
           if (!load) return noElement(t[k].valueWhere, t[k].value);
           if (load->kind() == "capacitor")
             return error(t[k].valueWhere, capacitorLoadHint(t[k].value, t[1].text, t[2].text));
+          if (auto msg = sourceLoadProblem(*load); !msg.empty()) return error(t[k].valueWhere, msg);
           nl_.output.load = t[k].value;
         } else if (t[k].keyValue && t[k].key == "input") {
           const Device* d = c.find(t[k].value);
@@ -813,6 +820,10 @@ class Builder {
       }
       if (nl_.output.load.empty())
         return error(s.where, "output needs load=NAME (the element that is the load)");
+      if (nl_.output.load == nl_.output.input)
+        return error(s.where, fmt::format("'{}' is named both as the load and as the input: the "
+                                          "input feeds the supply, the load is what it feeds",
+                                          nl_.output.load));
       if ((nl_.output.fullScale > 0.0) != (nl_.output.range > 0.0))
         return error(s.where,
                      "a meter output needs both full-scale= (the movement's current) and range= "
@@ -1141,6 +1152,23 @@ class Builder {
     spec.given = true;
   }
 
+  /// Why a source cannot be the load ("" when it can): a current source forces its current
+  /// whatever the supply does, and an alternating source is a supply's input. A DC voltage
+  /// source is a battery, a load that charges.
+  static std::string sourceLoadProblem(const Device& load) {
+    if (auto* i = dynamic_cast<const CurrentSource*>(&load); i)
+      return fmt::format(
+          "'{}' is a current source: it forces its own current, so it cannot be the load the "
+          "supply feeds; name the resistor, valve load, lamp or battery across the output",
+          load.name());
+    if (auto* v = dynamic_cast<const VoltageSource*>(&load); v && v->waveform().frequency() > 0.0)
+      return fmt::format(
+          "'{}' is an alternating source ({} Hz), the supply's input, not its load; name the "
+          "resistor, valve load, lamp or battery across the output",
+          load.name(), v->waveform().frequency());
+    return "";
+  }
+
   /// The message for `output ... load=C1` naming a capacitor, with the element across the
   /// output nodes that is more likely the load.
   std::string capacitorLoadHint(const std::string& cap, const std::string& pos,
@@ -1181,6 +1209,13 @@ class Builder {
     const std::string kind = sig.substr(0, colon), target = sig.substr(colon + 1);
     Circuit& c = nl_.circuit;
     if (kind == "v") {
+      if (const auto comma = target.find(','); comma != std::string::npos) {
+        try {
+          checkVoltagePair(sig, target.substr(0, comma), target.substr(comma + 1));
+        } catch (const InputError& e) {
+          return e.what();
+        }
+      }
       std::size_t start = 0;
       while (true) {
         const auto comma = target.find(',', start);
@@ -1199,17 +1234,11 @@ class Builder {
       return "";
     }
     const std::string deviceName = target.substr(0, target.find('#'));
-    const Device* d = c.find(deviceName);
-    if (!d)
-      return failedElements_.count(deviceName)
-                 ? "-"
-                 : fmt::format("signal '{}': no element named '{}'", sig, deviceName);
-    const auto probes = d->probes();
-    if (std::find(probes.begin(), probes.end(), kind) == probes.end()) {
-      std::string list;
-      list = fmt::format("{}", fmt::join(probes, ", "));
-      return fmt::format("signal '{}': a {} has no quantity '{}' (it has {})", sig, d->kind(), kind,
-                         list);
+    if (!c.find(deviceName) && failedElements_.count(deviceName)) return "-";
+    try {
+      deviceSignal(c, sig);  // the recorder's own reading: its probe and plate index
+    } catch (const InputError& e) {
+      return e.what();
     }
     return "";
   }
