@@ -103,6 +103,12 @@ class Result:
         return self._result.unit(signal)
 
     @property
+    def recorded_rows(self):
+        """Rows the run recorded, kept or not: len(time) unless it was decimated or streamed
+        to a CSV file."""
+        return self._result.recorded_rows
+
+    @property
     def stats(self):
         """Work counters: steps, Newton iterations, wall time."""
         return self._result.stats
@@ -322,16 +328,26 @@ class Circuit:
 
     # -- analyses -------------------------------------------------------------------------
     def run_transient(self, stop, record=None, method="trapezoidal", start="cold", max_step=0.0,
-                      reltol=0.0, abstol=0.0, temperature_abstol=0.0, progress=None):
+                      reltol=0.0, abstol=0.0, temperature_abstol=0.0, progress=None,
+                      record_from=0.0, record_spacing=0.0, csv=None):
         """Transient from 0 to stop (s). method: 'trapezoidal', 'bdf2' or 'ida'; start: 'cold' or
         'operating-point'; reltol (default 1e-3), abstol (volts and amperes, default 1e-6) and
         temperature_abstol (kelvin, default 1e-4), 0 for the defaults. The run works on a copy
         of the circuit taken at the call and releases the GIL; Ctrl-C stops it. progress(time,
         stop), if given, is called at most every 0.1 s of wall time; returning False cancels the
-        run (KeyboardInterrupt)."""
+        run (KeyboardInterrupt).
+
+        record_from (s): rows from this time on; record_spacing (s): a row only when at least
+        this long after the last one kept (the first and the last row always; 0: every step).
+        csv: a path the rows are written to as the run goes; the Result then keeps only the
+        end the supply report reads and a few thousand rows before it (bounded memory on any
+        stop time; ``Result.recorded_rows`` counts them all)."""
         res = self._net.run_transient(float(stop), list(record or []), method, start,
                                       float(max_step), float(reltol), float(abstol),
-                                      float(temperature_abstol), progress)
+                                      float(temperature_abstol), progress,
+                                      record_from=float(record_from),
+                                      record_spacing=float(record_spacing),
+                                      csv=str(csv) if csv is not None else "")
         return Result(self, res)
 
     def run_periodic(self, record=None, reltol=0.0, at=0.0):

@@ -1,6 +1,7 @@
 // Circuits (netlists) built from files, text or code; runs copy the netlist under the GIL and
 // release it.
 #include <pybind11/stl.h>
+#include <optional>
 
 #include <chrono>
 #include <memory>
@@ -128,10 +129,13 @@ void registerCircuit(py::module_& m) {
           "run_transient",
           [](const Netlist& n, double stop, const std::vector<std::string>& record,
              const std::string& method, const std::string& start, double maxStep, double reltol,
-             double abstol, double temperatureAbstol, py::object progress) {
+             double abstol, double temperatureAbstol, py::object progress, double recordFrom,
+             double recordSpacing, const std::string& csvPath) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
+            o.recordFrom = recordFrom;
+            o.recordSpacing = recordSpacing;
             o.method = parseMethod(method);
             if (start == "cold")
               o.start = Start::Cold;
@@ -148,12 +152,21 @@ void registerCircuit(py::module_& m) {
             // The copy is taken under the GIL, so no Python thread changes the netlist while it
             // is read; the run then touches only the copy.
             const Circuit circuit = n.circuit;
+            // With a CSV path the rows go to the file as the run goes; the Result keeps what
+            // the supply report reads (bounded memory on any stop time).
+            std::optional<CsvFile> csv;
+            if (!csvPath.empty()) {
+              csv.emplace(csvPath);
+              o.sink = &*csv;
+              o.keepLast = reportSpan(n, o);
+            }
             py::gil_scoped_release nogil;
             return own(transient(circuit, o));
           },
           py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"),
           py::arg("max_step"), py::arg("reltol"), py::arg("abstol"),
-          py::arg("temperature_abstol") = 0.0, py::arg("progress") = py::none())
+          py::arg("temperature_abstol") = 0.0, py::arg("progress") = py::none(),
+          py::arg("record_from") = 0.0, py::arg("record_spacing") = 0.0, py::arg("csv") = "")
       .def(
           "run_periodic",
           [](const Netlist& n, const std::vector<std::string>& record, double reltol, double at) {
@@ -289,7 +302,7 @@ void registerCircuit(py::module_& m) {
         RunOutcome out;
         {
           py::gil_scoped_release nogil;
-          out = runNetlist(copy, throttledProgress(py::none()));
+          out = runNetlist(copy, throttledProgress(py::none()), dir);
         }
         return writeRunFiles(copy, out, dir);
       });

@@ -39,6 +39,8 @@ void registerResult(py::module_& m) {
       .def("__contains__", &Result::has)
       .def_property_readonly("signals", &Result::signals)
       .def("unit", &Result::unit, "Unit symbol of a signal.")
+      .def_property_readonly("recorded_rows", &Result::recordedRows,
+                             "Rows the run recorded, kept or not.")
       .def_property_readonly("stats",
                              [](const Result& r) {
                                const RunStats& s = r.stats();

@@ -50,7 +50,21 @@ struct TransientOptions {
   double stop = 0.0;         ///< s, end time (required)
   double maxStep = 0.0;      ///< s; 0 = automatic (a fraction of stop and of sine periods)
   double initialStep = 0.0;  ///< s; 0 = automatic
-  double recordFrom = 0.0;   ///< s; points before this time are not stored
+  double recordFrom = 0.0;   ///< s; points before this time are not recorded
+  /// s; decimation: a row is kept when it lies at least this long after the last row kept
+  /// (to one part in 10^9); the first recorded row and the run's last are always kept. 0
+  /// keeps every accepted step. Applies to the sink and, without keepLast, to the Result.
+  double recordSpacing = 0.0;
+  /// Receives every kept row as the run goes (a CSV file: disc::CsvFile), so that rows need
+  /// not stay in memory; not owned, and must outlive the run.
+  RowSink* sink = nullptr;
+  /// s; 0: the Result keeps the rows the sink gets (all of them without recordSpacing). Above
+  /// 0 the Result keeps, bounded whatever the stop time, every recorded step (not decimated)
+  /// over the last keepLast seconds of the run (the supply report's settled window) and at
+  /// most keepSpread rows spread over the time before (for plots); Result::extent still
+  /// covers every recorded row.
+  double keepLast = 0.0;
+  std::size_t keepSpread = 2000;
   Method method = Method::Trapezoidal;
   Start start = Start::OperatingPoint;
   Tolerances tol;

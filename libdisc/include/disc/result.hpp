@@ -22,6 +22,12 @@ struct RunStats {
   double wallSeconds = 0.0;
 };
 
+/// A recorded signal over every row a run recorded, whether the Result keeps the row or not
+/// (a decimated or bounded transient keeps fewer rows than it records).
+struct Extent {
+  double first = 0, last = 0, min = 0, max = 0;
+};
+
 /// Columnar results. Each signal is one contiguous std::vector<double> as long as time().
 class Result {
  public:
@@ -32,6 +38,13 @@ class Result {
   const std::vector<double>& operator[](std::string_view signal) const;
   /// Unit symbol of a signal ("V", "A", "W", "K", ...).
   const std::string& unit(std::string_view signal) const;
+  /// The signal's first, last, least and largest value over every row the run recorded (a
+  /// transient's rows from its record-from time, before any decimation); from the kept rows
+  /// when the run did not track them. All zero without rows.
+  Extent extent(std::string_view signal) const;
+  /// Rows the run recorded, kept or not: time().size() unless the run was decimated or kept
+  /// only part of its rows in memory (TransientOptions::recordSpacing, keepLast).
+  std::size_t recordedRows() const { return tracked_ ? recorded_ : time_.size(); }
   const RunStats& stats() const { return stats_; }
   /// Runaways detected and bodies destroyed, in order of time. A destruction ends the run: the
   /// last time point is the step that crossed the destruction temperature.
@@ -46,6 +59,8 @@ class Result {
   std::vector<double>& column(std::size_t k) { return columns_[k]; }
   RunStats& stats() { return stats_; }
   std::vector<FailureEvent>& failureEvents() { return failures_; }
+  /// The extents over every recorded row, in signal order, and how many rows there were.
+  void setRecorded(std::vector<Extent> extents, std::size_t rows);
 
  private:
   std::size_t indexOf(std::string_view signal) const;
@@ -56,6 +71,22 @@ class Result {
   std::unordered_map<std::string, std::size_t> index_;
   RunStats stats_;
   std::vector<FailureEvent> failures_;
+  std::vector<Extent> extents_;
+  std::size_t recorded_ = 0;
+  bool tracked_ = false;  // extents_ and recorded_ were set by the run
+};
+
+/// Receives a run's rows as it records them, in time order (a CSV file written as the run
+/// goes, say); TransientOptions::sink.
+class RowSink {
+ public:
+  virtual ~RowSink() = default;
+  /// Before the first row: `layout` has the signals, their units and no rows.
+  virtual void begin(const Result& layout) = 0;
+  /// One row: its time and one value per signal, in the layout's order.
+  virtual void row(double time, const std::vector<double>& values) = 0;
+  /// After the last row of a run that completed (not called when the run throws).
+  virtual void end() = 0;
 };
 
 }  // namespace disc

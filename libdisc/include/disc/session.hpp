@@ -1,6 +1,7 @@
 // Running a netlist and writing what a run produces (report, tables, plots).
 #pragma once
 
+#include <cstdio>
 #include <functional>
 #include <string>
 #include <vector>
@@ -43,6 +44,10 @@ struct AnalysisOutcome {
   /// (one row per slow step: mean, min() and max() of each signal over the settled period).
   Result result;
   WarmUpSummary warmUp;  ///< for a warm-up
+  /// A transient whose rows went to its CSV file as it ran (runNetlist with a folder): the
+  /// file is written, and `result` keeps only the rows the report and plots read
+  /// (TransientOptions::keepLast).
+  bool streamed = false;
 };
 
 struct RunOutcome {
@@ -66,8 +71,12 @@ AnalysisOutcome warmUpAnalysis(const Netlist& netlist, EnvelopeOptions options,
 std::string warmUpText(const WarmUpSummary& summary);
 
 /// Runs every analysis of the netlist; the last transient feeds the supply report when the
-/// netlist names its output. `progress(time, stop)` may return false to cancel.
-RunOutcome runNetlist(const Netlist& netlist, std::function<bool(double, double)> progress = {});
+/// netlist names its output. `progress(time, stop)` may return false to cancel. With `csvDir`
+/// each transient writes its rows to `csvDir`/transient-N.csv as it runs (the name
+/// writeRunFiles gives it, which then leaves it) and keeps in memory only what the report
+/// and the plots read, so memory stays bounded on any duration.
+RunOutcome runNetlist(const Netlist& netlist, std::function<bool(double, double)> progress = {},
+                      const std::string& csvDir = "");
 
 /// The signals a run of this netlist records: `extra`, the file's own, and those the supply
 /// report needs when the netlist names its output.
@@ -81,6 +90,27 @@ std::string reportJson(const SupplyReport& report);
 std::string reportHtml(const Netlist& netlist, const RunOutcome& outcome);
 /// A Result as CSV: a header of "name [unit]" columns, then one row per time point.
 std::string resultCsv(const Result& result);
+/// The same CSV text written row by row as a run goes (TransientOptions::sink): under
+/// `path`.part, renamed to `path` at the end; a run that throws leaves no file.
+class CsvFile : public RowSink {
+ public:
+  explicit CsvFile(std::string path);
+  ~CsvFile() override;
+  CsvFile(const CsvFile&) = delete;
+  CsvFile& operator=(const CsvFile&) = delete;
+  void begin(const Result& layout) override;
+  void row(double time, const std::vector<double>& values) override;
+  void end() override;
+  const std::string& path() const { return path_; }
+  std::size_t rows() const { return rows_; }  ///< rows written so far
+
+ private:
+  void flush();
+  static constexpr std::size_t kFlushBytes = 1 << 16;
+  std::string path_, part_, buffer_;
+  std::FILE* file_ = nullptr;
+  std::size_t signals_ = 0, rows_ = 0;
+};
 /// Line plot as SVG. Each series is (name, x, y).
 struct PlotSeries {
   std::string name;

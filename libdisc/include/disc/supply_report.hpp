@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "disc/analysis.hpp"
 #include "disc/meter.hpp"
 #include "disc/netlist.hpp"
 #include "disc/result.hpp"
@@ -130,6 +131,10 @@ Verdict judgeFigure(std::string figure, double value, double limit, std::string 
 
 /// Signals a supply report needs, beyond the user's.
 std::vector<std::string> reportSignals(const Netlist& netlist);
+/// How much of a transient's end the report reads, in seconds: the five settled cycles it can
+/// check (the last tenth of the recorded run without mains), with a margin. The keepLast of a
+/// run whose rows go to a sink (TransientOptions), so that its report is that of every row.
+double reportSpan(const Netlist& netlist, const TransientOptions& options);
 /// Computes the report from a transient result that recorded reportSignals().
 SupplyReport makeSupplyReport(const Netlist& netlist, const Result& transient);
 

@@ -435,18 +435,85 @@ std::string csvField(const std::string& text) {
   return q + '"';
 }
 
-std::string resultCsv(const Result& r) {
-  // RFC 4180: a header record, then one record per time point, each ended by CRLF.
+namespace {
+
+// The CSV header record: "time [s]" and one "name [unit]" per signal (RFC 4180, CRLF).
+std::string csvHeader(const Result& r) {
   std::string s = "time [s]";
   for (const auto& n : r.signals()) s += "," + csvField(fmt::format("{} [{}]", n, r.unit(n)));
-  s += "\r\n";
+  return s + "\r\n";
+}
+
+// One record: 12 significant digits of time, 10 of each value. A row streamed as the run goes
+// and a row of resultCsv are the same text.
+template <class Out, class Values>
+void csvRow(Out& out, double t, const Values& value, std::size_t n) {
+  fmt::format_to(std::back_inserter(out), "{:.12g}", t);
+  for (std::size_t k = 0; k < n; ++k) fmt::format_to(std::back_inserter(out), ",{:.10g}", value(k));
+  out.push_back('\r');
+  out.push_back('\n');
+}
+
+}  // namespace
+
+std::string resultCsv(const Result& r) {
+  // RFC 4180: a header record, then one record per time point, each ended by CRLF.
+  std::string s = csvHeader(r);
   const auto& t = r.time();
-  for (std::size_t k = 0; k < t.size(); ++k) {
-    s += fmt::format("{:.12g}", t[k]);
-    for (const auto& n : r.signals()) s += fmt::format(",{:.10g}", r[n][k]);
-    s += "\r\n";
-  }
+  std::vector<const std::vector<double>*> cols;
+  for (const auto& n : r.signals()) cols.push_back(&r[n]);
+  for (std::size_t k = 0; k < t.size(); ++k)
+    csvRow(
+        s, t[k], [&](std::size_t c) { return (*cols[c])[k]; }, cols.size());
   return s;
+}
+
+CsvFile::CsvFile(std::string path) : path_(std::move(path)), part_(path_ + ".part") {}
+
+CsvFile::~CsvFile() {
+  // A run that failed leaves no half-written file behind.
+  if (file_) {
+    std::fclose(file_);
+    std::remove(part_.c_str());
+  }
+}
+
+void CsvFile::begin(const Result& layout) {
+  if (file_) throw Error(fmt::format("'{}' is already being written", path_));
+  file_ = std::fopen(part_.c_str(), "wb");
+  if (!file_) throw Error(fmt::format("cannot write '{}'", part_));
+  signals_ = layout.signals().size();
+  buffer_ = csvHeader(layout);
+  rows_ = 0;
+}
+
+void CsvFile::row(double time, const std::vector<double>& values) {
+  if (!file_) throw Error(fmt::format("'{}': a row before the header", path_));
+  csvRow(
+      buffer_, time, [&](std::size_t c) { return values[c]; }, signals_);
+  ++rows_;
+  if (buffer_.size() >= kFlushBytes) flush();
+}
+
+void CsvFile::flush() {
+  if (!buffer_.empty() && std::fwrite(buffer_.data(), 1, buffer_.size(), file_) != buffer_.size())
+    throw Error(fmt::format("failed writing '{}' (disk full?)", part_));
+  buffer_.clear();
+}
+
+void CsvFile::end() {
+  if (!file_) throw Error(fmt::format("'{}' was never started", path_));
+  flush();
+  const bool closed = std::fclose(file_) == 0;
+  file_ = nullptr;
+  if (!closed) {
+    std::remove(part_.c_str());
+    throw Error(fmt::format("failed writing '{}' (disk full?)", part_));
+  }
+  if (std::rename(part_.c_str(), path_.c_str()) != 0) {
+    std::remove(part_.c_str());
+    throw Error(fmt::format("cannot move '{}' into place", path_));
+  }
 }
 
 std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
@@ -612,6 +679,8 @@ std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
   for (std::size_t k = 0; k < out.analyses.size(); ++k) {
     const auto& a = out.analyses[k];
     const char* kind = analysisWord(a.request.kind);
+    // A transient streamed its CSV into `dir` as it ran.
+    if (a.streamed) continue;
     files.emplace_back(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
   }
   if (out.hasReport) {

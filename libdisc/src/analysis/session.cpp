@@ -1,7 +1,9 @@
 // Running a netlist.
 #include <fmt/format.h>
 #include <algorithm>
+#include <filesystem>
 #include <map>
+#include <optional>
 
 #include "disc/devices/stack.hpp"
 #include "disc/session.hpp"
@@ -162,7 +164,14 @@ AnalysisOutcome warmUpAnalysis(const Netlist& nl, EnvelopeOptions o, SupplyRepor
   return ao;
 }
 
-RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> progress) {
+RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> progress,
+                      const std::string& csvDir) {
+  if (!csvDir.empty()) {
+    std::error_code ec;
+    std::filesystem::create_directories(csvDir, ec);
+    if (ec)
+      throw Error(fmt::format("cannot create the output folder '{}': {}", csvDir, ec.message()));
+  }
   RunOutcome out;
   std::size_t lastReportable = nl.analyses.size();
   for (std::size_t k = 0; k < nl.analyses.size(); ++k)
@@ -184,6 +193,14 @@ RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> pro
         TransientOptions o = a.transient;
         o.record = record;
         o.progress = progress;
+        std::optional<CsvFile> csv;
+        if (!csvDir.empty()) {
+          csv.emplace(
+              (std::filesystem::path(csvDir) / fmt::format("transient-{}.csv", k + 1)).string());
+          o.sink = &*csv;
+          o.keepLast = reportSpan(nl, o);
+          ao.streamed = true;
+        }
         ao.result = transient(nl.circuit, o);
         if (reports) out.report = makeSupplyReport(nl, ao.result);
         break;

@@ -97,6 +97,14 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
   return s;
 }
 
+double reportSpan(const Netlist& nl, const TransientOptions& o) {
+  // The settling check looks back over at most five mains cycles; without mains the figures
+  // use the last tenth of the recorded run. A quarter of a cycle (a hundredth of the run) more
+  // is margin.
+  const double f = mainsFrequency(nl.circuit);
+  return f > 0.0 ? 5.25 / f : 0.11 * (o.stop - o.recordFrom);
+}
+
 SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   SupplyReport rep;
   const Circuit& c = nl.circuit;
@@ -307,9 +315,9 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     s.currentAverage = measure::mean(t, fwd, w0, w1);
     s.currentRms = measure::rms(t, fwd, w0, w1);
     s.currentPeak = measure::maximum(t, fwd, w0, w1);
-    double surge = 0.0;
-    for (double x : i) surge = std::max(surge, std::abs(x));
-    s.surgePeak = surge;
+    // Over every recorded row, including those a decimated or bounded run did not keep.
+    const Extent ie = r.extent("i:" + n);
+    s.surgePeak = std::max(std::abs(ie.min), std::abs(ie.max));
     s.surgeKnown = !periodicBasis;
 
     const double ta = c.ambient(), tmax = pt.ratings.maxPlateTemperature,
@@ -345,7 +353,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     // The busiest arm is judged: its plates carry more than the average.
     s.densityAverage = s.currentAverage * *std::max_element(s.armShare.begin(), s.armShare.end()) /
                        pt.physics.areaCm2;
-    s.formingStart = r["form:" + n].front();
+    s.formingStart = r.extent("form:" + n).first;
     s.formingEnd = r["form:" + n].back();
 
     s.verdicts.push_back(
@@ -523,9 +531,10 @@ Hazards hazardsOf(const Netlist& nl, const Result* r) {
       double peak = 0.0;
       const auto& t = d->terminals();
       const std::string sig = fmt::format("v:{},{}", c.nodeName(t[0]), c.nodeName(t[1]));
-      if (r && r->has(sig))
-        for (double x : (*r)[sig]) peak = std::max(peak, std::abs(x));
-      else
+      if (r && r->has(sig)) {
+        const Extent e = r->extent(sig);
+        peak = std::max(std::abs(e.min), std::abs(e.max));
+      } else
         for (int k = 0; k <= 2000; ++k) peak = std::max(peak, std::abs(w->value(k / 2000.0)));
       const bool alternating = w->frequency() > 0.0;
       if (alternating ? peak / std::numbers::sqrt2 > kAcRms : peak > kDc) h.mains = true;
@@ -539,9 +548,10 @@ Hazards hazardsOf(const Netlist& nl, const Result* r) {
     const auto& t = d->terminals();
     const std::string sig = fmt::format("v:{},{}", c.nodeName(t[0]), c.nodeName(t[1]));
     double v = 0.0;
-    if (r && r->has(sig))
-      for (double x : (*r)[sig]) v = std::max(v, std::abs(x));
-    else
+    if (r && r->has(sig)) {
+      const Extent e = r->extent(sig);
+      v = std::max(std::abs(e.min), std::abs(e.max));
+    } else
       v = h.mains || h.valves ? kCapVolts + 1.0 : 0.0;  // not run: assume the worst when HT
     const double farad = d->parameter("capacitance");
     if (v > kCapVolts || 0.5 * farad * v * v > kCapJoules) h.chargedCapacitors = true;

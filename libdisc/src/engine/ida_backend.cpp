@@ -238,7 +238,7 @@ void integrateIda(System& sys, const TransientOptions& o, std::vector<double>& x
       t = tret;
       stopped = recordNow(t, true);
       reportProgress(o, t);
-      budget.accepted(t, hLast, data.x.data(), rec.result());
+      budget.accepted(t, hLast, data.x.data(), rec);
       if (stopped || flag == IDA_TSTOP_RETURN) break;
     }
     if (!stopped) t = tb;

@@ -413,7 +413,7 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     if (t >= o.recordFrom) rec.record(ctx);
     ctx.time = t;
     reportProgress(o, t);
-    budget.accepted(t, hPrev, x.data(), rec.result());
+    budget.accepted(t, hPrev, x.data(), rec);
     if (monitor.accepted(ctx)) {
       if (t < o.recordFrom) rec.record(ctx);  // the step that destroyed a body is always kept
       break;

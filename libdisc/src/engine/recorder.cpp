@@ -113,20 +113,102 @@ Recorder::Recorder(const System& sys, std::vector<std::string> specs, Result& re
   }
 }
 
+void Recorder::plan(const TransientOptions& o) {
+  planned_ = true;
+  spacing_ = o.recordSpacing;
+  sink_ = o.sink;
+  keepLast_ = o.keepLast;
+  // The rows before the tail: at most keepSpread over the recorded span.
+  spreadSpacing_ =
+      keepLast_ > 0.0 ? (o.stop - o.recordFrom) / static_cast<double>(o.keepSpread - 1) : 0.0;
+  values_.assign(signals_.size(), 0.0);
+  extents_.assign(signals_.size(), Extent{});
+  if (sink_) sink_->begin(result_);
+}
+
 void Recorder::clear() {
   result_.timeColumn().clear();
   for (std::size_t k = 0; k < result_.signals().size(); ++k) result_.column(k).clear();
 }
 
+void Recorder::append(double t, const std::vector<double>& values) {
+  result_.timeColumn().push_back(t);
+  for (std::size_t k = 0; k < values.size(); ++k) result_.column(k).push_back(values[k]);
+}
+
+void Recorder::emit(double t, const std::vector<double>& values) {
+  lastEmitted_ = t;
+  if (sink_) sink_->row(t, values);
+  if (keepLast_ <= 0.0) append(t, values);
+}
+
 void Recorder::record(const EvalContext& ctx) {
-  result_.timeColumn().push_back(ctx.time);
+  if (!planned_) values_.resize(signals_.size());
   for (std::size_t k = 0; k < signals_.size(); ++k) {
     const Signal& s = signals_[k];
-    const double v = !s.device        ? ctx.x[s.a] - ctx.x[s.b]
-                     : s.instance > 0 ? s.device->probeAt(s.probe, s.instance, ctx)
-                                      : s.device->probe(s.probe, ctx);
-    result_.column(k).push_back(v);
+    values_[k] = !s.device        ? ctx.x[s.a] - ctx.x[s.b]
+                 : s.instance > 0 ? s.device->probeAt(s.probe, s.instance, ctx)
+                                  : s.device->probe(s.probe, ctx);
   }
+  if (!planned_) {
+    append(ctx.time, values_);
+    return;
+  }
+  const double t = ctx.time;
+  for (std::size_t k = 0; k < values_.size(); ++k) {
+    Extent& e = extents_[k];
+    const double v = values_[k];
+    if (rows_ == 0) e = {v, v, v, v};
+    e.last = v;
+    e.min = std::min(e.min, v);
+    e.max = std::max(e.max, v);
+  }
+  // Decimation: the first row, then each row at least the spacing after the last one kept;
+  // a row held back is emitted at the end if it is the run's last.
+  if (rows_ == 0 || t >= lastEmitted_ + spacing_ * (1.0 - 1e-9)) {
+    emit(t, values_);
+    pending_ = false;
+  } else {
+    pending_ = true;
+    pendingTime_ = t;
+    pendingValues_ = values_;
+  }
+  ++rows_;
+  if (keepLast_ <= 0.0) return;
+  // The bounded Result: every row of the last keepLast seconds, and one before them (the
+  // report's window may start between two rows); older rows leave the tail and are kept only
+  // when at least spreadSpacing_ after the last kept.
+  const std::size_t width = values_.size() + 1;
+  tail_.push_back(t);
+  tail_.insert(tail_.end(), values_.begin(), values_.end());
+  while (tail_.size() >= 2 * width && tail_[width] <= t - keepLast_) {
+    const double old = tail_.front();
+    if (!spreadAny_ || old >= lastSpread_ + spreadSpacing_ * (1.0 - 1e-9)) {
+      result_.timeColumn().push_back(old);
+      for (std::size_t k = 0; k + 1 < width; ++k) result_.column(k).push_back(tail_[k + 1]);
+      lastSpread_ = old;
+      spreadAny_ = true;
+    }
+    tail_.erase(tail_.begin(), tail_.begin() + static_cast<std::ptrdiff_t>(width));
+  }
+}
+
+void Recorder::finish() {
+  if (!planned_) return;
+  if (pending_) emit(pendingTime_, pendingValues_);
+  pending_ = false;
+  const std::size_t width = values_.size() + 1;
+  for (std::size_t p = 0; p + width <= tail_.size(); p += width) {
+    result_.timeColumn().push_back(tail_[p]);
+    for (std::size_t k = 0; k + 1 < width; ++k) result_.column(k).push_back(tail_[p + k + 1]);
+  }
+  tail_.clear();
+  result_.setRecorded(extents_, rows_);
+  if (sink_) sink_->end();
+}
+
+std::size_t Recorder::keptValues() const {
+  return result_.time().size() * (result_.signals().size() + 1) + tail_.size();
 }
 
 }  // namespace disc::detail

@@ -35,6 +35,27 @@ const std::string& Result::unit(std::string_view signal) const {
   return units_[indexOf(signal)];
 }
 
+Extent Result::extent(std::string_view signal) const {
+  const std::size_t k = indexOf(signal);
+  if (tracked_) return extents_[k];
+  Extent e;
+  const auto& c = columns_[k];
+  if (c.empty()) return e;
+  e.first = c.front();
+  e.last = c.back();
+  const auto [lo, hi] = std::minmax_element(c.begin(), c.end());
+  e.min = *lo;
+  e.max = *hi;
+  return e;
+}
+
+void Result::setRecorded(std::vector<Extent> extents, std::size_t rows) {
+  extents_ = std::move(extents);
+  extents_.resize(columns_.size());
+  recorded_ = rows;
+  tracked_ = true;
+}
+
 void Result::addSignal(std::string name, std::string unit) {
   if (index_.count(name)) return;
   index_.emplace(name, names_.size());

@@ -45,6 +45,12 @@ void TransientOptions::validate() const {
     throw InputError("transient: initial step must be zero (automatic) or positive");
   if (!(recordFrom >= 0.0) || recordFrom > stop)
     throw InputError("transient: recording must start between 0 and the stop time");
+  if (!(recordSpacing >= 0.0) || !std::isfinite(recordSpacing))
+    throw InputError("transient: record spacing must be zero (every step) or positive");
+  if (!(keepLast >= 0.0) || !std::isfinite(keepLast))
+    throw InputError("transient: keepLast must be zero (keep every row) or positive");
+  if (keepLast > 0.0 && keepSpread < 2)
+    throw InputError("transient: keepSpread must be at least 2");
   if (maxNewton < 2) throw InputError("transient: maxNewton must be at least 2");
   if (idaMaxOrder < 1 || idaMaxOrder > 5)
     throw InputError(fmt::format("transient: IDA order must be 1 to 5, got {}", idaMaxOrder));
@@ -81,10 +87,12 @@ void checkStepBudget(const Circuit& circuit, const TransientOptions& o) {
   if (e.minimumSteps > static_cast<double>(e.budget))
     throw InputError(fmt::format(
         "the transient needs at least {:.3g} steps (stop {:.4g} s over a largest step of {:.3g} "
-        "s, set by {}), more than its budget of {} steps (about {:.3g} MB of results per "
-        "recorded signal; docs/limits.md): shorten stop, lengthen max-step, or raise max-steps= "
-        "to run it anyway",
-        e.minimumSteps, o.stop, e.largestStep, e.limitedBy, e.budget, e.minimumSteps * 8.0 / 1e6));
+        "s, set by {}), more than its budget of {} steps (docs/limits.md): shorten stop, "
+        "lengthen max-step, or raise max-steps= to force it (its rows then go to the CSV as it "
+        "runs, in bounded memory; record-spacing= thins them). For minutes to hours of warming "
+        "up, 'run warm-up duration={:.4g}s' follows the temperatures and forming over settled "
+        "mains periods at a small fraction of the cost (docs/engine.md)",
+        e.minimumSteps, o.stop, e.largestStep, e.limitedBy, e.budget, o.stop));
 }
 
 namespace detail {
@@ -113,7 +121,7 @@ StepBudget::StepBudget(const System& sys, const TransientOptions& o)
   for (auto& w : swing_) w *= 100.0;
 }
 
-void StepBudget::accepted(double t, double h, const double* x, const Result& result) {
+void StepBudget::accepted(double t, double h, const double* x, const Recorder& rec) {
   ++steps_;
   for (std::size_t k = 0; k < changes_.size(); ++k) {
     const double v = x[k];
@@ -158,8 +166,7 @@ void StepBudget::accepted(double t, double h, const double* x, const Result& res
   } else {
     cause = "; loosen reltol, lengthen the step (max-step) or shorten stop";
   }
-  const double values =
-      static_cast<double>(result.time().size()) * static_cast<double>(result.signals().size() + 1);
+  const double values = static_cast<double>(rec.keptValues());
   throw TimeStepError(
       fmt::format("the transient spent its budget of {} steps at t = {:.6g} s of {:.4g} s (step "
                   "{:.3g} s; {:.0f} MB of results so far){}, or raise max-steps= "
@@ -178,6 +185,7 @@ Result transient(const Circuit& circuit, const TransientOptions& options) {
   detail::LinearSolver ls;
   Result result;
   detail::Recorder recorder(sys, options.record, result);
+  recorder.plan(options);
   RunStats& stats = result.stats();
   stats.method = methodName(options.method);
   stats.unknowns = sys.size();
@@ -203,6 +211,7 @@ Result transient(const Circuit& circuit, const TransientOptions& options) {
   } else {
     detail::integrateStepping(sys, ls, options, x, recorder, stats, monitor);
   }
+  recorder.finish();
   result.failureEvents() = monitor.events();
   stats.wallSeconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();

@@ -24,8 +24,9 @@ void reportProgress(const TransientOptions& o, double t);
 class StepBudget {
  public:
   StepBudget(const System& sys, const TransientOptions& o);
-  /// After each accepted step of size h ending at t, with the unknowns x.
-  void accepted(double t, double h, const double* x, const Result& result);
+  /// After each accepted step of size h ending at t, with the unknowns x and the recorder
+  /// (whose memory the message gives).
+  void accepted(double t, double h, const double* x, const Recorder& rec);
 
  private:
   const System& sys_;

@@ -931,13 +931,25 @@ class Builder {
                     fmt::format("max-steps must lie between 1 and {}", RunLimits::kMaxSteps));
             else if (v)
               a.transient.maxSteps = static_cast<long long>(std::ceil(*v));
+          } else if (tok.key == "record-from" || tok.key == "record-spacing") {
+            // Which rows the CSV gets: from a start time, at least a spacing apart.
+            auto v = number(tok.value, Dim::Time, tok.valueWhere);
+            if (v && !(*v >= 0.0))
+              error(tok.valueWhere, fmt::format("{} must be zero or positive", tok.key));
+            else if (v && tok.key == "record-from")
+              a.transient.recordFrom = *v;
+            else if (v)
+              a.transient.recordSpacing = *v;
           } else {
             unknownKey(tok, "transient",
                        {"stop", "max-step", "method", "start", "reltol", "abstol",
-                        "temperature-abstol", "max-steps"});
+                        "temperature-abstol", "max-steps", "record-from", "record-spacing"});
           }
         }
         if (!haveStop) return error(s.where, "run transient needs stop=TIME, e.g. stop=2s");
+        if (a.transient.stop > 0.0 && a.transient.recordFrom >= a.transient.stop)
+          return error(s.where, fmt::format("record-from ({} s) must come before stop ({} s)",
+                                            a.transient.recordFrom, a.transient.stop));
       } else if (kindWord == "periodic") {
         a.kind = AnalysisRequest::Kind::Periodic;
         PeriodicOptions& po = a.periodic;
