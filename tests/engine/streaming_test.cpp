@@ -53,7 +53,7 @@ std::vector<double> expectedTimes(const std::vector<double>& all, double from, d
 }  // namespace
 
 TEST_CASE(
-    "A CSV streamed as the run goes is the CSV of the whole run in memory; the report and "
+    "A CSV streamed as the run goes is the CSV of the whole run in memory, and the report and "
     "plots are unchanged",
     "[engine][streaming]") {
   Netlist nl = loadNetlist(DISC_NETLIST_DIR "/table-radio-half-wave.disc");

@@ -460,7 +460,11 @@ class Layout {
     }
     if (o.stop > 0.0) to.stop = o.stop;
     to.recordFrom = 0.0;
+    to.recordSpacing = 0.0;
     to.record = runSignals(variant, extra);
+    // A variant's figures are its report's: its span at the end and the extents suffice, so a
+    // long stop costs no memory on each of many threads.
+    to.keepLast = reportSpan(variant, to);
     to.progress = {};
     return to;
   }
