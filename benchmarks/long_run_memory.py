@@ -28,7 +28,7 @@ def netlist_for(stop):
     """The example with its run statement replaced by a long, streamed, thinned one."""
     with open(NETLIST) as f:
         text = f.read()
-    run = (f"run transient stop={stop:g}s method=trap max-steps=1000000000 "
+    run = (f"run transient stop={stop:g}s method=trapezoidal max-steps=1000000000 "
            "record-spacing=1s")
     text, n = re.subn(r"^run transient .*$", run, text, flags=re.M)
     assert n == 1, "the example's run statement moved"

@@ -25,7 +25,7 @@ struct RunArgs {
   std::string outDir;
   bool strict = false;
   bool quiet = false;
-  std::optional<double> recordFrom, recordSpacing;  // for every transient of the file
+  disc::TransientOverrides overrides;  // for every transient of the file
 };
 
 // --sandbox: include and use read only inside the netlist's folder (docs/limits.md).
@@ -65,23 +65,8 @@ std::string stemOf(const std::string& path) {
 }
 
 int runFile(const RunArgs& a) {
-  disc::Netlist nl = disc::loadNetlist(a.file, includePolicy());
+  disc::Netlist nl = disc::loadNetlist(a.file, includePolicy(), a.overrides);
   const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) : a.outDir;
-  for (auto& an : nl.analyses) {
-    if (an.kind != disc::AnalysisRequest::Kind::Transient) continue;
-    if (a.recordFrom) {
-      if (!(*a.recordFrom >= 0.0 && *a.recordFrom < an.transient.stop))
-        throw disc::InputError(
-            fmt::format("--record-from {} s must lie from 0 to before the transient's stop ({} s)",
-                        *a.recordFrom, an.transient.stop));
-      an.transient.recordFrom = *a.recordFrom;
-    }
-    if (a.recordSpacing) {
-      if (!(*a.recordSpacing >= 0.0))
-        throw disc::InputError("--record-spacing must be zero (every step) or positive");
-      an.transient.recordSpacing = *a.recordSpacing;
-    }
-  }
   disc::checkOutputFolder(dir);  // refused before the run, not after it
   disc::RunOutcome out;
   {
@@ -383,11 +368,14 @@ int main(int argc, char** argv) {
   run->add_flag("--strict", ra.strict,
                 "Exit with code 4 when a rating is exceeded or a plate runs away or fails");
   run->add_flag("-q,--quiet", ra.quiet, "Print nothing; only write the files");
-  run->add_option("--record-from", ra.recordFrom,
+  run->add_option("--record-from", ra.overrides.recordFrom,
                   "Write a transient's CSV rows from this time on, s (overrides record-from=)");
-  run->add_option("--record-spacing", ra.recordSpacing,
+  run->add_option("--record-spacing", ra.overrides.recordSpacing,
                   "Keep CSV rows at least this far apart, s (overrides record-spacing=; 0: "
                   "every step)");
+  run->add_option("--max-steps", ra.overrides.maxSteps,
+                  "Step budget of every transient (overrides max-steps=): raise it to force a "
+                  "run refused as too long (docs/limits.md)");
   std::string checkPath;
   auto* check = app.add_subcommand("check", "Parse and validate a netlist without simulating");
   check->add_option("file", checkPath, "Netlist (.disc)")->required()->check(CLI::ExistingFile);

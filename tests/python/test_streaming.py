@@ -80,3 +80,19 @@ def test_record_from_and_spacing_keep_the_documented_rows(tmp_path, record_from,
     assert list(kept.time) == want
     with pytest.raises(ValueError, match="record spacing"):
         c.run_transient(stop=0.1, record_spacing=-1.0)
+
+
+def test_a_run_past_its_step_budget_is_refused_up_front_unless_forced():
+    # 0.2 s at 50 Hz: at least 200 steps at a twentieth of a period (docs/limits.md). A budget
+    # of 100 refuses it before any step, naming the estimate, the way to force it and the
+    # warm-up; a budget of 100000 lets it run.
+    c = disc.parse("voltage V1 a gnd sine amplitude=10V frequency=50Hz\nresistor R1 a b 1k\n"
+                   "capacitor C1 b gnd 10uF\n")
+    with pytest.raises(ValueError, match=r"at least 2e\+02 steps.*budget of 100 steps"
+                                         r".*max_steps=.*run warm-up"):
+        c.run_transient(stop=0.2, record=["v:b"], max_steps=100)
+    r = c.run_transient(stop=0.2, record=["v:b"], max_steps=100000)
+    assert r.time[-1] == pytest.approx(0.2)
+    assert 200 <= r.stats["accepted_steps"] <= 100000
+    with pytest.raises(ValueError, match="max-steps must lie between 1 and"):
+        c.run_transient(stop=0.2, max_steps=-5)

@@ -329,7 +329,7 @@ class Circuit:
     # -- analyses -------------------------------------------------------------------------
     def run_transient(self, stop, record=None, method="trapezoidal", start="cold", max_step=0.0,
                       reltol=0.0, abstol=0.0, temperature_abstol=0.0, progress=None,
-                      record_from=0.0, record_spacing=0.0, csv=None):
+                      record_from=0.0, record_spacing=0.0, csv=None, max_steps=0):
         """Transient from 0 to stop (s). method: 'trapezoidal', 'bdf2' or 'ida'; start: 'cold' or
         'operating-point'; reltol (default 1e-3), abstol (volts and amperes, default 1e-6) and
         temperature_abstol (kelvin, default 1e-4), 0 for the defaults. The run works on a copy
@@ -341,13 +341,18 @@ class Circuit:
         this long after the last one kept (the first and the last row always; 0: every step).
         csv: a path the rows are written to as the run goes; the Result then keeps only the
         end the supply report reads and a few thousand rows before it (bounded memory on any
-        stop time; ``Result.recorded_rows`` counts them all)."""
+        stop time; ``Result.recorded_rows`` counts them all).
+
+        max_steps: the step budget (0: the default, docs/limits.md). A run that cannot reach
+        its stop within it is refused before it starts (ValueError with the estimate); raise
+        it to force the run, or use run_warm_up for minutes to hours of warming."""
         res = self._net.run_transient(float(stop), list(record or []), method, start,
                                       float(max_step), float(reltol), float(abstol),
                                       float(temperature_abstol), progress,
                                       record_from=float(record_from),
                                       record_spacing=float(record_spacing),
-                                      csv=str(csv) if csv is not None else "")
+                                      csv=str(csv) if csv is not None else "",
+                                      max_steps=max_steps)
         return Result(self, res)
 
     def run_periodic(self, record=None, reltol=0.0, at=0.0):

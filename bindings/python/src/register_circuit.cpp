@@ -130,10 +130,11 @@ void registerCircuit(py::module_& m) {
           [](const Netlist& n, double stop, const std::vector<std::string>& record,
              const std::string& method, const std::string& start, double maxStep, double reltol,
              double abstol, double temperatureAbstol, py::object progress, double recordFrom,
-             double recordSpacing, const std::string& csvPath) {
+             double recordSpacing, const std::string& csvPath, long long maxSteps) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
+            o.maxSteps = maxSteps;
             o.recordFrom = recordFrom;
             o.recordSpacing = recordSpacing;
             o.method = parseMethod(method);
@@ -166,7 +167,8 @@ void registerCircuit(py::module_& m) {
           py::arg("stop"), py::arg("record"), py::arg("method"), py::arg("start"),
           py::arg("max_step"), py::arg("reltol"), py::arg("abstol"),
           py::arg("temperature_abstol") = 0.0, py::arg("progress") = py::none(),
-          py::arg("record_from") = 0.0, py::arg("record_spacing") = 0.0, py::arg("csv") = "")
+          py::arg("record_from") = 0.0, py::arg("record_spacing") = 0.0, py::arg("csv") = "",
+          py::arg("max_steps") = 0)
       .def(
           "run_periodic",
           [](const Netlist& n, const std::vector<std::string>& record, double reltol, double at) {

@@ -2,6 +2,7 @@
 #pragma once
 
 #include <map>
+#include <optional>
 #include <string>
 #include <utility>
 #include <vector>
@@ -111,5 +112,17 @@ Netlist parseNetlist(const std::string& text, const std::string& name = "<text>"
                      IncludePolicy policy = IncludePolicy::Trusted);
 /// Reads and parses a .disc file (a regular file of at most InputLimits::kNetlistBytes).
 Netlist loadNetlist(const std::string& path, IncludePolicy policy = IncludePolicy::Trusted);
+
+/// Settings given from outside the file for every transient it runs (`disc run --record-from
+/// --record-spacing --max-steps`). They replace the statements' own before the checks, so a
+/// raised step budget lets a run past the default one through (docs/limits.md).
+struct TransientOverrides {
+  std::optional<double> recordFrom, recordSpacing;  ///< s
+  std::optional<long long> maxSteps;
+};
+/// loadNetlist with the overrides applied to every transient; a value out of range is an
+/// error at the run statement it would change.
+Netlist loadNetlist(const std::string& path, IncludePolicy policy,
+                    const TransientOverrides& overrides);
 
 }  // namespace disc

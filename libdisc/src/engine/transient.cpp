@@ -88,7 +88,8 @@ void checkStepBudget(const Circuit& circuit, const TransientOptions& o) {
     throw InputError(fmt::format(
         "the transient needs at least {:.3g} steps (stop {:.4g} s over a largest step of {:.3g} "
         "s, set by {}), more than its budget of {} steps (docs/limits.md): shorten stop, "
-        "lengthen max-step, or raise max-steps= to force it (its rows then go to the CSV as it "
+        "lengthen max-step, or raise max-steps= (disc run --max-steps, max_steps= in Python) to "
+        "force it (its rows then go to the CSV as it "
         "runs, in bounded memory; record-spacing= thins them). For minutes to hours of warming "
         "up, 'run warm-up duration={:.4g}s' follows the temperatures and forming over settled "
         "mains periods at a small fraction of the cost (docs/engine.md)",

@@ -303,14 +303,45 @@ class Builder {
     }
   }
 
-  void defaultAnalysis() {
-    if (nl_.analyses.empty()) {
-      AnalysisRequest a;
-      a.kind = AnalysisRequest::Kind::Transient;
-      a.transient.stop = 1.0;
-      a.transient.start = Start::Cold;
-      nl_.analyses.push_back(a);
+  /// Settings from outside the file for every transient, checked as the statement's own are.
+  void override(const TransientOverrides& o) {
+    for (auto& a : nl_.analyses) {
+      if (a.kind != AnalysisRequest::Kind::Transient) continue;
+      TransientOptions& t = a.transient;
+      if (o.recordFrom) {
+        if (!(*o.recordFrom >= 0.0 && *o.recordFrom < t.stop))
+          error(a.where,
+                fmt::format("record-from ({} s, given for every run) must lie from 0 to before "
+                            "this run's stop ({} s)",
+                            *o.recordFrom, t.stop));
+        else
+          t.recordFrom = *o.recordFrom;
+      }
+      if (o.recordSpacing) {
+        if (!(*o.recordSpacing >= 0.0 && std::isfinite(*o.recordSpacing)))
+          error(a.where, "record-spacing (given for every run) must be zero or positive");
+        else
+          t.recordSpacing = *o.recordSpacing;
+      }
+      if (o.maxSteps) {
+        if (!(*o.maxSteps >= 1 && *o.maxSteps <= RunLimits::kMaxSteps))
+          error(a.where, fmt::format("max-steps (given for every run) must lie between 1 and {}",
+                                     RunLimits::kMaxSteps));
+        else
+          t.maxSteps = *o.maxSteps;
+      }
     }
+  }
+
+  /// A file without run statements runs a 1 s transient from cold; true when it was added.
+  bool defaultAnalysis() {
+    if (!nl_.analyses.empty()) return false;
+    AnalysisRequest a;
+    a.kind = AnalysisRequest::Kind::Transient;
+    a.transient.stop = 1.0;
+    a.transient.start = Start::Cold;
+    nl_.analyses.push_back(a);
+    return true;
   }
 
  private:
@@ -1378,22 +1409,38 @@ void addElement(Netlist& nl, const std::string& kind, const std::string& name,
   appendNetlist(nl, text, fmt::format("<{} {}>", kind, name));
 }
 
-Netlist parseNetlist(const std::string& text, const std::string& name, IncludePolicy policy) {
+namespace {
+
+Netlist parseWith(const std::string& text, const std::string& name, IncludePolicy policy,
+                  const TransientOverrides& overrides) {
   detail::Diagnostics diags;
   auto context = detail::ReadContext::start(name, policy);
   auto statements = detail::lex(text, name, diags, context);
   Netlist nl = emptyNetlist(name);
   detail::Builder b(nl, diags, &context);
   b.append(std::move(statements));
+  // Before the checks: a raised step budget is what lets a long run through them.
+  b.override(overrides);
   b.topology();
-  b.defaultAnalysis();
+  if (b.defaultAnalysis()) b.override(overrides);
   if (!diags.empty()) throw NetlistError(diags.list());
   return nl;
 }
 
+}  // namespace
+
+Netlist parseNetlist(const std::string& text, const std::string& name, IncludePolicy policy) {
+  return parseWith(text, name, policy, {});
+}
+
 Netlist loadNetlist(const std::string& path, IncludePolicy policy) {
-  return parseNetlist(detail::readInputFile(path, InputLimits::kNetlistBytes, "netlist"), path,
-                      policy);
+  return loadNetlist(path, policy, {});
+}
+
+Netlist loadNetlist(const std::string& path, IncludePolicy policy,
+                    const TransientOverrides& overrides) {
+  return parseWith(detail::readInputFile(path, InputLimits::kNetlistBytes, "netlist"), path, policy,
+                   overrides);
 }
 
 const char* analysisWord(AnalysisRequest::Kind kind) {
