@@ -67,15 +67,16 @@ std::string stemOf(const std::string& path) {
 int runFile(const RunArgs& a) {
   disc::Netlist nl = disc::loadNetlist(a.file, includePolicy(), a.overrides);
   const std::string dir = a.outDir.empty() ? "out/" + stemOf(a.file) : a.outDir;
-  disc::checkOutputFolder(dir);  // refused before the run, not after it
+  // Refused before the run, not after it. Transients stream their CSV into the staged folder
+  // as they run (bounded memory on any stop); `dir` keeps its earlier run until the commit.
+  disc::StagedFolder folder(dir);
   disc::RunOutcome out;
   {
     Progress progress;
-    // Transients stream their CSV into the folder as they run: bounded memory on any stop.
     out = disc::runNetlist(
-        nl, [&progress](double t, double stop) { return progress(t, stop); }, dir);
+        nl, [&progress](double t, double stop) { return progress(t, stop); }, &folder);
   }
-  const auto files = disc::writeRunFiles(nl, out, dir);
+  const auto files = disc::writeRunFiles(nl, out, folder);
   if (!a.quiet)
     for (const auto& an : out.analyses)
       if (an.request.kind == disc::AnalysisRequest::Kind::WarmUp)

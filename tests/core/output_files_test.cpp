@@ -192,3 +192,66 @@ TEST_CASE("writeFileAtomically: unique temporary names, a link at the path repla
                   disc::Error);
   CHECK(entries(root) == std::set<std::string>{"out.json", "victim"});
 }
+
+TEST_CASE("StagedFolder: a file written as the run goes is committed with the others, listed",
+          "[files]") {
+  const fs::path root = freshDir("staged");
+  const std::string dir = (root / "run").string();
+  disc::writeFiles(dir, {{"transient-1.csv", "old"}, {"stack-SR2.svg", "old plot"}});
+  {
+    disc::StagedFolder folder(dir);
+    folder.open("transient-1.csv");
+    folder.append("transient-1.csv", "time [s]\r\n");
+    // Until the commit the folder holds the earlier run, whole.
+    CHECK(slurp(root / "run" / "transient-1.csv") == "old");
+    CHECK(manifest(root / "run") == std::set<std::string>{"transient-1.csv", "stack-SR2.svg"});
+    folder.append("transient-1.csv", "0,1\r\n");
+    // A file still being written is never committed half way.
+    CHECK_THROWS_WITH(folder.commit(), Catch::Contains("still being written"));
+    folder.close("transient-1.csv");
+    folder.add("report.json", "{}");
+    CHECK(folder.has("transient-1.csv"));
+    CHECK_THROWS_AS(folder.open("report.json"), disc::InputError);  // twice
+    CHECK_THROWS_AS(folder.open("../x.csv"), disc::InputError);
+    const auto paths = folder.commit();
+    CHECK(paths == std::vector<std::string>{dir + "/transient-1.csv", dir + "/report.json",
+                                            dir + "/" + disc::kManifestName});
+  }
+  CHECK(slurp(root / "run" / "transient-1.csv") == "time [s]\r\n0,1\r\n");
+  CHECK(manifest(root / "run") == std::set<std::string>{"transient-1.csv", "report.json"});
+  CHECK(entries(root / "run") ==
+        std::set<std::string>{"transient-1.csv", "report.json", disc::kManifestName});
+  CHECK(entries(root) == std::set<std::string>{"run"});
+}
+
+TEST_CASE("StagedFolder: not committed, it leaves the earlier run's folder as it was", "[files]") {
+  const fs::path root = freshDir("staged-abandoned");
+  const std::string dir = (root / "run").string();
+  disc::writeFiles(dir, {{"a.csv", "old"}});
+  {
+    disc::StagedFolder folder(dir);
+    folder.open("transient-1.csv");
+    folder.append("transient-1.csv", "half a run");
+    folder.add("report.json", "{}");
+    // The prepared folder is beside the target, under a hidden unique name.
+    CHECK(entries(root).size() == 2);
+  }
+  CHECK(entries(root / "run") == std::set<std::string>{"a.csv", disc::kManifestName});
+  CHECK(slurp(root / "run" / "a.csv") == "old");
+  CHECK(entries(root) == std::set<std::string>{"run"});
+  // A discarded file is not committed; the rest is.
+  {
+    disc::StagedFolder folder(dir);
+    folder.open("transient-1.csv");
+    folder.append("transient-1.csv", "half");
+    folder.discard("transient-1.csv");
+    CHECK_FALSE(folder.has("transient-1.csv"));
+    folder.add("b.csv", "new");
+    folder.commit();
+  }
+  CHECK(entries(root / "run") == std::set<std::string>{"b.csv", disc::kManifestName});
+  // An unusable target is refused when the folder is opened, before any run.
+  std::ofstream(root / "run" / "notes.txt") << "mine";
+  CHECK_THROWS_AS(disc::StagedFolder(dir), disc::InputError);
+  CHECK(entries(root) == std::set<std::string>{"run"});
+}

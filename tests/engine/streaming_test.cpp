@@ -4,6 +4,8 @@
 
 #include <filesystem>
 #include <fstream>
+#include <map>
+#include <set>
 #include <sstream>
 
 #include <disc/disc.hpp>
@@ -50,6 +52,26 @@ std::vector<double> expectedTimes(const std::vector<double>& all, double from, d
   return kept;
 }
 
+/// The names a folder's manifest lists.
+std::set<std::string> manifestNames(const std::string& dir) {
+  std::set<std::string> names;
+  std::istringstream in(readFile(dir + "/" + kManifestName));
+  std::string line;
+  while (std::getline(in, line))
+    if (!line.empty() && line[0] != '#') names.insert(line);
+  return names;
+}
+
+/// The entries of a folder (hidden ones too when `all`), the manifest left out.
+std::set<std::string> folderNames(const std::string& dir, bool all) {
+  std::set<std::string> names;
+  for (const auto& e : std::filesystem::directory_iterator(dir)) {
+    const std::string name = e.path().filename().string();
+    if (name != kManifestName && (all || name[0] != '.')) names.insert(name);
+  }
+  return names;
+}
+
 }  // namespace
 
 TEST_CASE(
@@ -59,14 +81,15 @@ TEST_CASE(
   Netlist nl = loadNetlist(DISC_NETLIST_DIR "/table-radio-half-wave.disc");
   const RunOutcome whole = runNetlist(nl);
   const std::string dir = outDir("table-radio");
-  const RunOutcome streamed = runNetlist(nl, {}, dir);
+  StagedFolder folder(dir);
+  const RunOutcome streamed = runNetlist(nl, {}, &folder);
   REQUIRE(whole.analyses.size() == 1);
   REQUIRE(streamed.analyses.size() == 1);
   CHECK_FALSE(whole.analyses[0].streamed);
   CHECK(streamed.analyses[0].streamed);
-  const std::string csv = readFile(dir + "/transient-1.csv");
-  CHECK(csv == resultCsv(whole.analyses[0].result));
-  CHECK_FALSE(std::filesystem::exists(dir + "/transient-1.csv.part"));
+  // The rows went to the staged folder; the target stays as it was until the commit.
+  CHECK(folder.has("transient-1.csv"));
+  CHECK(std::filesystem::is_empty(dir));
   // Every row went to the file; the Result kept them all only in the whole run.
   const Result& kept = streamed.analyses[0].result;
   CHECK(kept.recordedRows() == whole.analyses[0].result.time().size());
@@ -86,11 +109,51 @@ TEST_CASE(
       CHECK(plotsWhole[p].series[s].y == plotsKept[p].series[s].y);
     }
   }
-  // writeRunFiles leaves the streamed file as it is and writes the rest.
-  const auto files = writeRunFiles(nl, streamed, dir);
-  CHECK(std::find(files.begin(), files.end(), dir + "/transient-1.csv") == files.end());
-  CHECK(readFile(dir + "/transient-1.csv") == csv);
+  // writeRunFiles adds the rest and commits: the streamed CSV is in the folder, listed in its
+  // manifest with the others, and nothing is left beside the folder.
+  const auto files = writeRunFiles(nl, streamed, folder);
+  CHECK(std::find(files.begin(), files.end(), dir + "/transient-1.csv") != files.end());
+  const std::string csv = readFile(dir + "/transient-1.csv");
+  CHECK(csv == resultCsv(whole.analyses[0].result));
   CHECK(std::filesystem::exists(dir + "/report.json"));
+  const auto listed = manifestNames(dir);
+  CHECK(listed.count("transient-1.csv") == 1);
+  CHECK(listed.count("report.json") == 1);
+  CHECK(listed == folderNames(dir, false));
+  CHECK(folderNames(std::filesystem::path(dir).parent_path().string(), true) ==
+        std::set<std::string>{"table-radio"});
+}
+
+TEST_CASE("A run that fails half way leaves the folder's earlier run as it was",
+          "[engine][streaming]") {
+  // Two transients: the first streams its whole CSV, the second is cancelled half way. The
+  // earlier run's files stay, byte for byte, and no prepared folder is left beside them.
+  const Netlist nl = parseNetlist(
+      "voltage V1 a gnd sine amplitude=10V frequency=50Hz\nresistor R1 a b 1k\n"
+      "capacitor C1 b gnd 10uF\nrun transient stop=0.1s\nrun transient stop=0.2s\n");
+  const std::string dir = outDir("failed") + "/run";
+  writeRunFiles(nl, runNetlist(nl), dir);
+  std::map<std::string, std::string> before;
+  for (const auto& name : folderNames(dir, false)) before[name] = readFile(dir + "/" + name);
+  REQUIRE(before.count("transient-2.csv") == 1);
+  bool cancelled = false;
+  {
+    StagedFolder folder(dir);
+    auto cancelHalfWay = [&](double t, double stop) {
+      cancelled = stop > 0.15 && t > 0.1;
+      return !cancelled;
+    };
+    CHECK_THROWS_AS(runNetlist(nl, cancelHalfWay, &folder), Cancelled);
+    // The first transient's CSV is complete in the staged folder, the second's discarded.
+    CHECK(folder.has("transient-1.csv"));
+    CHECK_FALSE(folder.has("transient-2.csv"));
+  }
+  CHECK(cancelled);
+  std::map<std::string, std::string> after;
+  for (const auto& name : folderNames(dir, false)) after[name] = readFile(dir + "/" + name);
+  CHECK(after == before);
+  CHECK(folderNames(std::filesystem::path(dir).parent_path().string(), true) ==
+        std::set<std::string>{"run"});
 }
 
 TEST_CASE("record-from and record-spacing keep the rows their rule names", "[engine][streaming]") {

@@ -32,6 +32,13 @@ def leftovers(folder):
     return [n for n in os.listdir(folder) if ".tmp-" in n or ".old-" in n or n.endswith(".part")]
 
 
+def prepared(parent):
+    """The folders of runs into parent/out that have written all their files and their
+    manifest, and wait for their swap."""
+    return [n for n in os.listdir(parent)
+            if n.startswith(".out.tmp-") and (parent / n / "disc-manifest.txt").exists()]
+
+
 def whole(folder):
     """The folder holds exactly what its manifest lists; returns report.json's title."""
     listed = [line for line in (folder / "disc-manifest.txt").read_text().splitlines()
@@ -47,12 +54,12 @@ def test_two_runs_into_one_folder_take_turns(tmp_path):
                   extra="stack D2 p plus type=cuox-3mm-instrument\n")
     out = tmp_path / "out"
     # Both runs are made to reach their swap together: the lock they take on the parent folder
-    # is held here until both have prepared their files.
+    # is held here until both have prepared their files (their manifests are written).
     parent = os.open(tmp_path, os.O_RDONLY)
     fcntl.flock(parent, fcntl.LOCK_EX)
     procs = [subprocess.Popen([cli, "run", "-q", f, "-o", str(out)]) for f in (one, two)]
     deadline = time.time() + 120
-    while len([n for n in os.listdir(tmp_path) if n.startswith(".out.tmp-")]) < 2:
+    while len(prepared(tmp_path)) < 2:
         assert time.time() < deadline, "the runs did not prepare their folders"
         assert all(p.poll() is None for p in procs), "a run ended before its swap"
         time.sleep(0.01)
@@ -118,6 +125,30 @@ def test_sigint_while_simulating_leaves_nothing(tmp_path):
     assert p.wait(timeout=60) == -signal.SIGINT
     assert not out.exists()
     assert leftovers(tmp_path) == []
+
+
+def test_sigint_while_streaming_keeps_the_earlier_run(tmp_path):
+    # A long transient streams its CSV into the prepared folder as it goes; interrupted there,
+    # the prepared folder goes and the earlier run's folder stays as it was.
+    cli = need_cli()
+    out = tmp_path / "out"
+    one = netlist(tmp_path, "one.disc", "first")
+    subprocess.run([cli, "run", "-q", one, "-o", str(out)], check=True)
+    before = {n: (out / n).read_bytes() for n in os.listdir(out)}
+    slow = netlist(tmp_path, "slow.disc", "slow", stop="60s")
+    p = subprocess.Popen([cli, "run", "-q", slow, "-o", str(out)])
+    deadline = time.time() + 120
+    while True:
+        streaming = [tmp_path / n / "transient-1.csv" for n in os.listdir(tmp_path)
+                     if n.startswith(".out.tmp-")]
+        if streaming and streaming[0].exists() and streaming[0].stat().st_size > 1 << 16:
+            break
+        assert time.time() < deadline and p.poll() is None, "the run never streamed its rows"
+        time.sleep(0.01)
+    p.send_signal(signal.SIGINT)
+    assert p.wait(timeout=60) == -signal.SIGINT
+    assert leftovers(tmp_path) == []
+    assert {n: (out / n).read_bytes() for n in os.listdir(out)} == before
 
 
 def test_sigint_while_writing_removes_the_prepared_folder(tmp_path):

@@ -2,6 +2,7 @@
 memory (read with Python's csv module, RFC 4180), record_from and record_spacing keep the rows
 their rule names (docs/python.md), and the supply report is unchanged by streaming."""
 import csv
+import os
 import pathlib
 import subprocess
 
@@ -47,7 +48,24 @@ def test_disc_run_streams_the_csv_python_keeps_in_memory(tmp_path):
     results, report = disc.load(TABLE_RADIO).run()
     results[0].to_csv(tmp_path / "memory.csv")
     assert rows_of(tmp_path / "cli" / "transient-1.csv") == rows_of(tmp_path / "memory.csv")
-    assert not (tmp_path / "cli" / "transient-1.csv.part").exists()
+    # The streamed CSV is committed with the rest of the folder and listed in its manifest;
+    # nothing is left beside the folder.
+    listed = [line for line in (tmp_path / "cli" / "disc-manifest.txt").read_text().splitlines()
+              if line and not line.startswith("#")]
+    assert "transient-1.csv" in listed
+    assert sorted(listed + ["disc-manifest.txt"]) == sorted(os.listdir(tmp_path / "cli"))
+    assert [n for n in os.listdir(tmp_path) if n.startswith(".")] == []
+
+
+def test_write_files_streams_into_the_committed_folder(tmp_path):
+    c = disc.load(TABLE_RADIO)
+    files = c.write_files(tmp_path / "py")
+    assert str(tmp_path / "py" / "transient-1.csv") in files
+    results, _ = c.run()
+    results[0].to_csv(tmp_path / "memory.csv")
+    assert rows_of(tmp_path / "py" / "transient-1.csv") == rows_of(tmp_path / "memory.csv")
+    listed = (tmp_path / "py" / "disc-manifest.txt").read_text().splitlines()
+    assert "transient-1.csv" in listed
 
 
 def expected_times(times, record_from, spacing):

@@ -299,14 +299,15 @@ void registerCircuit(py::module_& m) {
       .def("report_text",
            [](const Netlist& n, const Result& r) { return reportText(makeSupplyReport(n, r)); })
       .def("write_files", [](const Netlist& n, const std::string& dir) {
-        checkOutputFolder(dir);  // refused before the run, not after it
+        // Refused before the run, not after it; the transients stream their CSV into it.
+        StagedFolder folder(dir);
         const Netlist copy = n;  // copied under the GIL, run without it
         RunOutcome out;
         {
           py::gil_scoped_release nogil;
-          out = runNetlist(copy, throttledProgress(py::none()), dir);
+          out = runNetlist(copy, throttledProgress(py::none()), &folder);
         }
-        return writeRunFiles(copy, out, dir);
+        return writeRunFiles(copy, out, folder);
       });
   m.def(
       "reference_circuit",

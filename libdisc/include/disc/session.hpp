@@ -3,6 +3,7 @@
 
 #include <cstdio>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -44,8 +45,8 @@ struct AnalysisOutcome {
   /// (one row per slow step: mean, min() and max() of each signal over the settled period).
   Result result;
   WarmUpSummary warmUp;  ///< for a warm-up
-  /// A transient whose rows went to its CSV file as it ran (runNetlist with a folder): the
-  /// file is written, and `result` keeps only the rows the report and plots read
+  /// A transient whose rows went to its CSV file as it ran (runNetlist with a StagedFolder):
+  /// the file is in the folder, and `result` keeps only the rows the report and plots read
   /// (TransientOptions::keepLast).
   bool streamed = false;
 };
@@ -71,12 +72,13 @@ AnalysisOutcome warmUpAnalysis(const Netlist& netlist, EnvelopeOptions options,
 std::string warmUpText(const WarmUpSummary& summary);
 
 /// Runs every analysis of the netlist; the last transient feeds the supply report when the
-/// netlist names its output. `progress(time, stop)` may return false to cancel. With `csvDir`
-/// each transient writes its rows to `csvDir`/transient-N.csv as it runs (the name
+/// netlist names its output. `progress(time, stop)` may return false to cancel. With a
+/// `folder` each transient writes its rows to transient-N.csv in it as it runs (the name
 /// writeRunFiles gives it, which then leaves it) and keeps in memory only what the report
-/// and the plots read, so memory stays bounded on any duration.
+/// and the plots read, so memory stays bounded on any duration; the folder's target is left
+/// as it was until writeRunFiles commits it, and a run that throws leaves it so.
 RunOutcome runNetlist(const Netlist& netlist, std::function<bool(double, double)> progress = {},
-                      const std::string& csvDir = "");
+                      StagedFolder* folder = nullptr);
 
 /// The signals a run of this netlist records: `extra`, the file's own, and those the supply
 /// report needs when the netlist names its output.
@@ -90,10 +92,13 @@ std::string reportJson(const SupplyReport& report);
 std::string reportHtml(const Netlist& netlist, const RunOutcome& outcome);
 /// A Result as CSV: a header of "name [unit]" columns, then one row per time point.
 std::string resultCsv(const Result& result);
-/// The same CSV text written row by row as a run goes (TransientOptions::sink): under
-/// `path`.part, renamed to `path` at the end; a run that throws leaves no file.
+/// The same CSV text written row by row as a run goes (TransientOptions::sink), into a file
+/// of a StagedFolder, or into a StagedFile moved over `path` at the end. A run that throws or
+/// is cancelled leaves no file (nor a partial one in the folder).
 class CsvFile : public RowSink {
  public:
+  /// `name` in `folder`, which must outlive the CsvFile.
+  CsvFile(StagedFolder& folder, std::string name);
   explicit CsvFile(std::string path);
   ~CsvFile() override;
   CsvFile(const CsvFile&) = delete;
@@ -101,14 +106,17 @@ class CsvFile : public RowSink {
   void begin(const Result& layout) override;
   void row(double time, const std::vector<double>& values) override;
   void end() override;
+  /// Where the file is (or will be, once its folder is committed).
   const std::string& path() const { return path_; }
   std::size_t rows() const { return rows_; }  ///< rows written so far
 
  private:
   void flush();
   static constexpr std::size_t kFlushBytes = 1 << 16;
-  std::string path_, part_, buffer_;
-  std::FILE* file_ = nullptr;
+  StagedFolder* folder_ = nullptr;
+  std::string name_, path_, buffer_;
+  std::unique_ptr<StagedFile> file_;  // without a folder
+  bool open_ = false;
   std::size_t signals_ = 0, rows_ = 0;
 };
 /// Line plot as SVG. Each series is (name, x, y).
@@ -144,7 +152,12 @@ std::string siValue(double value, const std::string& unit, int digits = 4);
 std::string seriesColour(std::size_t k, std::size_t n);
 
 /// Writes report.json, report.html, one CSV per analysis and the SVG plots as the whole of
-/// folder `dir`, swapped into place at once (writeFiles, disc/files.hpp).
+/// folder `dir`, swapped into place at once (a StagedFolder, disc/files.hpp).
 std::vector<std::string> writeRunFiles(const Netlist& netlist, const RunOutcome& outcome,
                                        const std::string& dir);
+/// The same into the folder the run streamed its transients' CSV files into (runNetlist), which
+/// it then commits: the streamed files, the others and the manifest swapped into place
+/// together. Throws Error when a streamed CSV is not in `folder`.
+std::vector<std::string> writeRunFiles(const Netlist& netlist, const RunOutcome& outcome,
+                                       StagedFolder& folder);
 }  // namespace disc

@@ -468,27 +468,30 @@ std::string resultCsv(const Result& r) {
   return s;
 }
 
-CsvFile::CsvFile(std::string path) : path_(std::move(path)), part_(path_ + ".part") {}
+CsvFile::CsvFile(StagedFolder& folder, std::string name)
+    : folder_(&folder), name_(std::move(name)), path_(folder.pathOf(name_)) {}
+
+CsvFile::CsvFile(std::string path) : path_(std::move(path)) {}
 
 CsvFile::~CsvFile() {
-  // A run that failed leaves no half-written file behind.
-  if (file_) {
-    std::fclose(file_);
-    std::remove(part_.c_str());
-  }
+  // A run that failed leaves no half-written file behind (a StagedFile removes its own).
+  if (open_ && folder_) folder_->discard(name_);
 }
 
 void CsvFile::begin(const Result& layout) {
-  if (file_) throw Error(fmt::format("'{}' is already being written", path_));
-  file_ = std::fopen(part_.c_str(), "wb");
-  if (!file_) throw Error(fmt::format("cannot write '{}'", part_));
+  if (open_ || file_) throw Error(fmt::format("'{}' is already being written", path_));
+  if (folder_)
+    folder_->open(name_);
+  else
+    file_ = std::make_unique<StagedFile>(path_);
+  open_ = true;
   signals_ = layout.signals().size();
   buffer_ = csvHeader(layout);
   rows_ = 0;
 }
 
 void CsvFile::row(double time, const std::vector<double>& values) {
-  if (!file_) throw Error(fmt::format("'{}': a row before the header", path_));
+  if (!open_) throw Error(fmt::format("'{}': a row before the header", path_));
   csvRow(
       buffer_, time, [&](std::size_t c) { return values[c]; }, signals_);
   ++rows_;
@@ -496,24 +499,21 @@ void CsvFile::row(double time, const std::vector<double>& values) {
 }
 
 void CsvFile::flush() {
-  if (!buffer_.empty() && std::fwrite(buffer_.data(), 1, buffer_.size(), file_) != buffer_.size())
-    throw Error(fmt::format("failed writing '{}' (disk full?)", part_));
+  if (folder_)
+    folder_->append(name_, buffer_);
+  else
+    file_->append(buffer_);
   buffer_.clear();
 }
 
 void CsvFile::end() {
-  if (!file_) throw Error(fmt::format("'{}' was never started", path_));
+  if (!open_) throw Error(fmt::format("'{}' was never started", path_));
   flush();
-  const bool closed = std::fclose(file_) == 0;
-  file_ = nullptr;
-  if (!closed) {
-    std::remove(part_.c_str());
-    throw Error(fmt::format("failed writing '{}' (disk full?)", part_));
-  }
-  if (std::rename(part_.c_str(), path_.c_str()) != 0) {
-    std::remove(part_.c_str());
-    throw Error(fmt::format("cannot move '{}' into place", path_));
-  }
+  if (folder_)
+    folder_->close(name_);
+  else
+    file_->commit();
+  open_ = false;
 }
 
 std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
@@ -674,21 +674,31 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
 }
 
 std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
-                                       const std::string& dir) {
-  std::vector<std::pair<std::string, std::string>> files;
+                                       StagedFolder& folder) {
   for (std::size_t k = 0; k < out.analyses.size(); ++k) {
     const auto& a = out.analyses[k];
-    const char* kind = analysisWord(a.request.kind);
-    // A transient streamed its CSV into `dir` as it ran.
-    if (a.streamed) continue;
-    files.emplace_back(fmt::format("{}-{}.csv", kind, k + 1), resultCsv(a.result));
+    const std::string name = fmt::format("{}-{}.csv", analysisWord(a.request.kind), k + 1);
+    if (a.streamed) {
+      // A transient streamed its CSV into the folder as it ran.
+      if (!folder.has(name))
+        throw Error(fmt::format("'{}' was streamed into another folder than '{}'", name,
+                                excerpt(folder.dir())));
+      continue;
+    }
+    folder.add(name, resultCsv(a.result));
   }
   if (out.hasReport) {
-    files.emplace_back("report.json", reportJson(out.report));
-    files.emplace_back("report.html", reportHtml(nl, out));
-    for (const auto& [name, svg] : runPlots(nl, out)) files.emplace_back(name + ".svg", svg);
+    folder.add("report.json", reportJson(out.report));
+    folder.add("report.html", reportHtml(nl, out));
+    for (const auto& [name, svg] : runPlots(nl, out)) folder.add(name + ".svg", svg);
   }
-  return writeFiles(dir, files);
+  return folder.commit();
+}
+
+std::vector<std::string> writeRunFiles(const Netlist& nl, const RunOutcome& out,
+                                       const std::string& dir) {
+  StagedFolder folder(dir);
+  return writeRunFiles(nl, out, folder);
 }
 
 }  // namespace disc

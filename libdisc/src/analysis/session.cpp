@@ -1,7 +1,6 @@
 // Running a netlist.
 #include <fmt/format.h>
 #include <algorithm>
-#include <filesystem>
 #include <map>
 #include <optional>
 
@@ -165,13 +164,7 @@ AnalysisOutcome warmUpAnalysis(const Netlist& nl, EnvelopeOptions o, SupplyRepor
 }
 
 RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> progress,
-                      const std::string& csvDir) {
-  if (!csvDir.empty()) {
-    std::error_code ec;
-    std::filesystem::create_directories(csvDir, ec);
-    if (ec)
-      throw Error(fmt::format("cannot create the output folder '{}': {}", csvDir, ec.message()));
-  }
+                      StagedFolder* folder) {
   RunOutcome out;
   std::size_t lastReportable = nl.analyses.size();
   for (std::size_t k = 0; k < nl.analyses.size(); ++k)
@@ -194,9 +187,8 @@ RunOutcome runNetlist(const Netlist& nl, std::function<bool(double, double)> pro
         o.record = record;
         o.progress = progress;
         std::optional<CsvFile> csv;
-        if (!csvDir.empty()) {
-          csv.emplace(
-              (std::filesystem::path(csvDir) / fmt::format("transient-{}.csv", k + 1)).string());
+        if (folder) {
+          csv.emplace(*folder, fmt::format("transient-{}.csv", k + 1));
           o.sink = &*csv;
           o.keepLast = reportSpan(nl, o);
           ao.streamed = true;

@@ -40,29 +40,24 @@ struct Slot {
 };
 Slot gSlots[kSlots];
 
-class PendingOutput {
- public:
-  PendingOutput(const std::string& path, bool folder) {
-    if (path.size() >= PATH_MAX) return;
-    for (int k = 0; k < kSlots; ++k) {
-      int expected = kFree;
-      if (gSlots[k].state.compare_exchange_strong(expected, kClaimed)) {
-        std::memcpy(gSlots[k].path, path.c_str(), path.size() + 1);
-        gSlots[k].state.store(folder ? kFolder : kFile, std::memory_order_release);
-        slot_ = k;
-        return;
-      }
+// Claims a slot for `path` (-1 when all are taken or the path is too long); the handler removes
+// it until releaseSlot.
+int claimSlot(const std::string& path, bool folder) {
+  if (path.size() >= PATH_MAX) return -1;
+  for (int k = 0; k < kSlots; ++k) {
+    int expected = kFree;
+    if (gSlots[k].state.compare_exchange_strong(expected, kClaimed)) {
+      std::memcpy(gSlots[k].path, path.c_str(), path.size() + 1);
+      gSlots[k].state.store(folder ? kFolder : kFile, std::memory_order_release);
+      return k;
     }
   }
-  ~PendingOutput() {
-    if (slot_ >= 0) gSlots[slot_].state.store(kFree, std::memory_order_release);
-  }
-  PendingOutput(const PendingOutput&) = delete;
-  PendingOutput& operator=(const PendingOutput&) = delete;
+  return -1;
+}
 
- private:
-  int slot_ = -1;
-};
+void releaseSlot(int slot) {
+  if (slot >= 0) gSlots[slot].state.store(kFree, std::memory_order_release);
+}
 
 // Removes a folder of plain files (no subfolders: the folders written here hold none) with
 // async-signal-safe calls only, so the signal handler can use it. Links are removed, never
@@ -242,7 +237,7 @@ bool inspectTarget(int parentFd, const Target& t) {
                : fmt::format("has no {}", kManifestName)));
 }
 
-void writeAll(int fd, const std::string& content, const std::string& shown) {
+void writeAll(int fd, std::string_view content, const std::string& shown) {
   std::size_t done = 0;
   while (done < content.size()) {
     const ssize_t n = ::write(fd, content.data() + done, content.size() - done);
@@ -252,19 +247,26 @@ void writeAll(int fd, const std::string& content, const std::string& shown) {
                               n < 0 ? std::strerror(errno) : "no space written"));
     done += static_cast<std::size_t>(n);
   }
-  // On disk before the rename makes it visible, so a crash leaves the old file or the new one.
+}
+
+// On disk before the rename makes it visible, so a crash leaves the old file or the new one.
+void syncFile(int fd, const std::string& shown) {
   if (::fsync(fd) != 0 && errno != EINVAL)
     throw Error(fmt::format("failed writing '{}': {}", excerpt(shown), std::strerror(errno)));
 }
 
-void writeNewFileAt(int dirFd, const std::string& name, const std::string& content,
-                    const std::string& shown) {
+int createFileAt(int dirFd, const std::string& name, const std::string& shown) {
   const int fd =
       ::openat(dirFd, name.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
   if (fd < 0)
     throw Error(fmt::format("cannot create '{}': {}", excerpt(shown), std::strerror(errno)));
-  FdGuard guard{fd};
-  writeAll(fd, content, shown);
+  return fd;
+}
+
+void checkFileName(const std::string& name) {
+  // Names are file names, never paths: nothing is written outside the folder.
+  if (name != safeFileStem(name) || name == kManifestName)
+    throw InputError(fmt::format("'{}' is not a safe file name", excerpt(name)));
 }
 
 }  // namespace
@@ -280,121 +282,240 @@ void checkOutputFolder(const std::string& dir) {
   inspectTarget(parentFd, t);
 }
 
-std::vector<std::string> writeFiles(const std::string& dir,
-                                    const std::vector<std::pair<std::string, std::string>>& files) {
-  std::set<std::string> names;
-  for (const auto& [name, content] : files) {
-    // Names are file names, never paths: nothing is written outside `dir`.
-    if (name != safeFileStem(name) || name == kManifestName)
-      throw InputError(fmt::format("'{}' is not a safe file name", excerpt(name)));
-    if (!names.insert(name).second)
-      throw InputError(fmt::format("'{}' would be written twice", excerpt(name)));
+struct StagedFolder::State {
+  Target target;
+  FdGuard parent, tmp;
+  std::string tmpName, tmpPath;
+  int slot = -1;
+  bool committed = false;
+  struct File {
+    std::string name;
+    int fd = -1;  // open while written as the run goes
+  };
+  std::vector<File> files;
+
+  File* find(const std::string& name) {
+    for (auto& f : files)
+      if (f.name == name) return &f;
+    return nullptr;
   }
-  const Target t = splitTarget(dir);
+  File& openFile(const std::string& name) {
+    File* f = find(name);
+    if (!f || f->fd < 0) throw Error(fmt::format("'{}' is not open for writing", excerpt(name)));
+    return *f;
+  }
+  void closeAll() {
+    for (auto& f : files)
+      if (f.fd >= 0) {
+        ::close(f.fd);
+        f.fd = -1;
+      }
+  }
+};
+
+StagedFolder::StagedFolder(const std::string& dir) : state_(std::make_unique<State>()) {
+  State& s = *state_;
+  s.target = splitTarget(dir);
+  const Target& t = s.target;
   refuseWorkingFolder(t);
   makeParent(t);
-  FdGuard parent{::open(t.parent.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC)};
-  if (parent.fd < 0)
+  s.parent.fd = ::open(t.parent.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+  if (s.parent.fd < 0)
     throw InputError(fmt::format("cannot open '{}': {}", excerpt(t.parent), std::strerror(errno)));
-  inspectTarget(parent.fd, t);  // refused before anything is written
-
-  std::string tmpName;
+  inspectTarget(s.parent.fd, t);  // refused before anything is written
   for (int attempt = 0;; ++attempt) {
-    tmpName = "." + t.name + ".tmp-" + randomSuffix();
-    if (::mkdirat(parent.fd, tmpName.c_str(), 0777) == 0) break;
+    s.tmpName = "." + t.name + ".tmp-" + randomSuffix();
+    if (::mkdirat(s.parent.fd, s.tmpName.c_str(), 0777) == 0) break;
     if (errno != EEXIST || attempt > 100)
       throw Error(fmt::format("cannot create a temporary folder in '{}': {}", excerpt(t.parent),
                               std::strerror(errno)));
   }
-  const std::string tmpPath = t.parent + "/" + tmpName;
-  PendingOutput pending(tmpPath, true);
-  std::vector<std::string> written;
-  bool exists = false;
-  try {
-    FdGuard tmp{
-        ::openat(parent.fd, tmpName.c_str(), O_RDONLY | O_DIRECTORY | O_NOFOLLOW | O_CLOEXEC)};
-    if (tmp.fd < 0)
-      throw Error(fmt::format("cannot open '{}': {}", excerpt(tmpPath), std::strerror(errno)));
-    std::string manifest = fmt::format(
-        "# The files of one run, written together by libdisc {}; the next run into this folder\n"
-        "# replaces the folder whole.\n",
-        kVersion);
-    for (const auto& [name, content] : files) {
-      const std::string path = (fs::path(dir) / name).string();
-      writeNewFileAt(tmp.fd, name, content, path);
-      manifest += name + "\n";
-      written.push_back(path);
-    }
-    writeNewFileAt(tmp.fd, kManifestName, manifest, (fs::path(dir) / kManifestName).string());
-    written.push_back((fs::path(dir) / kManifestName).string());
-    ::fsync(tmp.fd);
-    // Runs into folders of one parent take turns from here to the swap (flock: between processes
-    // and between threads alike, each open file being its own lock holder); the folder is
-    // judged again under the lock, as another run may have replaced it meanwhile.
-    while (::flock(parent.fd, LOCK_EX) != 0)
-      if (errno != EINTR)
-        throw Error(fmt::format("cannot lock '{}': {}", excerpt(t.parent), std::strerror(errno)));
-    exists = inspectTarget(parent.fd, t);
-    int rc;
-    if (exists) {
-      // One atomic exchange: the folder is the old run's or the new one's at every instant.
-      rc = ::renameat2(parent.fd, tmpName.c_str(), parent.fd, t.name.c_str(), RENAME_EXCHANGE);
-      if (rc != 0 && (errno == EINVAL || errno == ENOSYS)) {
-        // A file system without the exchange: move the old folder aside first (for a moment
-        // the folder is missing, never mixed).
-        const std::string aside = "." + t.name + ".old-" + randomSuffix();
-        rc = ::renameat(parent.fd, t.name.c_str(), parent.fd, aside.c_str());
-        if (rc == 0) {
-          rc = ::renameat(parent.fd, tmpName.c_str(), parent.fd, t.name.c_str());
-          if (rc != 0)
-            ::renameat(parent.fd, aside.c_str(), parent.fd, t.name.c_str());
-          else
-            ::renameat(parent.fd, aside.c_str(), parent.fd, tmpName.c_str());
-        }
-      }
-    } else {
-      rc = ::renameat(parent.fd, tmpName.c_str(), parent.fd, t.name.c_str());
-    }
-    if (rc != 0)
-      throw Error(
-          fmt::format("cannot move the output into '{}': {}", excerpt(dir), std::strerror(errno)));
-    ::fsync(parent.fd);
-  } catch (...) {
-    removeFlatFolder(tmpPath.c_str());
-    throw;
+  s.tmpPath = t.parent + "/" + s.tmpName;
+  s.slot = claimSlot(s.tmpPath, true);
+  s.tmp.fd =
+      ::openat(s.parent.fd, s.tmpName.c_str(), O_RDONLY | O_DIRECTORY | O_NOFOLLOW | O_CLOEXEC);
+  if (s.tmp.fd < 0) {
+    const int err = errno;
+    removeFlatFolder(s.tmpPath.c_str());
+    releaseSlot(s.slot);
+    throw Error(fmt::format("cannot open '{}': {}", excerpt(s.tmpPath), std::strerror(err)));
   }
-  // The temporary name now holds the earlier run's folder, stale files and all.
-  if (exists) removeFlatFolder(tmpPath.c_str());
+}
+
+StagedFolder::~StagedFolder() {
+  State& s = *state_;
+  s.closeAll();
+  if (!s.committed) removeFlatFolder(s.tmpPath.c_str());
+  releaseSlot(s.slot);
+}
+
+const std::string& StagedFolder::dir() const {
+  return state_->target.shown;
+}
+
+std::string StagedFolder::pathOf(const std::string& name) const {
+  return (fs::path(state_->target.shown) / name).string();
+}
+
+bool StagedFolder::has(const std::string& name) const {
+  return state_->find(name) != nullptr;
+}
+
+void StagedFolder::open(const std::string& name) {
+  State& s = *state_;
+  if (s.committed) throw Error(fmt::format("'{}': the folder is already committed", dir()));
+  checkFileName(name);
+  if (s.find(name)) throw InputError(fmt::format("'{}' would be written twice", excerpt(name)));
+  const int fd = createFileAt(s.tmp.fd, name, pathOf(name));
+  s.files.push_back({name, fd});
+}
+
+void StagedFolder::append(const std::string& name, std::string_view data) {
+  writeAll(state_->openFile(name).fd, data, pathOf(name));
+}
+
+void StagedFolder::close(const std::string& name) {
+  State::File& f = state_->openFile(name);
+  const int fd = f.fd;
+  f.fd = -1;
+  FdGuard guard{fd};
+  syncFile(fd, pathOf(name));
+}
+
+void StagedFolder::add(const std::string& name, const std::string& content) {
+  open(name);
+  append(name, content);
+  close(name);
+}
+
+void StagedFolder::discard(const std::string& name) {
+  State& s = *state_;
+  State::File* f = s.find(name);
+  if (!f || s.committed) return;
+  if (f->fd >= 0) ::close(f->fd);
+  ::unlinkat(s.tmp.fd, name.c_str(), 0);
+  s.files.erase(s.files.begin() + (f - s.files.data()));
+}
+
+std::vector<std::string> StagedFolder::commit() {
+  State& s = *state_;
+  const Target& t = s.target;
+  if (s.committed) throw Error(fmt::format("'{}': the folder is already committed", dir()));
+  for (const auto& f : s.files)
+    if (f.fd >= 0) throw Error(fmt::format("'{}' is still being written", excerpt(pathOf(f.name))));
+  std::vector<std::string> written;
+  std::string manifest = fmt::format(
+      "# The files of one run, written together by libdisc {}; the next run into this folder\n"
+      "# replaces the folder whole.\n",
+      kVersion);
+  for (const auto& f : s.files) {
+    manifest += f.name + "\n";
+    written.push_back(pathOf(f.name));
+  }
+  {
+    FdGuard m{createFileAt(s.tmp.fd, kManifestName, pathOf(kManifestName))};
+    writeAll(m.fd, manifest, pathOf(kManifestName));
+    syncFile(m.fd, pathOf(kManifestName));
+  }
+  written.push_back(pathOf(kManifestName));
+  ::fsync(s.tmp.fd);
+  // Runs into folders of one parent take turns from here to the swap (flock: between processes
+  // and between threads alike, each open file being its own lock holder); the folder is judged
+  // again under the lock, as another run may have replaced it meanwhile. The lock goes with
+  // the parent's descriptor (the destructor).
+  while (::flock(s.parent.fd, LOCK_EX) != 0)
+    if (errno != EINTR)
+      throw Error(fmt::format("cannot lock '{}': {}", excerpt(t.parent), std::strerror(errno)));
+  const bool exists = inspectTarget(s.parent.fd, t);
+  const int pfd = s.parent.fd;
+  int rc;
+  if (exists) {
+    // One atomic exchange: the folder is the old run's or the new one's at every instant.
+    rc = ::renameat2(pfd, s.tmpName.c_str(), pfd, t.name.c_str(), RENAME_EXCHANGE);
+    if (rc != 0 && (errno == EINVAL || errno == ENOSYS)) {
+      // A file system without the exchange: move the old folder aside first (for a moment the
+      // folder is missing, never mixed).
+      const std::string aside = "." + t.name + ".old-" + randomSuffix();
+      rc = ::renameat(pfd, t.name.c_str(), pfd, aside.c_str());
+      if (rc == 0) {
+        rc = ::renameat(pfd, s.tmpName.c_str(), pfd, t.name.c_str());
+        if (rc != 0)
+          ::renameat(pfd, aside.c_str(), pfd, t.name.c_str());
+        else
+          ::renameat(pfd, aside.c_str(), pfd, s.tmpName.c_str());
+      }
+    }
+  } else {
+    rc = ::renameat(pfd, s.tmpName.c_str(), pfd, t.name.c_str());
+  }
+  if (rc != 0)
+    throw Error(
+        fmt::format("cannot move the output into '{}': {}", excerpt(dir()), std::strerror(errno)));
+  ::fsync(pfd);
+  // The temporary name now holds the earlier run's folder, stale files and all (or nothing).
+  s.committed = true;
+  ::flock(pfd, LOCK_UN);
+  if (exists) removeFlatFolder(s.tmpPath.c_str());
   return written;
 }
 
-void writeFileAtomically(const std::string& path, const std::string& content) {
+std::vector<std::string> writeFiles(const std::string& dir,
+                                    const std::vector<std::pair<std::string, std::string>>& files) {
+  std::set<std::string> names;
+  for (const auto& [name, content] : files) {
+    checkFileName(name);  // refused before anything is written
+    if (!names.insert(name).second)
+      throw InputError(fmt::format("'{}' would be written twice", excerpt(name)));
+  }
+  StagedFolder folder(dir);
+  for (const auto& [name, content] : files) folder.add(name, content);
+  return folder.commit();
+}
+
+StagedFile::StagedFile(const std::string& path) : path_(path) {
   const fs::path p(path);
   const std::string name = p.filename().string();
   if (name.empty() || name == "." || name == "..")
     throw Error(fmt::format("'{}' is not a file name", excerpt(path)));
   const fs::path folder = p.parent_path().empty() ? fs::path(".") : p.parent_path();
-  std::string tmp;
-  int fd = -1;
-  for (int attempt = 0; fd < 0; ++attempt) {
-    tmp = (folder / ("." + name + ".tmp-" + randomSuffix())).string();
-    fd = ::open(tmp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
-    if (fd < 0 && (errno != EEXIST || attempt > 100))
+  for (int attempt = 0; fd_ < 0; ++attempt) {
+    tmp_ = (folder / ("." + name + ".tmp-" + randomSuffix())).string();
+    fd_ = ::open(tmp_.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0666);
+    if (fd_ < 0 && (errno != EEXIST || attempt > 100))
       throw Error(fmt::format("cannot write '{}': {}", excerpt(path), std::strerror(errno)));
   }
-  PendingOutput pending(tmp, false);
-  try {
-    FdGuard guard{fd};
-    writeAll(fd, content, path);
-  } catch (...) {
-    ::unlink(tmp.c_str());
-    throw;
+  slot_ = claimSlot(tmp_, false);
+}
+
+StagedFile::~StagedFile() {
+  if (fd_ >= 0) {
+    ::close(fd_);
+    ::unlink(tmp_.c_str());
   }
-  if (std::rename(tmp.c_str(), path.c_str()) != 0) {
+  releaseSlot(slot_);
+}
+
+void StagedFile::append(std::string_view data) {
+  if (fd_ < 0) throw Error(fmt::format("'{}' is already committed", excerpt(path_)));
+  writeAll(fd_, data, path_);
+}
+
+void StagedFile::commit() {
+  if (fd_ < 0) throw Error(fmt::format("'{}' is already committed", excerpt(path_)));
+  syncFile(fd_, path_);
+  const bool closed = ::close(fd_) == 0;
+  fd_ = -1;
+  if (!closed || std::rename(tmp_.c_str(), path_.c_str()) != 0) {
     const int err = errno;
-    ::unlink(tmp.c_str());
-    throw Error(fmt::format("cannot move '{}' into place: {}", excerpt(path), std::strerror(err)));
+    ::unlink(tmp_.c_str());
+    throw Error(fmt::format("cannot move '{}' into place: {}", excerpt(path_), std::strerror(err)));
   }
+}
+
+void writeFileAtomically(const std::string& path, const std::string& content) {
+  StagedFile file(path);
+  file.append(content);
+  file.commit();
 }
 
 void installInterruptCleanup() {
