@@ -120,8 +120,9 @@ TEST_CASE(
   CHECK(listed.count("transient-1.csv") == 1);
   CHECK(listed.count("report.json") == 1);
   CHECK(listed == folderNames(dir, false));
-  CHECK(folderNames(std::filesystem::path(dir).parent_path().string(), true) ==
-        std::set<std::string>{"table-radio"});
+  // (The parent holds the other tests' folders too: only this one's prepared folder counts.)
+  for (const auto& name : folderNames(std::filesystem::path(dir).parent_path().string(), true))
+    CHECK(name.rfind(".table-radio.", 0) == std::string::npos);
 }
 
 TEST_CASE("A run that fails half way leaves the folder's earlier run as it was",
