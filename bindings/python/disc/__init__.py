@@ -13,7 +13,7 @@ selenium gives off toxic fumes.
 import pathlib
 
 from . import _disc
-from ._errors import NetlistError, SimulationError, TraceError
+from ._errors import Error, InputError, NetlistError, SimulationError, TraceError
 from .campaign import CampaignResult, campaign
 from .circuit import Circuit, Element, Result
 from .warm_up import PowerUpPlan, WarmUp
@@ -144,7 +144,7 @@ def replace_stacks(path, stacks, *, diode=None, loads=(0.5, 1.0, 1.2), target="f
 
 
 __all__ = ["Circuit", "Element", "Result", "WarmUp", "PowerUpPlan", "PlateType", "PlateCurve",
-           "Trace", "NetlistError", "SimulationError", "TraceError", "load", "parse",
+           "Trace", "Error", "InputError", "NetlistError", "SimulationError", "TraceError", "load", "parse",
            "plate_types", "plate_type", "load_plate_types", "reference_circuit", "example_path",
            "load_trace", "trace", "fit_plate", "model_current", "judge_plate_health",
            "replace_stacks"]

@@ -7,6 +7,7 @@
 #include <memory>
 
 #include "disc/analysis.hpp"
+#include "disc/analysis_settings.hpp"
 #include "disc/error.hpp"
 #include "disc/netlist.hpp"
 #include "disc/reference_circuits.hpp"
@@ -77,7 +78,9 @@ void registerErrors(py::module_& m) {
     } catch (const Cancelled& e) {
       PyErr_SetString(PyExc_KeyboardInterrupt, e.what());
     } catch (const InputError& e) {
-      PyErr_SetString(PyExc_ValueError, e.what());
+      // disc.InputError is a ValueError too.
+      py::object cls = py::module_::import("disc._errors").attr("InputError");
+      PyErr_SetObject(cls.ptr(), py::str(e.what()).ptr());
     } catch (const Error& e) {
       py::object cls = py::module_::import("disc._errors").attr("SimulationError");
       PyErr_SetObject(cls.ptr(), py::str(e.what()).ptr());
@@ -130,11 +133,12 @@ void registerCircuit(py::module_& m) {
           [](const Netlist& n, double stop, const std::vector<std::string>& record,
              const std::string& method, const std::string& start, double maxStep, double reltol,
              double abstol, double temperatureAbstol, py::object progress, double recordFrom,
-             double recordSpacing, const std::string& csvPath, long long maxSteps) {
+             double recordSpacing, const std::string& csvPath, double maxSteps) {
             checkNetlist(n);
             TransientOptions o;
             o.stop = stop;
-            o.maxSteps = maxSteps;
+            // 0 keeps the default; any other value is checked as the netlist checks it.
+            if (maxSteps != 0.0) o.maxSteps = stepBudget(maxSteps);
             o.recordFrom = recordFrom;
             o.recordSpacing = recordSpacing;
             o.method = parseMethod(method);
@@ -145,9 +149,10 @@ void registerCircuit(py::module_& m) {
             else
               throw InputError("start is 'cold' or 'operating-point', got '" + start + "'");
             o.maxStep = maxStep;
-            if (reltol > 0.0) o.tol.reltol = reltol;
-            if (abstol > 0.0) o.tol.voltage = o.tol.current = abstol;
-            if (temperatureAbstol > 0.0) o.tol.temperature = temperatureAbstol;
+            if (reltol != 0.0) o.tol.reltol = checkSetting("reltol", reltol);
+            if (abstol != 0.0) o.tol.voltage = o.tol.current = checkSetting("abstol", abstol);
+            if (temperatureAbstol != 0.0)
+              o.tol.temperature = checkSetting("temperature-abstol", temperatureAbstol);
             o.record = runSignals(n, record);
             o.progress = throttledProgress(progress);
             // The copy is taken under the GIL, so no Python thread changes the netlist while it
@@ -168,13 +173,13 @@ void registerCircuit(py::module_& m) {
           py::arg("max_step"), py::arg("reltol"), py::arg("abstol"),
           py::arg("temperature_abstol") = 0.0, py::arg("progress") = py::none(),
           py::arg("record_from") = 0.0, py::arg("record_spacing") = 0.0, py::arg("csv") = "",
-          py::arg("max_steps") = 0)
+          py::arg("max_steps") = 0.0)
       .def(
           "run_periodic",
           [](const Netlist& n, const std::vector<std::string>& record, double reltol, double at) {
             checkNetlist(n);
             PeriodicOptions o;
-            if (reltol > 0.0) o.tol.reltol = reltol;
+            if (reltol != 0.0) o.tol.reltol = checkSetting("reltol", reltol);
             o.slowTime = at;
             o.record = runSignals(n, record);
             const Circuit circuit = n.circuit;  // copied under the GIL, run without it
@@ -189,7 +194,7 @@ void registerCircuit(py::module_& m) {
             checkNetlist(n);
             EnvelopeOptions o;
             o.duration = duration;
-            if (reltol > 0.0) o.reltol = reltol;
+            if (reltol != 0.0) o.reltol = checkSetting("reltol", reltol);
             o.record = record;
             o.progress = throttledProgress(progress);
             const Circuit circuit = n.circuit;  // copied under the GIL, run without it
@@ -211,7 +216,7 @@ void registerCircuit(py::module_& m) {
             checkNetlist(n);
             EnvelopeOptions o;
             o.duration = duration;
-            if (reltol > 0.0) o.reltol = reltol;
+            if (reltol != 0.0) o.reltol = checkSetting("reltol", reltol);
             o.record = record;
             o.progress = throttledProgress(progress);
             const Netlist copy = n;  // copied under the GIL, run without it

@@ -12,10 +12,12 @@
 namespace disc {
 
 std::vector<std::string> runSignals(const Netlist& nl, const std::vector<std::string>& extra) {
-  std::vector<std::string> record = extra;
+  std::vector<std::string> record;
+  // A signal asked for twice is one column, in the place of its first mention.
   auto add = [&record](const std::string& s) {
     if (std::find(record.begin(), record.end(), s) == record.end()) record.push_back(s);
   };
+  for (const auto& s : extra) add(s);
   for (const auto& s : nl.record) add(s);
   if (nl.output.given)
     for (const auto& s : reportSignals(nl)) add(s);

@@ -79,6 +79,9 @@ void StackOptions::validate() const {
   if (plates * arms > InputLimits::kPlatesPerStack)
     throw InputError(fmt::format("{} plates x {} arms is above the limit of {} plates per stack",
                                  plates, arms, InputLimits::kPlatesPerStack));
+  if (seed > kMaxSeed)
+    throw InputError(
+        fmt::format("seed must be a whole number from 0 to {}, got {}", kMaxSeed, seed));
   for (double s : {spread.js, spread.rs, spread.gsh})
     if (!(s >= 0.0 && s <= 3.0))
       throw InputError(fmt::format("spread sigmas must lie in [0, 3], got {}", s));

@@ -10,6 +10,7 @@
 
 #include "core/safe_io.hpp"
 #include "core/text_match.hpp"
+#include "disc/analysis_settings.hpp"
 #include "disc/devices/capacitor.hpp"
 #include "disc/devices/diode.hpp"
 #include "disc/devices/electrolytic.hpp"
@@ -324,11 +325,11 @@ class Builder {
           t.recordSpacing = *o.recordSpacing;
       }
       if (o.maxSteps) {
-        if (!(*o.maxSteps >= 1 && *o.maxSteps <= RunLimits::kMaxSteps))
-          error(a.where, fmt::format("max-steps (given for every run) must lie between 1 and {}",
-                                     RunLimits::kMaxSteps));
-        else
-          t.maxSteps = *o.maxSteps;
+        try {
+          t.maxSteps = stepBudget(static_cast<double>(*o.maxSteps));
+        } catch (const InputError& e) {
+          error(a.where, fmt::format("{} (given for every run)", e.what()));
+        }
       }
     }
   }
@@ -724,7 +725,8 @@ class Builder {
       const double spread = p.get("spread", 0.0);
       o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread),
                   p.get("spread-gsh", spread)};
-      o.seed = static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0, 1000000000));
+      o.seed = static_cast<std::uint64_t>(
+          wholeNumber(p, "seed", 1, 0, static_cast<int>(StackOptions::kMaxSeed)));
       o.forming = p.get("forming", 1.0);
       o.storedYears = p.get("stored-years", 0.0);
       o.storageTemperature = p.get("stored-temp", 0.0);
@@ -878,6 +880,18 @@ class Builder {
                      "duration=TIME");
       AnalysisRequest a;
       a.where = s.where;
+      // A numeric setting checked against its range in analysisSettings(), as Python checks it.
+      auto setting = [&](const Token& tok,
+                         std::string_view analysis = "") -> std::optional<double> {
+        auto v = number(tok.value, Dim::None, tok.valueWhere);
+        if (!v) return std::nullopt;
+        try {
+          return checkSetting(tok.key, *v, analysis);
+        } catch (const InputError& e) {
+          error(tok.valueWhere, e.what());
+          return std::nullopt;
+        }
+      };
       // Keys every time-domain analysis shares; false when the key is not one of them.
       auto timeKey = [&](const Token& tok, Tolerances& tol, double& maxStep, Start* start) {
         if (tok.key == "max-step") {
@@ -894,27 +908,14 @@ class Builder {
           else
             error(tok.valueWhere, "start is cold or operating-point");
         } else if (tok.key == "reltol") {
-          auto v = number(tok.value, Dim::None, tok.valueWhere);
-          if (v && (*v <= 0.0 || *v >= 0.1))
-            error(tok.valueWhere, "reltol must lie between 0 and 0.1");
-          else if (v)
-            tol.reltol = *v;
+          if (auto v = setting(tok)) tol.reltol = *v;
         } else if (tok.key == "abstol") {
-          // One absolute floor for voltages (V) and currents (A): below about 1e-6 relative
-          // accuracy it, not reltol, sets the error.
-          auto v = number(tok.value, Dim::None, tok.valueWhere);
-          if (v && (*v <= 0.0 || *v > 1e-3))
-            error(tok.valueWhere, "abstol must lie above 0 and at most 1e-3");
-          else if (v)
-            tol.voltage = tol.current = *v;
+          // One absolute floor for voltages (V) and currents (A).
+          if (auto v = setting(tok)) tol.voltage = tol.current = *v;
         } else if (tok.key == "temperature-abstol") {
           // Kelvin: temperatures have their own absolute floor (a thermal rise of a few kelvin
           // needs a finer one than a volt does).
-          auto v = number(tok.value, Dim::None, tok.valueWhere);
-          if (v && (*v <= 0.0 || *v > 1.0))
-            error(tok.valueWhere, "temperature-abstol (K) must lie above 0 and at most 1");
-          else if (v)
-            tol.temperature = *v;
+          if (auto v = setting(tok)) tol.temperature = *v;
         } else {
           return false;
         }
@@ -955,13 +956,8 @@ class Builder {
               error(tok.valueWhere, e.what());
             }
           } else if (tok.key == "max-steps") {
-            // The step budget (docs/limits.md): a whole number, raised to run a long job.
-            auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && !(*v >= 1.0 && *v <= static_cast<double>(RunLimits::kMaxSteps)))
-              error(tok.valueWhere,
-                    fmt::format("max-steps must lie between 1 and {}", RunLimits::kMaxSteps));
-            else if (v)
-              a.transient.maxSteps = static_cast<long long>(std::ceil(*v));
+            // The step budget (docs/limits.md), raised to run a long job.
+            if (auto v = setting(tok)) a.transient.maxSteps = static_cast<long long>(std::ceil(*v));
           } else if (tok.key == "record-from" || tok.key == "record-spacing") {
             // Which rows the CSV gets: from a start time, at least a spacing apart.
             auto v = number(tok.value, Dim::Time, tok.valueWhere);
@@ -1030,28 +1026,16 @@ class Builder {
             (tok.key == "duration" ? eo.duration : eo.maxStep) = *v;
             haveDuration = haveDuration || tok.key == "duration";
           } else if (tok.key == "reltol") {
-            auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && (*v <= 0.0 || *v >= 0.1))
-              error(tok.valueWhere, "reltol must lie between 0 and 0.1");
-            else if (v)
-              eo.reltol = *v;
+            if (auto v = setting(tok)) eo.reltol = *v;
           } else if (tok.key == "temperature-tolerance") {
             // The same word as on run transient and run periodic.
             error(tok.where,
                   "run warm-up: 'temperature-tolerance' is now called "
                   "'temperature-abstol' (in K)");
           } else if (tok.key == "temperature-abstol") {
-            auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && (*v <= 0.0 || *v > 10.0))
-              error(tok.valueWhere, "temperature-abstol (K) must lie above 0 and at most 10");
-            else if (v)
-              eo.temperatureTol = *v;
+            if (auto v = setting(tok, "warm-up")) eo.temperatureTol = *v;
           } else if (tok.key == "periodic-reltol") {
-            auto v = number(tok.value, Dim::None, tok.valueWhere);
-            if (v && (*v <= 0.0 || *v >= 0.1))
-              error(tok.valueWhere, "periodic-reltol must lie between 0 and 0.1");
-            else if (v)
-              eo.periodic.tol.reltol = *v;
+            if (auto v = setting(tok)) eo.periodic.tol.reltol = *v;
           } else {
             unknownKey(tok, "warm-up",
                        {"duration", "max-step", "reltol", "temperature-abstol", "periodic-reltol"});
