@@ -5,6 +5,7 @@
 #include <cmath>
 #include <limits>
 
+#include <disc/analysis_settings.hpp>
 #include <disc/disc.hpp>
 
 using namespace disc;
@@ -68,16 +69,16 @@ TEST_CASE("The parser refuses the settings by the same table, at the value", "[s
                     Catch::Contains("at most 10, got 20"));
   CHECK_THROWS_WITH(parseNetlist(net + "run warm-up duration=1h periodic-reltol=0.1\n"),
                     Catch::Contains("periodic-reltol must lie between 0 and 0.1"));
-  const Netlist ok = parseNetlist(net + "run transient stop=1ms max-steps=2.5 reltol=1e-5\n");
-  CHECK(ok.analyses.back().transient.maxSteps == 3);
+  const Netlist ok = parseNetlist(net + "run transient stop=1ms max-steps=100.5 reltol=1e-5\n");
+  CHECK(ok.analyses.back().transient.maxSteps == 101);  // rounded up
   CHECK(ok.analyses.back().transient.tol.reltol == 1e-5);
 }
 
 TEST_CASE("A stack's seed is refused past its range from code as from the netlist", "[settings]") {
   StackOptions o;
-  o.seed = StackOptions::kMaxSeed;
+  o.seed = kMaxStackSeed;
   CHECK_NOTHROW(o.validate());
-  o.seed = StackOptions::kMaxSeed + 1;
+  o.seed = kMaxStackSeed + 1;
   CHECK_THROWS_WITH(o.validate(), Catch::Contains("seed must be a whole number from 0 to"));
   o.seed = static_cast<std::uint64_t>(1e19);
   CHECK_THROWS_AS(o.validate(), InputError);

@@ -8,15 +8,19 @@ import numpy.typing as npt
 
 __version__: str
 
-class NetlistError(ValueError):
+class Error(Exception): ...
+
+class InputError(Error, ValueError): ...
+
+class NetlistError(InputError):
     diagnostics: list[tuple[str, int, int, str]]
     file: str
     line: int
     column: int
 
-class SimulationError(RuntimeError): ...
+class SimulationError(Error, RuntimeError): ...
 
-class TraceError(ValueError):
+class TraceError(InputError):
     file: str
     line: int
     column: int
@@ -197,7 +201,7 @@ class Circuit:
                       abstol: float = ..., temperature_abstol: float = ...,
                       progress: Callable[[float, float], bool | None] | None = ...,
                       record_from: float = ..., record_spacing: float = ...,
-                      csv: str | PathLike[str] | None = ..., max_steps: int = ...) -> Result: ...
+                      csv: str | PathLike[str] | None = ..., max_steps: float = ...) -> Result: ...
     def run_periodic(self, record: Iterable[str] | None = ..., reltol: float = ...,
                      at: float = ...) -> Result: ...
     def run_warm_up(self, duration: float, record: Iterable[str] | None = ...,

@@ -1,10 +1,15 @@
 // The numeric settings of the analyses by their netlist names, with their ranges.
 #pragma once
 
+#include <cstdint>
 #include <string_view>
 #include <vector>
 
 namespace disc {
+
+/// The largest `seed=` of a stack's spread draw (StackOptions::seed; the parser and
+/// StackOptions::validate refuse more).
+inline constexpr std::uint64_t kMaxStackSeed = 1000000000;
 
 /// One numeric setting of a run statement and the range it may take. The netlist parser and the
 /// Python module check every value of these through checkSetting(), so a value is refused in the

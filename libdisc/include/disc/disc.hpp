@@ -2,7 +2,6 @@
 #pragma once
 
 #include "disc/analysis.hpp"
-#include "disc/analysis_settings.hpp"
 #include "disc/periodic.hpp"
 #include "disc/envelope.hpp"
 #include "disc/campaign.hpp"

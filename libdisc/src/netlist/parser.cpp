@@ -726,7 +726,7 @@ class Builder {
       o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread),
                   p.get("spread-gsh", spread)};
       o.seed = static_cast<std::uint64_t>(
-          wholeNumber(p, "seed", 1, 0, static_cast<int>(StackOptions::kMaxSeed)));
+          wholeNumber(p, "seed", 1, 0, static_cast<int>(kMaxStackSeed)));
       o.forming = p.get("forming", 1.0);
       o.storedYears = p.get("stored-years", 0.0);
       o.storageTemperature = p.get("stored-temp", 0.0);

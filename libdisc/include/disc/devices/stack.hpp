@@ -32,8 +32,7 @@ struct StackOptions {
   int arms = 1;    ///< arms in parallel
   StackMode mode = StackMode::PerPlate;
   StackSpread spread;
-  std::uint64_t seed = 1;  ///< seed of the spread draw (same seed, same stack)
-  static constexpr std::uint64_t kMaxSeed = 1000000000;  ///< the largest seed= accepted
+  std::uint64_t seed = 1;           ///< seed of the spread draw (same seed, same stack)
   double forming = 1.0;             ///< initial forming state F (1 = fully formed)
   double storedYears = 0.0;         ///< if > 0: F starts at the value after this storage
   double storageTemperature = 0.0;  ///< mean temperature of that storage, K (0: type's t0)
