@@ -62,9 +62,3 @@ def test_every_libdisc_error_is_a_disc_error():
     assert issubclass(disc.SimulationError, RuntimeError)
     with pytest.raises(disc.Error):
         disc.parse("resistor R1 a gnd -5\n")
-    c = disc.Circuit()
-    c.voltage("V1", "a", "gnd", dc=1)
-    c.capacitor("C1", "a", "b", 1e-6)
-    c.capacitor("C2", "b", "gnd", 1e-6)
-    with pytest.raises(disc.Error, match="no DC path"):
-        c.run_operating_point()
