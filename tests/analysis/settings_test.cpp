@@ -1,5 +1,5 @@
 // The analyses' numeric settings: one table of ranges for the netlist and the bindings, the
-// stack's seed range, and a signal asked for twice recorded once.
+// stack's seed range in the netlist, and a signal asked for twice recorded once.
 #include <catch2/catch.hpp>
 
 #include <cmath>
@@ -74,14 +74,15 @@ TEST_CASE("The parser refuses the settings by the same table, at the value", "[s
   CHECK(ok.analyses.back().transient.tol.reltol == 1e-5);
 }
 
-TEST_CASE("A stack's seed is refused past its range from code as from the netlist", "[settings]") {
-  StackOptions o;
-  o.seed = kMaxStackSeed;
-  CHECK_NOTHROW(o.validate());
-  o.seed = kMaxStackSeed + 1;
-  CHECK_THROWS_WITH(o.validate(), Catch::Contains("seed must be a whole number from 0 to"));
-  o.seed = static_cast<std::uint64_t>(1e19);
-  CHECK_THROWS_AS(o.validate(), InputError);
+TEST_CASE("A stack's seed is refused past its range, never wrapped", "[settings]") {
+  const std::string net =
+      "voltage V1 a gnd sine amplitude=10V frequency=50Hz\nresistor RL b gnd 1k\n"
+      "stack SR1 a b type=cuox-3mm-instrument spread=0.1 seed=";
+  CHECK_NOTHROW(parseNetlist(net + std::to_string(kMaxStackSeed) + "\n"));
+  CHECK_THROWS_WITH(parseNetlist(net + std::to_string(kMaxStackSeed + 1) + "\n"),
+                    Catch::Contains("seed must be a whole number from 0 to 1000000000"));
+  CHECK_THROWS_WITH(parseNetlist(net + "1e20\n"), Catch::Contains("seed must be a whole number"));
+  CHECK_THROWS_AS(parseNetlist(net + "2.5\n"), InputError);
 }
 
 TEST_CASE("runSignals records a signal asked for twice once, where it is first named",

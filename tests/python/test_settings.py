@@ -62,3 +62,11 @@ def test_every_libdisc_error_is_a_disc_error():
     assert issubclass(disc.SimulationError, RuntimeError)
     with pytest.raises(disc.Error):
         disc.parse("resistor R1 a gnd -5\n")
+
+
+def test_a_stack_seed_past_its_range_is_refused_not_wrapped():
+    c = disc.Circuit()
+    c.voltage("V1", "a", "gnd", amplitude=10, frequency=50)
+    for seed in (1e20, 1000000001, 2.5):
+        with pytest.raises(disc.InputError, match="seed must be a whole number from 0 to"):
+            c.stack("SR1", "a", "b", type="cuox-3mm-instrument", spread=0.1, seed=seed)

@@ -7,8 +7,8 @@
 
 namespace disc {
 
-/// The largest `seed=` of a stack's spread draw (StackOptions::seed; the parser and
-/// StackOptions::validate refuse more).
+/// The largest `seed=` a netlist (or the Python builder) may give a stack's spread draw. Only
+/// the input is limited: campaigns seed their variants' stacks with full 64-bit draws.
 inline constexpr std::uint64_t kMaxStackSeed = 1000000000;
 
 /// One numeric setting of a run statement and the range it may take. The netlist parser and the

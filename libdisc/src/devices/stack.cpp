@@ -9,7 +9,6 @@
 #include <type_traits>
 
 #include "check.hpp"
-#include "disc/analysis_settings.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
 #include "disc/limits.hpp"
@@ -80,9 +79,6 @@ void StackOptions::validate() const {
   if (plates * arms > InputLimits::kPlatesPerStack)
     throw InputError(fmt::format("{} plates x {} arms is above the limit of {} plates per stack",
                                  plates, arms, InputLimits::kPlatesPerStack));
-  if (seed > kMaxStackSeed)
-    throw InputError(
-        fmt::format("seed must be a whole number from 0 to {}, got {}", kMaxStackSeed, seed));
   for (double s : {spread.js, spread.rs, spread.gsh})
     if (!(s >= 0.0 && s <= 3.0))
       throw InputError(fmt::format("spread sigmas must lie in [0, 3], got {}", s));
