@@ -155,6 +155,11 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
   ns.reuseAcrossSolves = true;
   ns.stopOnDivergence = true;
   ns.predictConvergence = true;
+  // An exact first step whose second-order remainder is within tolerance ends the solve, as in
+  // the transient: from the last pass's path (below) most steps need no second iteration.
+  ns.acceptQuadratic = true;
+  // A pass with sensitivities evaluates the accepted point in full anyway.
+  ns.finalChargesOnly = sens;
   ns.workspace = &work_;
 
   EvalContext ctx;
@@ -212,6 +217,14 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
   Eigen::MatrixXd rowNow(ns_, cols);
 
   std::vector<double> xNew(N), hist(N), xPrev = x;
+  // The accepted points of the last pass on this grid, when there is one: on a fixed grid each
+  // step's first iterate is that pass's point there plus the present deviation from it,
+  // extrapolated linearly (near a switching the last orbit knows where the junction turns,
+  // which extrapolating this pass's own points does not).
+  const bool follow = !adaptive && path_.size() == (grid_.size() + 1) * N;
+  std::vector<double> newPath;
+  newPath.reserve(follow ? path_.size() : N);
+  newPath.insert(newPath.end(), x.begin(), x.end());
   double t = 0.0, hPrev = 0.0;
   double h = adaptive ? std::min(hmax, period_ * 1e-4) : 0.0;
   std::size_t gridAt = 0, nextBreak = 0;
@@ -248,14 +261,28 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     }
     for (std::size_t k = 0; k < N; ++k) hist[k] = a1 * q0[k] + (euler ? 0.0 : a2 * qp[k]);
     xNew = x;
-    if (points >= 2)  // linear extrapolation of the last two points as the first iterate
+    if (follow) {
+      const double* at = path_.data() + (gridAt + 1) * N;  // the last pass's point here
+      const double* before = at - N;
+      const double* before2 = points >= 2 ? at - 2 * N : nullptr;
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        const double d = x[uk] - before[uk];
+        const double slope = before2 ? (d - (xPrev[uk] - before2[uk])) * (h / hPrev) : 0.0;
+        xNew[uk] = at[uk] + d + slope;
+      }
+    } else if (points >= 2) {  // linear extrapolation of the last two points as the first iterate
       for (int k = 0; k < n; ++k) {
         const auto uk = static_cast<std::size_t>(k);
         xNew[uk] = x[uk] + (x[uk] - xPrev[uk]) * (h / hPrev);
       }
+    }
     ctx.time = t0_ + t + h;
     ctx.x = xNew.data();
     const NewtonOutcome out = solveNewton(sys_, ls_, xNew, ctx, a0, hist.data(), ns, stats);
+    // Fresh factors while first updates are small enough for the second-order test (an exact
+    // first step then ends the solve), kept factors otherwise (as the transient does).
+    ns.reuseAcrossSolves = !(out.converged && out.firstUpdateQuadratic);
     if (!out.converged) {
       ++stats.rejectedSteps;
       if (!adaptive) return pass;
@@ -358,6 +385,7 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     ++points;
     ++stats.acceptedSteps;
     if (adaptive) newGrid.push_back(h);
+    newPath.insert(newPath.end(), x.begin(), x.end());
     ++gridAt;
     ctx.x = x.data();
     ctx.time = t0_ + t;
@@ -368,6 +396,7 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     }
   }
   if (adaptive) grid_ = std::move(newGrid);
+  path_ = std::move(newPath);
   if (sens) S_ = std::move(S);
   pass.ok = true;
   return pass;
@@ -552,6 +581,7 @@ std::shared_ptr<const PeriodicOrbit> PeriodicSolver::orbit(const std::vector<dou
   o->startTime = t0_;
   o->x = x;
   o->grid = grid_;
+  o->path = path_;
   o->states = states_;
   o->monodromy = monodromy_;
   o->shootingLu = shootingLu_;
@@ -564,6 +594,9 @@ bool PeriodicSolver::adopt(const PeriodicOrbit& o) {
       std::abs(o.period - period_) > 1e-12 * period_)
     return false;
   grid_ = o.grid;
+  path_ = o.path.size() == (o.grid.size() + 1) * (static_cast<std::size_t>(o.unknowns) + 1)
+              ? o.path
+              : std::vector<double>{};
   states_ = o.states;
   m_ = static_cast<int>(states_.size());
   statesKnown_ = true;

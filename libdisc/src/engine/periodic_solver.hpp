@@ -18,6 +18,7 @@ struct PeriodicOrbit {
   double period = 0.0, startTime = 0.0;
   std::vector<double> x;     // settled start state (size unknowns + 1)
   std::vector<double> grid;  // accepted step sizes of the settled period
+  std::vector<double> path;  // its accepted points (grid.size() + 1 states of unknowns + 1)
   std::vector<int> states;   // shooting variables
   Eigen::MatrixXd monodromy;
   Eigen::PartialPivLU<Eigen::MatrixXd> shootingLu;  // of monodromy - I
@@ -97,6 +98,7 @@ class PeriodicSolver {
   std::vector<int> states_;  // fast unknowns with a charge (the shooting variables)
   std::vector<double> abstol_;
   std::vector<double> grid_;  // accepted step sizes of the last adaptive pass
+  std::vector<double> path_;  // accepted points of the last completed pass on grid_ (or empty)
   bool solved_ = false;
   bool statesKnown_ = false;
   bool haveMonodromy_ = false;
