@@ -210,15 +210,38 @@ struct FitArgs {
   disc::FitOptions options;
 };
 
+/// A progress line on stderr (a terminal), cleared when it goes out of scope, also on an error.
+struct StatusLine {
+  bool on;
+  void show(const std::string& line) const {
+    if (on) fmt::print(stderr, "\r{:70}\r{}", "", line);
+  }
+  ~StatusLine() {
+    if (on) fmt::print(stderr, "\r{:70}\r", "");
+  }
+};
+
 int fitTraces(FitArgs& a) {
-  std::vector<disc::Trace> traces;
-  for (const auto& path : a.traces) traces.push_back(disc::loadTrace(path));
-  a.options.temperature = a.temperatureC + 273.15;
-  a.options.dynamic = !a.staticOnly;
+  disc::PlateFit fit;
   const std::string dir =
       a.outDir.empty() ? "out/fit-" + disc::safeFileStem(a.options.name) : a.outDir;
-  disc::checkOutputFolder(dir);
-  const disc::PlateFit fit = disc::fitPlate(traces, a.options);
+  {
+    const StatusLine status{isatty(fileno(stderr)) != 0 && !a.quiet};
+    std::vector<disc::Trace> traces;
+    for (const auto& path : a.traces) {
+      status.show("fit: reading " + disc::excerpt(path, 50));
+      traces.push_back(disc::loadTrace(path));
+    }
+    if (status.on)
+      a.options.progress = [&status](const std::string& line) {
+        status.show(line);
+        return true;
+      };
+    a.options.temperature = a.temperatureC + 273.15;
+    a.options.dynamic = !a.staticOnly;
+    disc::checkOutputFolder(dir);
+    fit = disc::fitPlate(traces, a.options);
+  }
   const auto files = disc::writeFitFiles(fit, dir);
   if (!a.quiet) {
     fmt::print("{}", disc::fitReportText(fit));
@@ -445,6 +468,14 @@ int main(int argc, char** argv) {
                   "Noise floor of the current, A (default 1e-3 of the largest)")
       ->check(CLI::NonNegativeNumber);
   fit->add_flag("--static-only", fa.staticOnly, "Do not fit capacitance and trap branch");
+  fit->add_option("--bin-above", fa.options.binAbove,
+                  "Bin traces of more rows than this before the fit (docs/fitting.md, \"Long "
+                  "traces\"); 0: never")
+      ->capture_default_str();
+  fit->add_option("--bins-per-direction", fa.options.binsPerDirection,
+                  "Voltage bins per direction of a binned static trace")
+      ->capture_default_str()
+      ->check(CLI::Range(50, 10000000));
   fit->add_option("--fix", fa.options.fixed,
                   "Hold a parameter at the reference's value (repeat for several)");
   fit->add_option("-o,--out", fa.outDir, "Output folder (default out/fit-<name>)");

@@ -9,6 +9,8 @@ Levenberg-Marquardt. The "measured" plate is invented for the test.
 import json
 import pathlib
 import subprocess
+import threading
+import time
 
 import numpy as np
 import pytest
@@ -148,3 +150,59 @@ def test_cli_fit_on_the_demo_trace_writes_a_usable_type(tmp_path):
     types = disc.load_plate_types(out / "demo-stack.json")
     assert types[0].name == "demo-stack"
     assert (out / "fit-forward.svg").exists()
+
+
+def long_trace(rows, seed):
+    """A static sweep of `rows` rows of the section 10 law (the library's curve, which matches
+    it above), with 1 % noise plus 1e-3 of the largest reading."""
+    rng = np.random.default_rng(seed)
+    v = np.concatenate([np.linspace(0.01, 1.8, rows // 2), -np.linspace(0.1, 30.0, rows - rows // 2)])
+    i = disc.PlateCurve(section10_type()).current(v, T)
+    i = i + (0.01 * np.abs(i) + 1e-3 * np.max(np.abs(i))) * rng.standard_normal(i.size)
+    return disc.trace(v, i, source="long")
+
+
+def test_long_trace_binning_options_and_report():
+    tr = long_trace(6000, 11)
+    fit = disc.fit_plate(tr, temperature_c=T - 273.15, bins_per_direction=100)
+    assert fit.points == 200
+    assert len(fit.binning) == 1 and "6000 rows into 200 points" in fit.binning[0]
+    assert json.loads(fit.report_json())["binning"] == fit.binning
+    small = disc.fit_plate(long_trace(600, 12), temperature_c=T - 273.15, bin_above=500,
+                           bins_per_direction=50)
+    assert small.points == 100
+    off = disc.fit_plate(long_trace(600, 12), temperature_c=T - 273.15, bin_above=0)
+    assert off.points == 600 and off.binning == []
+    with pytest.raises(ValueError, match="at least 100"):
+        disc.fit_plate(tr, bin_above=50)
+    with pytest.raises(ValueError, match="between 50 and"):
+        disc.fit_plate(tr, bins_per_direction=10)
+
+
+def test_fit_progress_is_called_without_holding_the_gil_and_false_cancels():
+    tr = long_trace(3000, 13)
+    lines = []
+    ticks = [0]
+    done = threading.Event()
+
+    def count():
+        # Runs only while the fit has released the GIL.
+        while not done.is_set():
+            ticks[0] += 1
+            time.sleep(0.001)
+
+    other = threading.Thread(target=count)
+    other.start()
+    try:
+        fit = disc.fit_plate(tr, temperature_c=T - 273.15, progress=lines.append)
+    finally:
+        done.set()
+        other.join()
+    assert fit.points == 3000
+    assert lines[0].startswith("fit: forward stage")
+    assert any("profile-likelihood intervals" in line for line in lines)
+    assert ticks[0] > 20
+    calls = []
+    with pytest.raises(KeyboardInterrupt):
+        disc.fit_plate(tr, temperature_c=T - 273.15, progress=lambda line: calls.append(line) or len(calls) < 2)
+    assert len(calls) == 2

@@ -104,7 +104,7 @@ def trace(voltage, current, time=None, temperature_c=None, source="<arrays>"):
 
 def fit_plate(traces, *, plates=1, like=None, material="selenium", area_cm2=None,
               name="fitted-plate", temperature_c=25.0, noise_relative=0.01, noise_floor=None,
-              dynamic=True, fixed=()):
+              dynamic=True, fixed=(), bin_above=None, bins_per_direction=None, progress=None):
     """Fits a plate type to one or more traces of one plate or stack (docs/fitting.md).
 
     ``traces``: paths of CSV files or Trace objects (one, or a list). ``plates``: plates in
@@ -113,6 +113,13 @@ def fit_plate(traces, *, plates=1, like=None, material="selenium", area_cm2=None
     Returns a PlateFit: ``type`` (usable at once in a Circuit), ``parameters`` with
     uncertainties, ``warnings``, ``health``, ``curves``; ``write(dir)`` saves the type JSON,
     the reports and the plots.
+
+    Long traces are binned first (docs/fitting.md, "Long traces"): one of more than
+    ``bin_above`` rows (default 4000; 0 never bins) into ``bins_per_direction`` voltage bins per
+    direction (default 1000) if static, into at most ``bin_above`` consecutive groups if timed;
+    ``binning`` of the result says how. ``progress(line)`` is called about every 0.2 s with what
+    the fit is doing (False cancels: KeyboardInterrupt); the fit releases the GIL, and Ctrl-C
+    stops it.
     """
     import os
 
@@ -123,7 +130,8 @@ def fit_plate(traces, *, plates=1, like=None, material="selenium", area_cm2=None
     like_name = "" if reference is not None else (like or "")
     return _disc.fit_plate(loaded, plates, like_name, reference, list(fixed), material,
                            area_cm2 or 0.0, name, temperature_c + 273.15, noise_relative,
-                           noise_floor or 0.0, dynamic)
+                           noise_floor or 0.0, dynamic, bin_above, bins_per_direction,
+                           progress)
 
 
 def model_current(type, trace, plates=1, temperature_c=25.0):

@@ -290,6 +290,7 @@ class PlateFit:
     rms_weighted: float
     rms_current: float
     stages: list[str]
+    binning: list[str]
     warnings: list[str]
     health: PlateHealth
     curves: list[FitCurve]
@@ -352,7 +353,9 @@ def fit_plate(traces: str | PathLike[str] | Trace | Sequence[str | PathLike[str]
               plates: int = ..., like: str | PlateType | None = ..., material: str = ...,
               area_cm2: float | None = ..., name: str = ..., temperature_c: float = ...,
               noise_relative: float = ..., noise_floor: float | None = ...,
-              dynamic: bool = ..., fixed: Sequence[str] = ...) -> PlateFit: ...
+              dynamic: bool = ..., fixed: Sequence[str] = ..., bin_above: int | None = ...,
+              bins_per_direction: int | None = ...,
+              progress: Callable[[str], bool | None] | None = ...) -> PlateFit: ...
 def model_current(type: PlateType, trace: Trace, plates: int = ...,
                   temperature_c: float = ...) -> npt.NDArray[np.float64]: ...
 def judge_plate_health(plate: PlateType, healthy: PlateType, kelvin: float = ...) -> PlateHealth: ...

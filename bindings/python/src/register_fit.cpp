@@ -112,6 +112,7 @@ void registerFit(py::module_& m) {
       .def_readonly("rms_weighted", &PlateFit::rmsWeighted)
       .def_readonly("rms_current", &PlateFit::rmsCurrent)
       .def_readonly("stages", &PlateFit::stages)
+      .def_readonly("binning", &PlateFit::binning)
       .def_readonly("warnings", &PlateFit::warnings)
       .def_readonly("health", &PlateFit::health)
       .def_readonly("curves", &PlateFit::curves)
@@ -125,7 +126,8 @@ void registerFit(py::module_& m) {
       [](const std::vector<Trace>& traces, int plates, const std::string& like,
          std::optional<PlateType> reference, const std::vector<std::string>& fixed,
          const std::string& material, double area, const std::string& name, double kelvin,
-         double noiseRelative, double noiseFloor, bool dynamic) {
+         double noiseRelative, double noiseFloor, bool dynamic, std::optional<std::size_t> binAbove,
+         std::optional<std::size_t> binsPerDirection, py::object progress) {
         FitOptions o;
         o.reference = std::move(reference);
         o.fixed = fixed;
@@ -138,12 +140,31 @@ void registerFit(py::module_& m) {
         o.noiseRelative = noiseRelative;
         o.noiseFloor = noiseFloor;
         o.dynamic = dynamic;
+        o.binAbove = binAbove.value_or(o.binAbove);
+        o.binsPerDirection = binsPerDirection.value_or(o.binsPerDirection);
+        // The fit calls this about every 0.2 s with the GIL released: it is taken only then, to
+        // let Python deliver Ctrl-C and to pass the line to `progress(line)` (False cancels).
+        // A handle: `progress` outlives the call, and nothing is counted without the GIL.
+        o.progress = [callback = py::handle(progress)](const std::string& line) {
+          py::gil_scoped_acquire gil;
+          if (PyErr_CheckSignals() != 0) {
+            PyErr_Clear();
+            return false;
+          }
+          if (!callback.is_none()) {
+            py::object keepGoing = callback(line);
+            if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
+          }
+          return true;
+        };
         py::gil_scoped_release nogil;
         return fitPlate(traces, o);
       },
       py::arg("traces"), py::arg("plates"), py::arg("like"), py::arg("reference"), py::arg("fixed"),
       py::arg("material"), py::arg("area_cm2"), py::arg("name"), py::arg("kelvin"),
-      py::arg("noise_relative"), py::arg("noise_floor"), py::arg("dynamic"));
+      py::arg("noise_relative"), py::arg("noise_floor"), py::arg("dynamic"),
+      py::arg("bin_above") = py::none(), py::arg("bins_per_direction") = py::none(),
+      py::arg("progress") = py::none());
 }
 
 }  // namespace disc::python

@@ -3,6 +3,7 @@
 // verdict against a healthy plate of the same material and size.
 #pragma once
 
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -33,6 +34,17 @@ struct FitOptions {
   double noiseRelative = 0.01;
   double noiseFloor = 0.0;  ///< A
   bool dynamic = true;      ///< fit capacitance and trap branch from traces with a time column
+  /// Long traces are binned before the fit (docs/fitting.md, "Long traces"). A static trace of
+  /// more than `binAbove` rows: `binsPerDirection` equal voltage bins (per plate) from 0 to its
+  /// largest forward and to its largest reverse voltage, and 0.5 K temperature bins. A timed
+  /// trace of more than `binAbove` rows: consecutive groups of equal size, at most `binAbove`
+  /// of them. Each bin is one point, the means of its rows, its residual weighted by the square
+  /// root of its row count. 0: never bin; else at least 100. Bins per direction: 50 to 1e7.
+  std::size_t binAbove = 4000;
+  std::size_t binsPerDirection = 1000;
+  /// Called about every 0.2 s (and as each stage starts) with a line saying what the fit is
+  /// doing, from the thread running the fit; returning false stops it (Cancelled).
+  std::function<bool(const std::string&)> progress;
   void validate() const;
 };
 
@@ -76,6 +88,9 @@ struct PlateFit {
   double rmsWeighted = 0.0;           ///< rms of the weighted residuals (about 1: noise model fits)
   double rmsCurrent = 0.0;            ///< A, rms of measured minus fitted current
   std::vector<std::string> stages;    ///< stages run, in order, with their cost
+  /// Per binned trace: its rows, points, bin widths or windows, and their bias bound
+  /// (docs/fitting.md, "Long traces"); empty when nothing was binned.
+  std::vector<std::string> binning;
   std::vector<std::string> warnings;  ///< what the data do not determine, and why
   PlateHealth health;
   std::vector<FitCurve> curves;
@@ -85,7 +100,7 @@ struct PlateFit {
 
 /// Fits a plate type to one or more traces of one plate (or one stack of `plates` plates).
 /// Throws TraceError for traces a fit cannot use (too few points, no reverse or forward part),
-/// InputError for bad options.
+/// InputError for bad options, Cancelled when `progress` returns false.
 PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& options);
 
 /// The fit report: plain text, JSON (schema 1) and an SVG plot per view ("forward",

@@ -40,6 +40,7 @@ std::string fitReportText(const PlateFit& fit) {
                      : p.identifiable ? ""
                                       : " (not determined)");
   s += "\nSTAGES\n";
+  for (const auto& b : fit.binning) s += detail::wrapText("binned " + b, "  ");
   for (const auto& st : fit.stages) s += detail::wrapText(st, "  ");
   const auto& h = fit.health;
   s += fmt::format("\nHEALTH: {} (against {} at {:.0f} degC)\n", h.level, h.reference,
@@ -76,6 +77,7 @@ std::string fitReportJson(const PlateFit& fit) {
                   {"at_bound", p.atBound},
                   {"identifiable", p.identifiable}});
   j["stages"] = fit.stages;
+  j["binning"] = fit.binning;
   j["warnings"] = fit.warnings;
   const auto& h = fit.health;
   j["health"] = {{"level", h.level},

@@ -1,5 +1,7 @@
 #include "fit/levenberg_marquardt.hpp"
 
+#include "disc/error.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -18,6 +20,8 @@ bool tryEvaluate(const LeastSquaresProblem& p, const Eigen::VectorXd& z, Eigen::
   try {
     r.resize(p.residuals);
     p.evaluate(z, r);
+  } catch (const Cancelled&) {
+    throw;  // the user stopped the fit: not a failed step
   } catch (const std::exception&) {
     return false;  // a trial point the model cannot evaluate: treated as a failed step
   }

@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <numeric>
 #include <set>
@@ -15,6 +16,7 @@
 #include "disc/constants.hpp"
 #include "disc/plate_curve.hpp"
 #include "fit/levenberg_marquardt.hpp"
+#include "fit/trace_binning.hpp"
 
 namespace disc {
 namespace {
@@ -75,18 +77,20 @@ struct Point {
   int trace = 0;
   std::size_t index = 0;  // within its trace
   double v = 0, i = 0, kelvin = 0;
-  double floor = 0;  // A, noise floor of its trace
+  double floor = 0;   // A, noise floor of its trace
+  double weight = 1;  // square root of the rows binned into it
 };
 
 struct Data {
   std::vector<Trace> traces;   // voltages already per plate
   std::vector<double> kelvin;  // per trace: mean plate temperature (for dynamic runs)
   std::vector<Point> points;
-  double relative = 0.01;  // noise model: sigma = relative |I| + the point's floor
+  std::vector<std::vector<double>> rows;  // per trace and point: rows binned into it (or empty)
+  double relative = 0.01;                 // noise model: sigma = relative |I| + the point's floor
   /// Weighted residual. The noise is taken in proportion to the model's current, not the
   /// measured one: weights from noisy readings would favour points that read low.
   double residual(const Point& p, double model) const {
-    return (p.i - model) / (relative * std::abs(model) + p.floor);
+    return p.weight * (p.i - model) / (relative * std::abs(model) + p.floor);
   }
 };
 
@@ -104,9 +108,56 @@ double linearSlope(const std::vector<double>& x, const std::vector<double>& y, d
   return slope;
 }
 
-Data prepareData(const std::vector<Trace>& traces, const FitOptions& o) {
-  if (traces.empty()) throw InputError("fit: no trace given");
+/// A trace binned before the fit, for the report's `binning` lines and warnings.
+struct Binning {
+  std::string source;
+  std::size_t rows = 0, points = 0;
+  bool timed = false;
+  double forwardWidth = 0, reverseWidth = 0;    // static: V per plate
+  std::size_t group = 0;                        // timed: rows per group
+  double window = 0, period = 0, duration = 0;  // timed: s
+  double forwardSpan = 0;  // timed: V per plate, the widest forward window above the floor
+  double coolest = 0;      // K, the trace's lowest plate temperature
+};
+
+Data prepareData(const std::vector<Trace>& input, const FitOptions& o,
+                 std::vector<Binning>& binning) {
+  if (input.empty()) throw InputError("fit: no trace given");
   Data d;
+  std::vector<Trace> traces;
+  for (const auto& t : input) {
+    d.rows.emplace_back();
+    if (o.binAbove == 0 || t.size() <= o.binAbove) {
+      traces.push_back(t);
+      continue;
+    }
+    detail::BinnedTrace bt = t.dynamic() ? detail::binTimed(t, o.binAbove, o.plates)
+                                         : detail::binStatic(t, o.plates, o.binsPerDirection);
+    Binning b;
+    b.source = t.source;
+    b.rows = t.size();
+    b.points = bt.trace.size();
+    b.timed = t.dynamic();
+    b.forwardWidth = bt.forwardWidth;
+    b.reverseWidth = bt.reverseWidth;
+    b.group = bt.group;
+    b.window = bt.window;
+    b.period = bt.period;
+    b.duration = t.dynamic() ? t.time.back() - t.time.front() : 0.0;
+    // The windows whose curvature matters: forward, with a mean current above the noise floor.
+    double iMax = 0;
+    for (double i : bt.trace.current) iMax = std::max(iMax, std::abs(i));
+    const double floor = o.noiseFloor > 0 ? o.noiseFloor : 1e-3 * iMax;
+    for (std::size_t k = 0; k < bt.spans.size(); ++k)
+      if (bt.trace.voltage[k] > 0 && std::abs(bt.trace.current[k]) > floor)
+        b.forwardSpan = std::max(b.forwardSpan, bt.spans[k]);
+    b.coolest = t.temperature.empty()
+                    ? o.temperature
+                    : *std::min_element(t.temperature.begin(), t.temperature.end());
+    binning.push_back(b);
+    d.rows.back() = std::move(bt.rows);
+    traces.push_back(std::move(bt.trace));
+  }
   for (const auto& t : traces) {
     Trace per = t;
     for (auto& v : per.voltage) v /= o.plates;
@@ -126,6 +177,7 @@ Data prepareData(const std::vector<Trace>& traces, const FitOptions& o) {
       p.v = t.voltage[j];
       p.i = t.current[j];
       p.kelvin = t.temperature.empty() ? o.temperature : t.temperature[j];
+      if (!d.rows[k].empty()) p.weight = std::sqrt(d.rows[k][j]);
       d.points.push_back(p);
     }
   }
@@ -268,6 +320,7 @@ class Fitter {
         r[static_cast<Eigen::Index>(k)] = d_.residual(pt, curve.current(pt.v, pt.kelvin));
       }
       ++evaluations_;
+      tick();
       if (dynamicPoints.empty()) return;
       std::vector<std::vector<double>> simulated(d_.traces.size());
       for (std::size_t tr = 0; tr < d_.traces.size(); ++tr)
@@ -407,6 +460,13 @@ class Fitter {
     return t;
   }
 
+  /// Names the stage for the progress line.
+  void setStage(std::string name) {
+    stage_ = std::move(name);
+    nextReport_ = {};
+    tick();
+  }
+
   const Data& data() const { return d_; }
   const PlateType& type() const { return type_; }
   void setType(PlateType t) { type_ = std::move(t); }
@@ -417,7 +477,83 @@ class Fitter {
   PlateType type_;
   const FitOptions& o_;
   int evaluations_ = 0;
+  std::string stage_ = "starting";
+  std::chrono::steady_clock::time_point nextReport_{};
+
+  // Progress at most every 0.2 s of wall time; a false answer stops the fit.
+  void tick() {
+    if (!o_.progress) return;
+    const auto now = std::chrono::steady_clock::now();
+    if (now < nextReport_) return;
+    nextReport_ = now + std::chrono::milliseconds(200);
+    if (!o_.progress(fmt::format("fit: {} stage, {} model evaluations", stage_, evaluations_)))
+      throw Cancelled("fit: stopped");
+  }
 };
+
+// Binning's limits (docs/fitting.md, "Long traces"): a warning when a forward bin's or
+// window's mean current may exceed the curve's by more than kBinBias of it, or a timed trace
+// has fewer than kWindowsPerPeriod windows per repeat period (its fundamental then loses more
+// than 0.1 %).
+constexpr double kBinBias = 1e-3;
+constexpr double kWindowsPerPeriod = 40.0;
+
+/// The report's line for each binned trace, and warnings where binning may bias the fit.
+void describeBinning(const std::vector<Binning>& binning, const PlateType& fitted,
+                     const FitOptions& o, PlateFit& fit) {
+  for (const auto& b : binning) {
+    // Mean of an exponential over a bin or window spanning w volts (uniformly) about its mean
+    // voltage: the curve's current there times 1 + w^2 / (24 (n kT/q)^2) (its Taylor series'
+    // second-order term); the series resistance only bends the curve less.
+    const double nvt = fitted.physics.ideality * constants::thermalVoltage(b.coolest);
+    const auto biasOf = [nvt](double w) { return w * w / (24.0 * nvt * nvt); };
+    if (!b.timed) {
+      const double bound = biasOf(b.forwardWidth);
+      fit.binning.push_back(fmt::format(
+          "{}: {} rows into {} points ({} voltage bins per direction, {:.3g} mV forward and "
+          "{:.3g} mV reverse per plate; {} K temperature bins); a forward bin's mean current "
+          "lies above the curve's by at most {:.2g} of it (w^2 / (24 (n kT/q)^2), n {:.3g})",
+          b.source, b.rows, b.points, o.binsPerDirection, 1e3 * b.forwardWidth,
+          1e3 * b.reverseWidth, detail::kTemperatureBin, bound, fitted.physics.ideality));
+      if (bound > kBinBias)
+        fit.warnings.push_back(fmt::format(
+            "binning: the forward bins of {} are {:.3g} mV wide, {:.2f} n kT/q, so a bin's mean "
+            "current may lie {:.2g} % above the curve's (more than {:.1f} %): give {} or more "
+            "bins per direction (--bins-per-direction, bins_per_direction), or switch binning "
+            "off (0)",
+            b.source, 1e3 * b.forwardWidth, b.forwardWidth / nvt, 100.0 * bound, 100.0 * kBinBias,
+            static_cast<long>(
+                std::ceil(static_cast<double>(o.binsPerDirection) * std::sqrt(bound / kBinBias)))));
+      continue;
+    }
+    // The mean of a sine of period T over a window w keeps sinc(pi w / T) of its amplitude.
+    const double period = b.period > 0 ? b.period : b.duration;
+    const double x = M_PI * b.window / period;
+    const double keeps = x > 0 ? std::sin(x) / x : 1.0;
+    const double bound = biasOf(b.forwardSpan);
+    fit.binning.push_back(fmt::format(
+        "{}: {} rows averaged in consecutive groups of {} into {} points (windows of {:.3g} s, "
+        "{:.0f} per {} of {:.3g} s: a sine of that period keeps {:.5f} of its amplitude, its "
+        "k-th harmonic sinc(k pi w / T)); a forward window spans at most {:.3g} mV per plate, "
+        "so its mean current lies above the curve's by at most {:.2g} of it",
+        b.source, b.rows, b.group, b.points, b.window, period / b.window,
+        b.period > 0 ? "repeat period" : "trace (no repeat period found)", period, keeps,
+        1e3 * b.forwardSpan, bound));
+    // Windows short enough for both: at most 1/40 of the period, and spanning at most
+    // sqrt(24 kBinBias) n kT/q where the sweep is steepest.
+    const double shorter = std::max(b.window * kWindowsPerPeriod / period,
+                                    b.forwardSpan / (std::sqrt(24.0 * kBinBias) * nvt));
+    if (shorter > 1.0)
+      fit.warnings.push_back(fmt::format(
+          "binning: the windows of {} are too long: {:.0f} per repeat period of {:.3g} s (a "
+          "sine of that period keeps {:.4f} of its amplitude, its harmonics less), and a "
+          "forward window spans up to {:.3g} mV, {:.2f} n kT/q, so its mean current may lie "
+          "{:.2g} % above the curve's; raise the binning limit (--bin-above, bin_above) to {} "
+          "or more points, or switch binning off (0)",
+          b.source, period / b.window, period, keeps, 1e3 * b.forwardSpan, b.forwardSpan / nvt,
+          100.0 * bound, static_cast<long>(std::ceil(shorter * static_cast<double>(b.points)))));
+  }
+}
 
 PlateType referenceType(const FitOptions& o) {
   if (o.reference) {
@@ -454,6 +590,11 @@ void FitOptions::validate() const {
   if (!(noiseFloor >= 0.0) || !std::isfinite(noiseFloor))
     throw InputError("fit: the noise floor must be a non-negative current in A");
   if (name.empty()) throw InputError("fit: the fitted type needs a name");
+  if (binAbove != 0 && binAbove < 100)
+    throw InputError(
+        "fit: the binning limit must be 0 (never bin) or at least 100 points per trace");
+  if (binsPerDirection < 50 || binsPerDirection > 10000000)
+    throw InputError("fit: the voltage bins per direction must lie between 50 and 10000000");
   for (const auto& f : fixed) {
     bool known = false;
     for (const auto& s : kSpecs) known |= f == s.name;
@@ -474,7 +615,8 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
   o.validate();
   const PlateType reference = referenceType(o);
   PlateFit fit;
-  Data data = prepareData(traces, o);
+  std::vector<Binning> binning;
+  Data data = prepareData(traces, o, binning);
   PlateType start = reference;
   start.name = o.name;
   startFromData(data, start, fit.warnings);
@@ -571,10 +713,17 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
     throw InputError(
         "fit: every parameter these traces could determine is held (fixed): "
         "nothing is left to fit");
-  if (!forward.empty()) cost(fitter.stage(forward, fwdPts, false), "forward");
-  if (!reverse.empty()) cost(fitter.stage(reverse, revPts, false), "reverse");
+  if (!forward.empty()) {
+    fitter.setStage("forward");
+    cost(fitter.stage(forward, fwdPts, false), "forward");
+  }
+  if (!reverse.empty()) {
+    fitter.setStage("reverse");
+    cost(fitter.stage(reverse, revPts, false), "reverse");
+  }
   detail::LeastSquaresResult final;
   if (!joint.empty()) {
+    fitter.setStage("static");
     final = fitter.stage(joint, allPts, false);
     cost(final, tSpan >= 10.0 ? "static with temperature" : "static");
   }
@@ -586,12 +735,14 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
     for (std::size_t k = 0; k < fitter.data().points.size(); ++k)
       if (!fitter.data().traces[static_cast<std::size_t>(fitter.data().points[k].trace)].dynamic())
         staticOnly.push_back(k);
+    fitter.setStage("dynamic (transient runs)");
     final = fitter.stage(names, staticOnly, true);
     cost(final, "dynamic (transient of each timed trace)");
   }
 
   // Parameters, uncertainties and warnings.
   const Eigen::MatrixXd cov = detail::leastSquaresCovariance(final);
+  if (dynamic.empty()) fitter.setStage("profile-likelihood intervals");
   fit.type = fitter.type();
   for (std::size_t k = 0; k < names.size(); ++k) {
     const auto& s = specOf(names[k]);
@@ -638,6 +789,7 @@ PlateFit fitPlate(const std::vector<Trace>& traces, const FitOptions& o) {
                       p.name, 100.0 * rel));
     fit.parameters.push_back(p);
   }
+  describeBinning(binning, fit.type, o, fit);
   // Residuals and curves with the fitted type.
   const Data& d = fitter.data();
   double sw = 0, si = 0;
