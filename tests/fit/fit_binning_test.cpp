@@ -14,6 +14,7 @@
 #include "disc/error.hpp"
 #include "disc/plate_fit.hpp"
 #include "fit/trace_binning.hpp"
+#include "fit_noise.hpp"
 
 namespace {
 
@@ -60,14 +61,7 @@ disc::Trace shockleySweep(const Shockley& d, int rows, double forward = 1.9,
   return t;
 }
 
-/// Noise as the fit's default weights assume: 1 % of the reading plus 1e-3 of the largest.
-void addNoise(disc::Trace& t, std::uint64_t seed) {
-  std::mt19937_64 rng(seed);
-  std::normal_distribution<double> gauss(0.0, 1.0);
-  double iMax = 0;
-  for (double i : t.current) iMax = std::max(iMax, std::abs(i));
-  for (double& i : t.current) i += (0.01 * std::abs(i) + 1e-3 * iMax) * gauss(rng);
-}
+using disc::test::addNoise;
 
 disc::FitOptions at300() {
   disc::FitOptions o;

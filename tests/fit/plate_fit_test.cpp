@@ -14,6 +14,7 @@
 #include "disc/plate_curve.hpp"
 #include "disc/plate_fit.hpp"
 #include "disc/plate_health.hpp"
+#include "fit_noise.hpp"
 
 namespace {
 
@@ -31,15 +32,7 @@ disc::PlateType truth() {
                                      {"image_force_per_V4", 1.2}});
 }
 
-/// Noise as the fit's default weights assume: 1 % of the reading plus a floor of 1e-3 of the
-/// largest current.
-void addNoise(disc::Trace& t, std::uint64_t seed) {
-  std::mt19937_64 rng(seed);
-  std::normal_distribution<double> gauss(0.0, 1.0);
-  double iMax = 0;
-  for (double i : t.current) iMax = std::max(iMax, std::abs(i));
-  for (double& i : t.current) i += (0.01 * std::abs(i) + 1e-3 * iMax) * gauss(rng);
-}
+using disc::test::addNoise;
 
 /// A static sweep: forward to `vf`, reverse to `vr` volts per plate, at `kelvin`.
 disc::Trace staticSweep(const disc::PlateType& type, int plates, double kelvin, double vf = 1.8,

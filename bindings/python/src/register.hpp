@@ -3,7 +3,16 @@
 
 #include <pybind11/pybind11.h>
 
+#include <functional>
+#include <string>
+
 namespace disc::python {
+
+/// A library progress callback that takes a line, for work running with the GIL released and
+/// calling rarely (once per envelope run, every 0.2 s of a fit): takes the GIL for each call, to
+/// let Python deliver Ctrl-C and to pass the line to `callback(line)` when one is given (a false
+/// return cancels). A handle: the caller keeps `callback` alive during the work.
+std::function<bool(const std::string&)> lineProgress(pybind11::handle callback);
 
 void registerErrors(pybind11::module_& m);
 void registerPlates(pybind11::module_& m);

@@ -142,21 +142,7 @@ void registerFit(py::module_& m) {
         o.dynamic = dynamic;
         o.binAbove = binAbove.value_or(o.binAbove);
         o.binsPerDirection = binsPerDirection.value_or(o.binsPerDirection);
-        // The fit calls this about every 0.2 s with the GIL released: it is taken only then, to
-        // let Python deliver Ctrl-C and to pass the line to `progress(line)` (False cancels).
-        // A handle: `progress` outlives the call, and nothing is counted without the GIL.
-        o.progress = [callback = py::handle(progress)](const std::string& line) {
-          py::gil_scoped_acquire gil;
-          if (PyErr_CheckSignals() != 0) {
-            PyErr_Clear();
-            return false;
-          }
-          if (!callback.is_none()) {
-            py::object keepGoing = callback(line);
-            if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
-          }
-          return true;
-        };
+        o.progress = lineProgress(progress);  // about every 0.2 s, from the released GIL
         py::gil_scoped_release nogil;
         return fitPlate(traces, o);
       },

@@ -11,6 +11,21 @@ namespace py = pybind11;
 
 namespace disc::python {
 
+std::function<bool(const std::string&)> lineProgress(py::handle callback) {
+  return [callback](const std::string& line) {
+    py::gil_scoped_acquire gil;
+    if (PyErr_CheckSignals() != 0) {
+      PyErr_Clear();
+      return false;
+    }
+    if (!callback.is_none()) {
+      py::object keepGoing = callback(line);
+      if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
+    }
+    return true;
+  };
+}
+
 void registerPowerUp(py::module_& m) {
   py::class_<PowerUpStep>(m, "PowerUpStep", "One step of a power-up schedule (SI units, K).")
       .def_readonly("level", &PowerUpStep::level)
@@ -52,20 +67,7 @@ void registerPowerUp(py::module_& m) {
         o.maxTotal = maxTotal.value_or(o.maxTotal);
         o.maxSteps = maxSteps.value_or(o.maxSteps);
         o.maxSlowStep = maxSlowStep.value_or(o.maxSlowStep);
-        // Called once per envelope run: the GIL is taken each time to let Python deliver
-        // Ctrl-C and to pass the line to `progress(line)` (False cancels).
-        o.progress = [progress](const std::string& line) {
-          py::gil_scoped_acquire gil;
-          if (PyErr_CheckSignals() != 0) {
-            PyErr_Clear();
-            return false;
-          }
-          if (!progress.is_none()) {
-            py::object keepGoing = progress(line);
-            if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
-          }
-          return true;
-        };
+        o.progress = lineProgress(progress);  // called once per envelope run
         checkNetlist(n);
         const Netlist copy = n;  // copied under the GIL, planned without it
         py::gil_scoped_release nogil;
