@@ -18,6 +18,7 @@
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/devices/switch.hpp"
+#include "disc/devices/thermal.hpp"
 #include "disc/devices/thermistor.hpp"
 #include "disc/devices/transformer.hpp"
 #include "disc/devices/valve_load.hpp"

@@ -2,6 +2,7 @@
 // analysis applies to a body's heat balance, and the events a run reports.
 #pragma once
 
+#include <limits>
 #include <string>
 #include <vector>
 
@@ -30,6 +31,9 @@ struct HeatedBody {
   std::string mechanism;         ///< what destroys it, in words
   double heatCapacity = 0.0;     ///< J/K
   double lossConductance = 0.0;  ///< W/K, to ambient (its neighbours on a spindle heat alike)
+  /// Unknown of the heat node it loses that heat to (its temperature rise above `ambient`),
+  /// or -1: the ambient itself.
+  int sink = -1;
 };
 
 /// A body's heat balance: instantaneous values, or averages over a mains period.
@@ -37,6 +41,8 @@ struct HeatState {
   double temperature = 0.0;       ///< K
   double dissipation = 0.0;       ///< W
   double dissipationSlope = 0.0;  ///< W/K, d(dissipation)/d(temperature) at a fixed drive
+  /// K, temperature of what the body loses its heat to (a heat node); NaN: the ambient.
+  double sinkTemperature = std::numeric_limits<double>::quiet_NaN();
 };
 
 enum class ThermalCondition {

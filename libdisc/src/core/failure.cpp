@@ -43,7 +43,8 @@ ThermalCheck checkHeat(const HeatedBody& body, const HeatState& state) {
     c.netHeating = std::numeric_limits<double>::infinity();
     return c;
   }
-  c.netHeating = state.dissipation - body.lossConductance * (state.temperature - body.ambient);
+  const double sink = std::isnan(state.sinkTemperature) ? body.ambient : state.sinkTemperature;
+  c.netHeating = state.dissipation - body.lossConductance * (state.temperature - sink);
   // d(net heating)/dT: positive means the body heats faster the hotter it gets.
   const double k = state.dissipationSlope - body.lossConductance;
   c.timeToDestruction = std::numeric_limits<double>::infinity();

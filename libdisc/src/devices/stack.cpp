@@ -11,6 +11,7 @@
 #include "check.hpp"
 #include "disc/circuit.hpp"
 #include "disc/constants.hpp"
+#include "disc/devices/thermal.hpp"
 #include "disc/limits.hpp"
 #include "junction_math.hpp"
 #include "plate/plate_model.hpp"
@@ -33,6 +34,7 @@ struct Stack::Plate {
   int sTj = 0, sTt = 0;
   int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0, sHg = 0;
   PairSlots coupling;
+  PairSlots sinkSlots;  // loss conductance between the plate and its heat node (or ambient)
   int sFj = 0, sFh = 0, sFf = 0;
   int sGh = 0, sGg = 0;
   // Evaluation cache only, no state of the plate; the plates an analysis evaluates are its
@@ -217,6 +219,7 @@ void Stack::build() {
 
 void Stack::prepare(const Circuit& c) {
   ambient_ = c.ambient();
+  sink_ = heatNode_.empty() ? nullptr : &findHeatNode(c, heatNode_, name_);
 }
 
 std::vector<UnknownSpec> Stack::internalUnknowns() const {
@@ -238,6 +241,7 @@ void Stack::bind(const Binding& b) {
   a_ = b.terminals[0];
   k_ = b.terminals[1];
   ground_ = b.ground;
+  sinkUnknown_ = ground_;
   std::size_t next = 0;
   int previous = -1;  // cathode-side chain node of the previous plate in this arm
   for (std::size_t n = 0; n < plates_.size(); ++n) {
@@ -272,7 +276,10 @@ void Stack::junctionPairs(std::vector<JunctionPair>& out) const {
 }
 
 void Stack::declare(PatternBuilder& pb) {
+  // The heat node is bound by now: every device is bound before any declares.
+  sinkUnknown_ = sink_ ? sink_->unknown() : ground_;
   for (Plate& p : plates_) {
+    p.sinkSlots.declare(pb, p.th, sinkUnknown_);
     pb.entry(p.a, p.a, p.sAa);
     pb.entry(p.a, p.kk, p.sAk);
     pb.entry(p.a, p.j, p.sAj);
@@ -356,7 +363,10 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     const bool trap = p.k.ct > 0.0;
     s.i[p.t] += trap ? -st.it : ut;
     s.q[p.t] += p.k.ct * ut;
-    s.i[p.th] += gth * th - st.p;
+    // The loss to the heat node (the ambient's rise is x[ground] = 0).
+    const double loss = gth * (th - x[sinkUnknown_]);
+    s.i[p.th] += loss - st.p;
+    s.i[sinkUnknown_] -= loss;
     s.q[p.th] += p.k.cth * th;
     if (p.neighbour >= 0) {
       const double gc = p.gc, flow = gc * (th - x[p.neighbour]);
@@ -396,7 +406,8 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     s.G[p.sHk] += st.dPdVt * inv;
     s.G[p.sHj] -= st.dPdUj;
     s.G[p.sHt] -= st.dPdUt;
-    s.G[p.sHh] += gth - st.dPdTh;
+    s.G[p.sHh] -= st.dPdTh;
+    p.sinkSlots.add(s.G, gth);
     s.G[p.sHf] -= st.dPdF;
     s.G[p.sHg] -= st.dPdS;
     s.C[p.sHh] += p.k.cth;
@@ -458,6 +469,7 @@ void Stack::heatedBodies(std::vector<HeatedBody>& out) const {
     b.mechanism = type_.failure.mechanism;
     b.heatCapacity = p.k.cth;
     b.lossConductance = p.gth;
+    b.sink = sink_ ? sinkUnknown_ : -1;
     out.push_back(std::move(b));
   }
 }
@@ -468,7 +480,7 @@ HeatState Stack::heatState(int k, const EvalContext& ctx) const {
   detail::PlateState st;
   detail::evaluatePlate(p.k, ambient_, (x[p.a] - x[p.kk]) / scale(), x[p.j], x[p.t], x[p.th],
                         x[p.f], st, &p.cache, x[p.g]);
-  return {ambient_ + x[p.th], st.p, st.dPdTh};
+  return {ambient_ + x[p.th], st.p, st.dPdTh, ambient_ + x[sinkUnknown_]};
 }
 
 int Stack::limitCells() const {

@@ -160,6 +160,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     HeatedBody body;
     std::size_t slowIndex = 0;
     std::vector<std::size_t> sameDevice;  // slow indices of the device's temperatures
+    std::ptrdiff_t sinkIndex = -1;        // slow index of the heat node it loses heat to
     bool runaway = false;
   };
   std::vector<BodyWatch> bodies;
@@ -175,6 +176,10 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
         if (it == slow.end()) continue;  // a temperature held by the device, not a slow state
         BodyWatch w;
         w.slowIndex = static_cast<std::size_t>(it - slow.begin());
+        if (b.sink >= 0) {
+          const auto sk = std::find(slow.begin(), slow.end(), b.sink);
+          if (sk != slow.end()) w.sinkIndex = sk - slow.begin();
+        }
         w.body = std::move(b);
         temps.push_back(w.slowIndex);
         bodies.push_back(std::move(w));
@@ -254,7 +259,12 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       for (std::size_t c : w.sameDevice) together += jac[r * ns + c] * scale[r] / scale[c];
       HeatState h;
       h.temperature = temperature;
-      h.dissipation = heating + w.body.lossConductance * (temperature - w.body.ambient);
+      const double sink = w.sinkIndex < 0
+                              ? w.body.ambient
+                              : w.body.ambient + yy[static_cast<std::size_t>(w.sinkIndex)] *
+                                                     scale[static_cast<std::size_t>(w.sinkIndex)];
+      h.sinkTemperature = sink;
+      h.dissipation = heating + w.body.lossConductance * (temperature - sink);
       h.dissipationSlope = w.body.heatCapacity * together + w.body.lossConductance;
       const ThermalCheck c = checkHeat(w.body, h);
       if (c.condition != ThermalCondition::Runaway) continue;

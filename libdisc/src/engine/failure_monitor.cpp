@@ -84,13 +84,15 @@ bool FailureMonitor::accepted(const EvalContext& ctx) {
         w.since = t;
         w.power = h.dissipation;
         w.slope = h.dissipationSlope;
+        w.sink = h.sinkTemperature;
       } else {
         const double a = -std::expm1(-(t - w.lastTime) / w.tau);
         w.power += a * (h.dissipation - w.power);
         w.slope += a * (h.dissipationSlope - w.slope);
+        w.sink = h.sinkTemperature;  // a heat node warms over minutes: no filter needed
       }
       if (!w.runaway && t - w.since >= 2.0 * w.tau) {
-        const ThermalCheck c = checkHeat(w.body, {temperature, w.power, w.slope});
+        const ThermalCheck c = checkHeat(w.body, {temperature, w.power, w.slope, w.sink});
         if (c.condition == ThermalCondition::Runaway) {
           w.runaway = true;
           events_.push_back(event(

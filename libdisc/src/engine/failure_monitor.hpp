@@ -34,6 +34,7 @@ class FailureMonitor {
     double since = 0.0;               // s, filtering since
     double tau = 0.0;                 // s, low-pass time constant
     double power = 0.0, slope = 0.0;  // W, W/K, low-passed over mains cycles
+    double sink = 0.0;                // K, what it loses heat to (NaN: the ambient)
     bool runaway = false;
   };
   FailureEvent event(const Watch& w, ThermalCondition kind, double time, double temperature,

@@ -20,6 +20,7 @@
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
 #include "disc/devices/switch.hpp"
+#include "disc/devices/thermal.hpp"
 #include "disc/devices/thermistor.hpp"
 #include "disc/devices/transformer.hpp"
 #include "disc/devices/valve_load.hpp"
@@ -56,6 +57,16 @@ KindSpec kindFromTable(const char* kind, int nodes, const Device& prototype) {
   KindSpec k{kind, nodes, nullptr, {}, {}, &prototype.parameterTable()};
   for (const auto& e : *k.table) k.params.push_back({e.name.c_str(), dimOfUnit(e.unit)});
   return k;
+}
+
+KindSpec withPositional(KindSpec k, const char* positional) {
+  k.positional = positional;
+  return k;
+}
+
+/// Kinds whose positional names are heat nodes (or element names), not circuit nodes.
+bool namesNoCircuitNodes(const std::string& kind) {
+  return kind == "coupling" || kind == "heat-node" || kind == "heat-path" || kind == "heat-source";
 }
 
 const std::vector<ParamSpec> kWaveParams = {{"dc", Dim::Voltage},
@@ -122,12 +133,16 @@ const std::vector<KindSpec>& kinds() {
         {"stored-temp", Dim::Temperature},
         {"hours", Dim::None},
         {"age-temp", Dim::Temperature},
-        {"cooling", Dim::None}},
+        {"cooling", Dim::None},
+        {"heat-node", kWord}},
        {}},
       kindFromTable("lamp", 2, Lamp("", 0, 1)),
       kindFromTable("valve-load", 2, ValveLoad("", 0, 1)),
       kindFromTable("thermistor", 2, Thermistor("", 0, 1)),
       kindFromTable("electrolytic", 2, Electrolytic("", 0, 1)),
+      kindFromTable("heat-node", 0, HeatNode("")),
+      withPositional(kindFromTable("heat-path", 2, HeatPath("", "a", "b", 1.0)), "resistance"),
+      withPositional(kindFromTable("heat-source", 1, HeatSource("", "a", 0.0)), "power"),
       {"switch",
        2,
        nullptr,
@@ -293,6 +308,7 @@ class Builder {
             if (!s.tokens[k].keyValue) failedNodes_.insert(s.tokens[k].text);
         }
       }
+    checkHeatNetwork();
     for (const auto& s : statements) {
       const std::string w = word(s);
       if (w == "output" || w == "record" || w == "run")
@@ -352,6 +368,41 @@ class Builder {
   std::map<std::string, SourceLocation>& deviceWhere_ = nl_.elementWhere;
   std::map<std::string, std::vector<SourceLocation>>& nodeRefs_ = nl_.nodeRefs;
   std::set<std::string> failedElements_, failedNodes_;  // of element statements that failed
+
+  /// Every heat node named by a heat path, a heat source or a stack exists, and every heat
+  /// node has a way to the ambient; reported at the statement that names it.
+  void checkHeatNetwork() {
+    const Circuit& c = nl_.circuit;
+    auto where = [&](const Device& d) {
+      const auto it = deviceWhere_.find(d.name());
+      return it == deviceWhere_.end() ? SourceLocation{} : it->second;
+    };
+    auto check = [&](const Device& d, const std::string& node) {
+      if (node.empty() || node == HeatPath::kAmbient || failedElements_.count(node)) return;
+      try {
+        findHeatNode(c, node, d.name());
+      } catch (const InputError& e) {
+        error(where(d), e.what());
+      }
+    };
+    for (const auto& d : c.devices()) {
+      if (const auto* path = dynamic_cast<const HeatPath*>(d.get())) {
+        check(*path, path->from());
+        check(*path, path->to());
+      } else if (const auto* src = dynamic_cast<const HeatSource*>(d.get())) {
+        check(*src, src->node());
+      } else if (const auto* st = dynamic_cast<const Stack*>(d.get())) {
+        check(*st, st->heatNode());
+      } else if (dynamic_cast<const HeatNode*>(d.get())) {
+        try {
+          HeatNode probe = static_cast<const HeatNode&>(*d);
+          probe.prepare(c);
+        } catch (const InputError& e) {
+          error(where(*d), e.what());
+        }
+      }
+    }
+  }
 
   /// "no element named 'X'", unless X's own statement failed (then it was reported there).
   void noElement(const SourceLocation& at, const std::string& name) {
@@ -573,10 +624,15 @@ class Builder {
       }
     }
     const int nodeCount = spec.nodes;
+    const std::string kindWord = spec.kind;
+    const bool heat = namesNoCircuitNodes(kindWord) && kindWord != "coupling";
     if (static_cast<int>(positional.size()) < nodeCount) {
       error(positional.empty() ? t[1].where : positional.back()->where,
             fmt::format("a {} needs {} {}; found {}", spec.kind, nodeCount,
-                        std::string(spec.kind) == "coupling" ? "inductor names" : "nodes",
+                        kindWord == "coupling"    ? "inductor names"
+                        : kindWord == "heat-path" ? "heat node names (the second may be 'ambient')"
+                        : heat                    ? "heat node name"
+                                                  : "nodes",
                         positional.size()));
       return;
     }
@@ -616,9 +672,10 @@ class Builder {
     for (const Token* tok : positional) {
       // A coupling names inductors: element names, which follow the same rule.
       if (!validName(tok->text))
-        return error(
-            tok->where,
-            nameRule(std::string(spec.kind) == "coupling" ? "inductor" : "node", tok->text));
+        return error(tok->where, nameRule(kindWord == "coupling" ? "inductor"
+                                          : heat                 ? "heat node"
+                                                                 : "node",
+                                          tok->text));
       nodes.push_back(tok->text);
     }
     try {
@@ -626,7 +683,7 @@ class Builder {
       if (!device) return;
       nl_.circuit.add(std::move(device));
       deviceWhere_[name] = t[1].where;
-      if (std::string(spec.kind) != "coupling")
+      if (!namesNoCircuitNodes(kindWord))
         for (std::size_t k = 0; k < nodes.size(); ++k)
           if (nodes[k] != "gnd") nodeRefs_[nodes[k]].push_back(positional[k]->where);
     } catch (const ParamError& e) {
@@ -663,6 +720,18 @@ class Builder {
     };
     if (kind == "coupling")
       return std::make_unique<Coupling>(name, nodes[0], nodes[1], p.get("k", 0.0));
+    if (kind == "heat-node") {
+      require("capacity", "J/K, the heat capacity of the sink, chassis or air it stands for");
+      return withTableParams(std::make_unique<HeatNode>(name), p);
+    }
+    if (kind == "heat-path") {
+      require("resistance", "K/W between the two ends");
+      return std::make_unique<HeatPath>(name, nodes[0], nodes[1], positive("resistance"));
+    }
+    if (kind == "heat-source") {
+      require("power", "W of heat into the node, e.g. a transformer's loss");
+      return withTableParams(std::make_unique<HeatSource>(name, nodes[0], 0.0), p);
+    }
     std::vector<NodeId> n;
     for (const auto& node : nodes) n.push_back(c.node(node));
     if (kind == "resistor") {
@@ -738,7 +807,9 @@ class Builder {
       } catch (const InputError& e) {
         throw ParamError{"", e.what()};
       }
-      return std::make_unique<Stack>(name, n[0], n[1], *type, o);
+      auto stack = std::make_unique<Stack>(name, n[0], n[1], *type, o);
+      if (p.word.count("heat-node")) stack->setHeatNode(p.word.at("heat-node"));
+      return stack;
     }
     if (kind == "lamp") {
       require("rated-power", "W, as printed on the bulb");

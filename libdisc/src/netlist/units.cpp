@@ -41,6 +41,9 @@ const std::vector<Unit>& units() {
        "C",
        Dim::Temperature, false},  // °C
       {"deg", Dim::Angle, false},
+      {"K/W", Dim::ThermalResistance, false},
+      {"W/K", Dim::ThermalConductance, true},
+      {"J/K", Dim::HeatCapacity, true},
   };
   return u;
 }
@@ -150,6 +153,12 @@ const char* dimName(Dim d) {
       return "a temperature";
     case Dim::Angle:
       return "an angle";
+    case Dim::ThermalResistance:
+      return "a thermal resistance";
+    case Dim::ThermalConductance:
+      return "a thermal conductance";
+    case Dim::HeatCapacity:
+      return "a heat capacity";
   }
   return "?";
 }
@@ -178,6 +187,12 @@ const char* dimUnit(Dim d) {
       return "K or degC";
     case Dim::Angle:
       return "deg";
+    case Dim::ThermalResistance:
+      return "K/W";
+    case Dim::ThermalConductance:
+      return "W/K";
+    case Dim::HeatCapacity:
+      return "J/K";
     default:
       return "";
   }
@@ -230,7 +245,7 @@ std::optional<double> parseQuantity(const std::string& text, Dim dim, std::strin
         const std::string like = lookAlike(suffix, dim);
         error = fmt::format(
             "'{}': '{}' is neither an SI prefix nor a unit (prefixes p n u m k M G; "
-            "units V A ohm F H Hz s min h W J K degC){}",
+            "units V A ohm F H Hz s min h W J K degC K/W W/K J/K){}",
             excerpt(text), excerpt(suffix),
             like.empty() ? "" : fmt::format("; did you mean {}{}?", text.substr(0, k), like));
         return std::nullopt;

@@ -18,15 +18,18 @@ enum class Dim {
   Power,
   Energy,
   Temperature,
-  Angle
+  Angle,
+  ThermalResistance,   // K/W
+  ThermalConductance,  // W/K
+  HeatCapacity         // J/K
 };
 
 const char* dimName(Dim d);
 /// The SI unit symbol of a dimension, for messages ("V", "ohm", ...).
 const char* dimUnit(Dim d);
 
-/// The dimension whose SI unit is `symbol` ("A" -> Current, "K" -> Temperature); None for a
-/// compound or empty symbol ("K/W", ""), whose values are plain numbers.
+/// The dimension whose SI unit is `symbol` ("A" -> Current, "K" -> Temperature, "K/W" ->
+/// ThermalResistance); None for any other or an empty symbol, whose values are plain numbers.
 Dim dimOfUnit(const std::string& symbol);
 
 /// Parses "4.7k", "100uF", "2.5 ms" (no space), "30degC", "-3V", "1e-6". The value is in SI base

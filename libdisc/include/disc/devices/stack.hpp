@@ -10,6 +10,8 @@
 
 namespace disc {
 
+class HeatNode;
+
 namespace detail {
 struct PlateConstants;
 }
@@ -63,6 +65,10 @@ class Stack : public DeviceBase<Stack> {
   double initialForming() const;
   /// Rs ageing multiplier at the start, from the options' operating hours.
   double ageing() const;
+  /// The heat node (disc/devices/thermal.hpp) the plates lose their heat to, instead of the
+  /// ambient; "" for the ambient. Paralleled arms on one node warm each other through it.
+  const std::string& heatNode() const { return heatNode_; }
+  void setHeatNode(std::string name) { heatNode_ = std::move(name); }
 
   void prepare(const Circuit& c) override;
   std::vector<UnknownSpec> internalUnknowns() const override;
@@ -87,6 +93,9 @@ class Stack : public DeviceBase<Stack> {
   PlateType type_;
   StackOptions opt_;
   double ambient_ = 298.15;
+  std::string heatNode_;
+  const HeatNode* sink_ = nullptr;  // of the run's own circuit, from prepare()
+  int sinkUnknown_ = 0;             // its temperature rise, or the ground sentinel
   std::vector<Plate> plates_;
   int a_ = 0, k_ = 0, ground_ = 0;
   void build();
