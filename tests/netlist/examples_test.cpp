@@ -503,6 +503,73 @@ TEST_CASE("Table radio warm-up: the report from one settled period balances, the
   CHECK(warmUpText(w).find("WARM-UP over 1 h 0 min") != std::string::npos);
 }
 
+TEST_CASE("Shared chassis: two stacks and a core loss warm one heat node, the plates above it",
+          "[netlist][examples][thermal]") {
+  Run r{loadNetlist(std::string(DISC_NETLIST_DIR) + "/shared-chassis-field-supply.disc"), {}};
+  REQUIRE(r.nl.analyses.size() == 2);
+  REQUIRE(r.nl.analyses[0].kind == AnalysisRequest::Kind::Transient);
+  REQUIRE(r.nl.analyses[1].kind == AnalysisRequest::Kind::WarmUp);
+  // The switch-on transient alone: its energy balance, with the core loss (heat, not an
+  // electrical loss) left out of the losses.
+  Netlist transientOnly = r.nl;
+  transientOnly.analyses.pop_back();
+  Run t{transientOnly, {}};
+  for (const auto& d : t.nl.circuit.devices())
+    if (d->kind() == "resistor") t.nl.record.push_back("i:" + d->name());
+  t.out = runNetlist(t.nl);
+  REQUIRE(t.out.hasReport);
+  checkEnergyBalance(t);
+  for (const auto& l : t.out.report.output.losses) CHECK(l.device != "CORE");
+
+  // Six hours of warm-up. The network's slowest time constant, from the chassis (900 J/K,
+  // 0.8 K/W to the cabinet) and the cabinet (2 kJ/K, 1.2 K/W to the room), is about 62 min
+  // (the larger inverse eigenvalue of its two-lump matrix, derived as in
+  // tests/devices/thermal_test.cpp): six hours leave e^-5.8, 0.3 % of the rise.
+  r.out = runNetlist(r.nl);
+  REQUIRE(r.out.hasReport);
+  const SupplyReport& rep = r.out.report;
+  CHECK(rep.failures.empty());
+  REQUIRE(rep.stacks.size() == 2);
+  REQUIRE(rep.heatNodes.size() == 2);
+  const HeatNodeFigures& chassis = rep.heatNodes[0];
+  const HeatNodeFigures& cabinet = rep.heatNodes[1];
+  REQUIRE(chassis.name == "CHASSIS");
+  REQUIRE(cabinet.name == "CABINET");
+  // Steady state by hand: all the heat, both stacks' settled dissipation and the 4 W core
+  // loss, flows through the mount (0.8 K/W) and then out of the cabinet (1.2 K/W), thermal
+  // resistances in series (Incropera and DeWitt, Fundamentals of Heat and Mass Transfer,
+  // section 3.1).
+  double p = 0.0;
+  for (const auto& s : rep.stacks) p += s.powerForward + s.powerReverse;
+  const double ta = r.nl.circuit.ambient(), heat = p + 4.0;
+  CHECK(chassis.heatIn == Approx(heat).epsilon(1e-12));
+  CHECK(cabinet.heatIn == Approx(0.0).margin(1e-12));
+  const double cabinetSteady = ta + heat * 1.2, chassisSteady = cabinetSteady + heat * 0.8;
+  CHECK(cabinet.temperatureSteady == Approx(cabinetSteady).epsilon(1e-12));
+  CHECK(chassis.temperatureSteady == Approx(chassisSteady).epsilon(1e-12));
+  INFO("chassis at the end " << chassis.temperatureEnd - 273.15 << " degC, steady "
+                             << chassisSteady - 273.15 << " degC");
+  CHECK(std::abs(chassis.temperatureEnd - chassisSteady) < 0.01 * (chassisSteady - ta));
+  CHECK(std::abs(cabinet.temperatureEnd - cabinetSteady) < 0.01 * (cabinetSteady - ta));
+  // Each stack's hottest plate settles its own dissipation times its thermal resistance above
+  // the chassis; the warm-up reached it.
+  const double rth = PlateLibrary::builtIn().at("se-45mm-square").thermal.rth;
+  for (const auto& s : rep.stacks) {
+    INFO(s.name);
+    CHECK(s.temperatureSteady == Approx(chassisSteady + s.powerPerPlate * rth).epsilon(2e-3));
+    CHECK(s.temperatureEnd > chassis.temperatureEnd + 0.5 * s.powerPerPlate * rth);
+    CHECK(s.temperatureEnd < s.temperatureSteady + 0.1);
+  }
+  const WarmUpSummary& w = r.out.analyses[1].warmUp;
+  CHECK(w.endTime == Approx(6 * 3600.0));
+  const auto trend = std::find_if(w.trends.begin(), w.trends.end(), [](const auto& x) {
+    return x.what == "CHASSIS: heat node temperature";
+  });
+  REQUIRE(trend != w.trends.end());
+  CHECK(trend->start == Approx(ta - 273.15).margin(0.01));
+  CHECK(trend->end == Approx(chassis.temperatureEnd - 273.15).margin(1e-9));
+}
+
 TEST_CASE("Every bundled supply has a test case that checks its energy balance",
           "[netlist][examples]") {
   // The test cases above call checkEnergyBalance() for exactly these files; a new example
@@ -514,7 +581,7 @@ TEST_CASE("Every bundled supply has a test case that checks its energy balance",
       "hv-stack-half-wave.disc",         "bring-up-series-lamp-variac.disc",
       "tv-doubler-half-wave.disc",       "exchange-float-charger.disc",
       "table-radio-warm-up.disc",        "battery-charger-choke.disc",
-      "charger-silicon-choke.disc"};
+      "charger-silicon-choke.disc",      "shared-chassis-field-supply.disc"};
   int supplies = 0;
   for (const auto& entry : std::filesystem::directory_iterator(DISC_NETLIST_DIR)) {
     if (entry.path().extension() != ".disc") continue;

@@ -397,3 +397,54 @@ def test_waveform_parameters_set_like_any_other():
     assert c["VIN"].rms == pytest.approx(5 / math.sqrt(2))
     with pytest.raises(ValueError):
         c["VIN"].frequency = -1
+
+
+def test_heat_nodes_from_code_and_in_the_report():
+    # Two stacks on one heat sink that a transformer's loss also heats, built in code. The
+    # sink's steady rise is all its heat times its resistance to the ambient (thermal circuits,
+    # Incropera and DeWitt, Fundamentals of Heat and Mass Transfer, section 3.1).
+    c = disc.Circuit()
+    c.statement("ambient 30degC")
+    c.mains("MAINS", "a", "gnd", rms=120, frequency=60, resistance=5)
+    c.stack("SR1", "a", "c", type="se-25mm-36v", plates=8, heat_node="SINK")
+    c.stack("SR2", "a", "c", type="se-25mm-36v", plates=8, heat_node="SINK")
+    c.capacitor("C1", "c", "gnd", "100uF")
+    c.resistor("RL", "c", "gnd", 800)
+    c.output("c", "gnd", load="RL")
+    # Declared before the path that joins it to the ambient: checked when the circuit runs.
+    sink = c.heat_node("SINK", capacity="60J/K")
+    skin = c.heat_path("SKIN", "SINK", "ambient", "2.5K/W")
+    c.heat_source("T1", "SINK", power=5)
+    assert sink.kind == "heat node" and sink.capacity == pytest.approx(60.0)
+    assert skin.resistance == pytest.approx(2.5)
+    r = c.run_transient(stop=0.4, record=["temp:SINK", "flow:SKIN"])
+    assert r.unit("temp:SINK") == "K"
+    rep = r.report()
+    stacks = sum(s["dissipation_forward_W"] + s["dissipation_reverse_W"] for s in rep["stacks"])
+    (node,) = rep["heat_nodes"]
+    assert node["name"] == "SINK"
+    assert node["heat_in_W"] == pytest.approx(stacks + 5.0, rel=1e-12)
+    assert node["temperature_steady_estimate_K"] == pytest.approx(
+        303.15 + (stacks + 5.0) * 2.5, rel=1e-12)
+    assert node["temperature_end_K"] == pytest.approx(r["temp:SINK"][-1])
+    assert "T1" not in rep["output"]["losses_W"]
+    assert "HEAT NODES" in r.report_text()
+    # Parameters set by name like any other element's.
+    skin.resistance = 4.0
+    rep = c.run_transient(stop=0.4).report()
+    stacks = sum(s["dissipation_forward_W"] + s["dissipation_reverse_W"] for s in rep["stacks"])
+    assert rep["heat_nodes"][0]["temperature_steady_estimate_K"] == pytest.approx(
+        303.15 + (stacks + 5.0) * 4.0, rel=1e-12)
+    with pytest.raises(disc.NetlistError, match="no heat node named 'SNK'"):
+        c.stack("SR3", "a", "c", type="se-25mm-36v", plates=8, heat_node="SNK")
+        c.check()
+
+
+def test_heat_node_warm_up_trend_from_the_bundled_example():
+    w = disc.load(NETLISTS / "shared-chassis-field-supply.disc").warm_up(3600.0)
+    trend = {t["what"]: t for t in w.trends}
+    chassis = trend["CHASSIS: heat node temperature"]
+    assert chassis["unit"] == "degC"
+    assert chassis["start"] == pytest.approx(30.0, abs=0.01)
+    assert chassis["end"] > chassis["start"] + 5.0
+    assert w.series["temp:CHASSIS"][-1] - 273.15 == pytest.approx(chassis["end"], abs=1e-9)

@@ -230,15 +230,31 @@ class Circuit:
 
     def stack(self, name, anode, cathode, type, plates=None, parallel=None, mode=None,
               spread=None, seed=None, forming=None, stored_years=None, stored_temp=None,
-              hours=None, age_temp=None, cooling=None, **spreads):
+              hours=None, age_temp=None, cooling=None, heat_node=None, **spreads):
         """Plate stack: plates in series per arm, parallel arms; mode 'per-plate' or 'lumped';
         lognormal spread (or spread_js, spread_rs, spread_gsh) drawn with seed; initial forming
-        or stored_years at stored_temp; ageing hours at age_temp; cooling factor."""
+        or stored_years at stored_temp; ageing hours at age_temp; cooling factor; heat_node,
+        the heat node (by name) its plates lose their heat to instead of the ambient."""
         return self._add("stack", name, (anode, cathode), type=type, plates=plates,
                          parallel=parallel, mode=mode, spread=spread, seed=seed, forming=forming,
                          stored_years=stored_years, stored_temp=stored_temp, hours=hours,
                          age_temp=age_temp,
-                         cooling=cooling, **spreads)
+                         cooling=cooling, heat_node=heat_node, **spreads)
+
+    def heat_node(self, name, capacity, to_ambient=None):
+        """A heat node (a heat sink, a chassis, a cabinet's air): heat capacity (J/K) and thermal
+        resistance straight to the ambient (K/W; None: none). Probes temp, loss, stored."""
+        return self._add("heat-node", name, (), capacity=capacity, to_ambient=to_ambient)
+
+    def heat_path(self, name, first, second, resistance):
+        """A thermal resistance (K/W) between two heat nodes; second may be "ambient". Probe
+        flow (W from first to second)."""
+        return self._add("heat-path", name, (first, second), resistance=resistance)
+
+    def heat_source(self, name, node, power):
+        """A steady heat input (W) into a heat node: a valve's heaters, a transformer's core
+        loss. Heat, not an electrical loss: the report leaves it out of the losses."""
+        return self._add("heat-source", name, (node,), power=power)
 
     def lamp(self, name, a, b, rated_power, rated_voltage, filament_temp=None, exponent=None,
              time_constant=None, conduction=None):

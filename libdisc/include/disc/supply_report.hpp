@@ -62,6 +62,15 @@ struct PartFigures {
   std::vector<Verdict> verdicts;
 };
 
+/// A heat node of the circuit's thermal network (a heat sink, a chassis, the air in a cabinet).
+struct HeatNodeFigures {
+  std::string name;
+  double temperatureEnd = 0;     ///< K at the end of the run
+  double temperatureSteady = 0;  ///< K, the network's steady state under the settled heat
+  /// W: the settled mean dissipation of the stacks on it and the heat sources into it
+  double heatIn = 0;
+};
+
 /// Mean power a device absorbs over the settled window (a loss, or for capacitors and
 /// inductors the net energy they store: about 0 once settled).
 struct PowerShare {
@@ -111,7 +120,8 @@ struct SupplyReport {
   double window0 = 0, window1 = 0;  ///< s
   OutputFigures output;
   std::vector<StackFigures> stacks;
-  std::vector<PartFigures> parts;  ///< electrolytics, thermistors and a meter with ratings
+  std::vector<PartFigures> parts;          ///< electrolytics, thermistors and a meter with ratings
+  std::vector<HeatNodeFigures> heatNodes;  ///< the thermal network's nodes, in netlist order
   /// The instrument, when the output is a meter (`full-scale=`, `range=`); its verdicts are
   /// the part named after the load, of kind "meter".
   std::optional<MeterFigures> meter;

@@ -274,6 +274,14 @@ std::string reportText(const SupplyReport& r) {
       line(fmt::format("  [{:<8}] {}: {:.3g} {} (limit {:.3g} {})", v.level, v.figure, v.value,
                        v.unit, v.limit, v.unit));
   }
+  if (!r.heatNodes.empty()) {
+    line("");
+    line("HEAT NODES");
+    for (const auto& n : r.heatNodes)
+      line(fmt::format(
+          "  {:<20} {:.1f} degC at end of run, {:.1f} degC steady-state estimate, {} in", n.name,
+          toC(n.temperatureEnd), toC(n.temperatureSteady), siValue(n.heatIn, "W")));
+  }
   for (const auto& part : r.parts) {
     line("");
     line(fmt::format("{} {}", part.kind, part.name));
@@ -367,6 +375,12 @@ std::string reportJson(const SupplyReport& r) {
          {"forming_end", s.formingEnd},
          {"verdicts", v}});
   }
+  j["heat_nodes"] = nlohmann::json::array();
+  for (const auto& n : r.heatNodes)
+    j["heat_nodes"].push_back({{"name", n.name},
+                               {"temperature_end_K", n.temperatureEnd},
+                               {"temperature_steady_estimate_K", n.temperatureSteady},
+                               {"heat_in_W", n.heatIn}});
   j["parts"] = nlohmann::json::array();
   for (const auto& part : r.parts) {
     auto v = nlohmann::json::array();
@@ -627,6 +641,16 @@ std::string reportHtml(const Netlist& nl, const RunOutcome& out) {
         fmt::format("{:.3f} at start, {:.3f} at end", s.formingStart, s.formingEnd));
     h += "</table>\n";
     verdictTable(s.verdicts);
+  }
+  if (!r.heatNodes.empty()) {
+    h += "<h2>Heat nodes</h2>\n<table><tr><th>node</th><th>at end</th><th>steady "
+         "estimate</th><th>heat in</th></tr>";
+    for (const auto& n : r.heatNodes)
+      h +=
+          fmt::format("<tr><td>{}</td><td>{:.1f} &deg;C</td><td>{:.1f} &deg;C</td><td>{}</td></tr>",
+                      escapeHtml(n.name), toC(n.temperatureEnd), toC(n.temperatureSteady),
+                      siValue(n.heatIn, "W"));
+    h += "</table>\n";
   }
   for (const auto& part : r.parts) {
     h += fmt::format("<h2>{} {}</h2>\n", escapeHtml(part.kind), escapeHtml(part.name));

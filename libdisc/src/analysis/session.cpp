@@ -5,6 +5,7 @@
 #include <optional>
 
 #include "disc/devices/stack.hpp"
+#include "disc/devices/thermal.hpp"
 #include "disc/session.hpp"
 
 #include "disc/meter.hpp"
@@ -108,6 +109,9 @@ void addTrends(const Netlist& nl, const Result& series, WarmUpSummary& w) {
           {"ripple peak-to-peak", "V", hi.front() - lo.front(), hi.back() - lo.back()});
     }
   }
+  for (const auto& d : nl.circuit.devices())
+    if (dynamic_cast<const HeatNode*>(d.get()))
+      trend(d->name() + ": heat node temperature", "temp:" + d->name(), 1.0, -273.15, "degC");
   for (const auto& d : nl.circuit.devices())
     if (dynamic_cast<const Stack*>(d.get())) {
       const std::string n = d->name();

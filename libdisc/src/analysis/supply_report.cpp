@@ -4,12 +4,14 @@
 #include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
+#include <map>
 #include <numbers>
 
 #include "disc/devices/capacitor.hpp"
 #include "disc/devices/electrolytic.hpp"
 #include "disc/devices/sources.hpp"
 #include "disc/devices/stack.hpp"
+#include "disc/devices/thermal.hpp"
 #include "disc/devices/thermistor.hpp"
 #include "disc/devices/transformer.hpp"
 #include "disc/measures.hpp"
@@ -74,6 +76,8 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
     } else if (dynamic_cast<const Thermistor*>(d.get())) {
       s.push_back("i:" + d->name());
       s.push_back("temp:" + d->name());
+    } else if (dynamic_cast<const HeatNode*>(d.get())) {
+      s.push_back("temp:" + d->name());
     } else if (auto* st = dynamic_cast<const Stack*>(d.get())) {
       for (const char* q : {"i", "p", "vrev", "temp", "form", "pfwd", "prev"})
         s.push_back(fmt::format("{}:{}", q, d->name()));
@@ -86,8 +90,9 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
       }
     }
   }
-  // Every device's power, for the energy balance.
+  // Every device's electrical power, for the energy balance (a heat source's watts are heat).
   for (const auto& d : c.devices()) {
+    if (dynamic_cast<const HeatSource*>(d.get())) continue;
     const auto probes = d->probes();
     const std::string p = "p:" + d->name();
     if (std::find(probes.begin(), probes.end(), "p") != probes.end() &&
@@ -220,7 +225,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
         (p >= 0.0 ? charging : discharging) += std::abs(p);
         o.batteries.push_back(b);
       }
-    } else if (r.has("p:" + d->name())) {
+    } else if (r.has("p:" + d->name()) && !dynamic_cast<const HeatSource*>(d.get())) {
       o.losses.push_back({d->name(), std::string(d->kind()), p});
     }
     if (dynamic_cast<const Transformer*>(d.get()) && !o.hasTransformer) {
@@ -267,6 +272,27 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
   std::vector<const Stack*> stacks;
   for (const auto& d : c.devices())
     if (const auto* st = dynamic_cast<const Stack*>(d.get())) stacks.push_back(st);
+  // The thermal network at steady state under the settled heat: each stack's mean
+  // dissipation into its heat node, the heat sources at their power. A plate on a node settles
+  // above the node's steady temperature, not the ambient's.
+  std::map<std::string, double> nodeHeat;
+  for (const Stack* st : stacks)
+    if (!st->heatNode().empty())
+      nodeHeat[st->heatNode()] += measure::mean(t, r["pfwd:" + st->name()], w0, w1) +
+                                  measure::mean(t, r["prev:" + st->name()], w0, w1);
+  const std::map<std::string, double> nodeRise = steadyHeatNodeRises(c, nodeHeat);
+  for (const auto& d : c.devices())
+    if (const auto* hn = dynamic_cast<const HeatNode*>(d.get())) {
+      HeatNodeFigures f;
+      f.name = hn->name();
+      f.temperatureEnd = r["temp:" + f.name].back();
+      f.temperatureSteady = c.ambient() + nodeRise.at(f.name);
+      f.heatIn = nodeHeat.count(f.name) ? nodeHeat.at(f.name) : 0.0;
+      for (const auto& e : c.devices())
+        if (const auto* hs = dynamic_cast<const HeatSource*>(e.get()); hs && hs->node() == f.name)
+          f.heatIn += hs->power();
+      rep.heatNodes.push_back(std::move(f));
+    }
   std::vector<std::size_t> group(stacks.size());
   for (std::size_t k = 0; k < stacks.size(); ++k) group[k] = k;
   const auto root = [&](std::size_t k) {
@@ -329,7 +355,8 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     s.powerPerPlate = (s.powerForward + s.powerReverse) / st->plateCount();
     s.temperatureEnd = r["temp:" + n].back();
     // Steady state of the hottest plate: its own average dissipation through its heat path
-    // (neighbours at the same temperature exchange nothing), on top of the ambient.
+    // (neighbours at the same temperature exchange nothing), on top of the ambient or of its
+    // heat node's steady temperature.
     const double rth = pt.thermal.rth / st->options().cooling;
     double hottestRise = 0.0;
     const int traced = std::min(st->plateCount(), kMaxPlateTraces);
@@ -340,7 +367,8 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     }
     s.destructionTemperature = pt.failure.destructionTemperature;
     // Past destruction there is no steady state to estimate: the figure stops there.
-    const double steady = std::max(ta + s.powerPerPlate * rth, ta + hottestRise);
+    const double base = st->heatNode().empty() ? ta : ta + nodeRise.at(st->heatNode());
+    const double steady = std::max(base + s.powerPerPlate * rth, ta + hottestRise);
     s.noSteadyState = !(steady < s.destructionTemperature);
     s.temperatureSteady = s.noSteadyState ? s.destructionTemperature : steady;
     s.temperatureLimit = tmax;

@@ -195,4 +195,74 @@ double HeatSource::probe(int, const EvalContext& ctx) const {
   return power_ * ctx.sourceScale;
 }
 
+std::map<std::string, double> steadyHeatNodeRises(const Circuit& c,
+                                                  const std::map<std::string, double>& heatInto) {
+  std::vector<const HeatNode*> nodes;
+  std::map<std::string, std::size_t> index;
+  for (const auto& d : c.devices())
+    if (const auto* n = dynamic_cast<const HeatNode*>(d.get())) {
+      index[n->name()] = nodes.size();
+      nodes.push_back(n);
+    }
+  const std::size_t n = nodes.size();
+  std::map<std::string, double> rises;
+  if (n == 0) {
+    if (!heatInto.empty())
+      throw InputError(fmt::format("no heat node named '{}'", heatInto.begin()->first));
+    return rises;
+  }
+  std::vector<double> g(n * n, 0.0), q(n, 0.0);
+  auto at = [&](const std::string& name, const std::string& user) {
+    const auto it = index.find(name);
+    if (it == index.end()) throw InputError(fmt::format("{}: no heat node named '{}'", user, name));
+    return it->second;
+  };
+  for (std::size_t k = 0; k < n; ++k)
+    if (nodes[k]->params().toAmbient > 0.0) g[k * n + k] += 1.0 / nodes[k]->params().toAmbient;
+  for (const auto& d : c.devices()) {
+    if (const auto* p = dynamic_cast<const HeatPath*>(d.get())) {
+      const std::size_t a = at(p->from(), p->name());
+      const double gp = 1.0 / p->resistance();
+      g[a * n + a] += gp;
+      if (!p->toAmbient()) {
+        const std::size_t b = at(p->to(), p->name());
+        g[b * n + b] += gp;
+        g[a * n + b] -= gp;
+        g[b * n + a] -= gp;
+      }
+    } else if (const auto* s = dynamic_cast<const HeatSource*>(d.get())) {
+      q[at(s->node(), s->name())] += s->power();
+    }
+  }
+  for (const auto& [name, watts] : heatInto) q[at(name, "heat")] += watts;
+  // Gaussian elimination with partial pivoting: a handful of nodes, and G is symmetric
+  // positive definite when every node reaches the ambient (HeatNode::prepare checks it).
+  for (std::size_t col = 0; col < n; ++col) {
+    std::size_t piv = col;
+    for (std::size_t r = col + 1; r < n; ++r)
+      if (std::abs(g[r * n + col]) > std::abs(g[piv * n + col])) piv = r;
+    if (!(std::abs(g[piv * n + col]) > 0.0))
+      throw InputError(
+          fmt::format("heat node '{}' has no way to the ambient: it has no steady temperature",
+                      nodes[col]->name()));
+    if (piv != col) {
+      for (std::size_t k = 0; k < n; ++k) std::swap(g[col * n + k], g[piv * n + k]);
+      std::swap(q[col], q[piv]);
+    }
+    for (std::size_t r = col + 1; r < n; ++r) {
+      const double f = g[r * n + col] / g[col * n + col];
+      for (std::size_t k = col; k < n; ++k) g[r * n + k] -= f * g[col * n + k];
+      q[r] -= f * q[col];
+    }
+  }
+  std::vector<double> theta(n, 0.0);
+  for (std::size_t r = n; r-- > 0;) {
+    double s = q[r];
+    for (std::size_t k = r + 1; k < n; ++k) s -= g[r * n + k] * theta[k];
+    theta[r] = s / g[r * n + r];
+  }
+  for (std::size_t k = 0; k < n; ++k) rises[nodes[k]->name()] = theta[k];
+  return rises;
+}
+
 }  // namespace disc

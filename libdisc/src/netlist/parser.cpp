@@ -308,7 +308,6 @@ class Builder {
             if (!s.tokens[k].keyValue) failedNodes_.insert(s.tokens[k].text);
         }
       }
-    checkHeatNetwork();
     for (const auto& s : statements) {
       const std::string w = word(s);
       if (w == "output" || w == "record" || w == "run")
@@ -1345,6 +1344,9 @@ class Builder {
   /// Whole-circuit checks: dangling nodes, parts without a path to gnd, voltage loops.
   void topology() {
     Circuit& c = nl_.circuit;
+    // Here, not as each statement is read: a heat node may be declared before the heat path
+    // that joins it to the ambient (Python adds one statement at a time).
+    checkHeatNetwork();
     // A run too long for its step budget is refused here, at its statement, before any work.
     for (const auto& a : nl_.analyses) {
       // A stop time that failed to read is reported where it stands.

@@ -7,6 +7,7 @@
 // (`Stack::setHeatNode`): their plates then lose heat to the node instead of the ambient.
 #pragma once
 
+#include <map>
 #include <string>
 #include <vector>
 
@@ -115,5 +116,13 @@ class HeatSource : public DeviceBase<HeatSource> {
   double power_ = 0.0;
   const HeatNode* target_ = nullptr;
 };
+
+/// Steady temperature rise above the ambient (K) of every heat node of `c`, by name, with the
+/// heat sources at their power and `heatInto` (W, by heat node name: e.g. the mean dissipation
+/// of the stacks on it) added: the thermal network's conductance equations G theta = q solved
+/// exactly (thermal circuits, Incropera and DeWitt, section 3.1). Throws InputError naming an
+/// unknown heat node in `heatInto`.
+std::map<std::string, double> steadyHeatNodeRises(const Circuit& c,
+                                                  const std::map<std::string, double>& heatInto);
 
 }  // namespace disc
