@@ -458,12 +458,25 @@ TEST_CASE("The periodic basis gives the transient route's settled figures",
   appendNetlist(nl,
                 "campaign builds=3 seed=21\ntolerance C1 capacitance -20% +50%\n"
                 "tolerance MAINS rms 10%\n");
+  // Both routes at reltol 1e-4, not the netlist's 1e-3. The stacks' forward currents (the
+  // positive part of each stack's current) carry, besides the load current, the plates'
+  // displacement current in the reverse half-cycle: SR1 + SR2 exceed the load current by about
+  // 4 % (0.519 against 0.498 A in variant 1). That share flows in the commutation transients
+  // (the leakage inductance rings with the barrier and trap capacitances near 10 kHz), which
+  // the error control at 1e-3 resolves only to about a tenth of the share: at 1e-3 the sum is
+  // 0.5188 A by the trapezoidal transient and 0.5213 A by the periodic route's BDF2, at 1e-4
+  // 0.5183 and 0.5190 A (the load current agrees within 0.1 % at both). The plates' 0.12 K of
+  // warming over the 1.5 s, which the periodic route does not see (it holds the temperatures
+  // at the ambient), is not the cause: with the heat capacity raised 1e5-fold, so that the
+  // transient's plates stay at the ambient too, the sum differs by the same 0.5 % at 1e-3.
+  // At 1e-4 the premise below holds, each route's figures within reltol of the settled ones.
   CampaignOptions o;
-  o.basis = CampaignBasis::Transient;  // the netlist's 1.5 s from cold
+  o.reltol = 1e-4;
+  o.basis = CampaignBasis::Transient;  // the netlist's 1.5 s
   const CampaignTable tr = runCampaign(nl, nl.campaign, o);
   o.basis = CampaignBasis::Periodic;
   const CampaignTable ps = runCampaign(nl, nl.campaign, o);
-  const double reltol = nl.analyses.back().transient.tol.reltol;
+  const double reltol = o.reltol;
   // The transient route's window is settled when consecutive cycles' mean outputs agree within
   // 0.2 % (the supply report's rule), so its output lies within that of the settled one; each
   // route integrates to reltol: the output within 0.2 % + 2 reltol.

@@ -55,6 +55,26 @@ TEST_CASE("Barrier capacitance obeys Mott-Schottky: 1/C^2 linear in V", "[plate]
   }
 }
 
+TEST_CASE("Trap emission is thermally activated: gt follows Arrhenius", "[plate][laws]") {
+  // gt(T) = (Ct / tau) exp(-(Et/k)(1/T - 1/T0)): the emission rate of a deep level is thermally
+  // activated (D. V. Lang, J. Appl. Phys. 45, 3023 (1974)), so the branch's time constant
+  // Ct / gt shortens as the plate warms. dIt/dT = It Et / (k T^2).
+  const PlateType t = bareBarrier();
+  const auto k = detail::makePlateConstants(t, 1.0, 1.0, 1.0, 1.0);
+  const auto& p = t.physics;
+  const double kb = constants::kBoltzmannEv, ct = p.trapCArea * p.areaCm2;
+  REQUIRE(p.trapActivationEv > 0.0);
+  for (double T : {260.0, 300.0, 345.0}) {
+    detail::PlateState s;
+    detail::evaluatePlate(k, T, 0.0, -5.0, -2.0, 0.0, 1.0, s);
+    const double gt = ct / p.trapTau * std::exp(-p.trapActivationEv / kb * (1 / T - 1 / p.t0));
+    INFO("T = " << T << " K");
+    CHECK(s.gt == Approx(gt).epsilon(1e-9));
+    CHECK(s.it == Approx(gt * -3.0).epsilon(1e-9));
+    CHECK(s.dItDth == Approx(gt * -3.0 * p.trapActivationEv / (kb * T * T)).epsilon(1e-9));
+  }
+}
+
 TEST_CASE("Series resistance follows the Arrhenius law (NTC)", "[plate][laws]") {
   // Rs(T) = (rho0 t / A) exp[(Ea/k)(1/T - 1/T0)] (Arrhenius; activation energy of selenium: Annalen
   // der Physik 1954, docs/sources.md).
@@ -180,6 +200,8 @@ TEST_CASE("The Arrhenius cache reproduces the uncached laws", "[plate][laws]") {
       CHECK(b.dIbDth == Approx(a.dIbDth).epsilon(1e-12));
       CHECK(b.p == Approx(a.p).epsilon(1e-13));
       CHECK(b.g == Approx(a.g).epsilon(1e-13));
+      CHECK(b.it == Approx(a.it).epsilon(1e-13));
+      CHECK(b.dItDth == Approx(a.dItDth).epsilon(1e-12));
     }
   }
 }

@@ -30,7 +30,10 @@ struct PlatePhysics {
   double c0Area = 0.03e-6;       ///< zero-bias barrier capacitance per area, F/cm^2
   double fc = 0.5;               ///< forward linearisation point of C(V), fraction of Vbi
   double trapCArea = 0.03e-6;    ///< trap-branch capacitance per area, F/cm^2
-  double trapTau = 0.02;         ///< trap-branch time constant Rt Ct, s
+  double trapTau = 0.02;         ///< trap-branch time constant Rt Ct at t0, s
+  /// Activation of the trap emission rate, eV: the trap conductance 1/Rt follows Arrhenius,
+  /// so Rt Ct shortens as the plate warms (0: a fixed time constant).
+  double trapActivationEv = 0.0;
 };
 
 /// Heat path of one plate.

@@ -31,7 +31,7 @@ struct Stack::Plate {
   int sAa = 0, sAk = 0, sAj = 0, sAth = 0, sAg = 0;
   int sKa = 0, sKk = 0, sKj = 0, sKth = 0, sKg = 0;
   int sJa = 0, sJk = 0, sJj = 0, sJt = 0, sJth = 0, sJf = 0, sJg = 0;
-  int sTj = 0, sTt = 0;
+  int sTj = 0, sTt = 0, sTth = 0;
   int sHa = 0, sHk = 0, sHj = 0, sHt = 0, sHh = 0, sHf = 0, sHg = 0;
   PairSlots coupling;
   PairSlots sinkSlots;  // loss conductance between the plate and its heat node (or ambient)
@@ -299,6 +299,7 @@ void Stack::declare(PatternBuilder& pb) {
     pb.entry(p.j, p.g, p.sJg);
     pb.entry(p.t, p.j, p.sTj);
     pb.entry(p.t, p.t, p.sTt);
+    pb.entry(p.t, p.th, p.sTth);  // the trap conductance's temperature slope
     pb.entry(p.th, p.a, p.sHa);
     pb.entry(p.th, p.kk, p.sHk);
     pb.entry(p.th, p.j, p.sHj);
@@ -340,6 +341,7 @@ void evaluateLimited(const detail::PlateConstants& k, double ambient, const Eval
     s.ib += s.dIbDuj * d;
     s.p += s.dPdUj * d;
     s.g += s.dGdUj * d;
+    s.it += s.gt * d;
     s.q += s.c * d;
   }
 }
@@ -393,14 +395,15 @@ void Stack::evaluate(const EvalContext& ctx, Stamp& s) const {
     s.G[p.sKg] -= st.dIsDs;
     s.G[p.sJa] -= st.dIsDvt * inv;
     s.G[p.sJk] += st.dIsDvt * inv;
-    s.G[p.sJj] += st.dIbDuj + p.k.gt - st.dIsDuj;
-    s.G[p.sJt] -= p.k.gt;
-    s.G[p.sJth] += st.dIbDth - st.dIsDth;
+    s.G[p.sJj] += st.dIbDuj + st.gt - st.dIsDuj;
+    s.G[p.sJt] -= st.gt;
+    s.G[p.sJth] += st.dIbDth + st.dItDth - st.dIsDth;
     s.G[p.sJf] += st.dIbDf;
     s.G[p.sJg] += st.dIbDs - st.dIsDs;
     s.C[p.sJj] += st.c;
-    s.G[p.sTj] -= p.k.gt;
-    s.G[p.sTt] += trap ? p.k.gt : 1.0;
+    s.G[p.sTj] -= st.gt;
+    s.G[p.sTt] += trap ? st.gt : 1.0;
+    s.G[p.sTth] -= st.dItDth;
     s.C[p.sTt] += p.k.ct;
     s.G[p.sHa] -= st.dPdVt * inv;
     s.G[p.sHk] += st.dPdVt * inv;

@@ -9,6 +9,8 @@
 //          - I0 exp((-uj - Vbd)/Vs)                                    soft breakdown
 //   Rs(T)  = Rs0 exp((Ea/k)(1/T - 1/T0)) * ageing                      Arrhenius, NTC
 //   Q(uj)  = Mott-Schottky depletion charge, C = Cj0 / sqrt(1 - uj/Vbi)
+//   It     = gt0 exp(-(Et/k)(1/T - 1/T0)) (uj - ut), Ct d ut/dt = It     trap branch: thermally
+//            activated emission (D. V. Lang, J. Appl. Phys. 45, 3023 (1974))
 //   D(F)   = 1 + (L - 1)(1 - F)                                        deformed leakage
 //   dF/dt  = (1 - F) Vr / (Vref tau) exp((Ef/k)(1/T0 - 1/T))
 //            - F / tau_storage exp((Est/k)(1/T0 - 1/T))                deforming, also stored
@@ -64,6 +66,7 @@ PlateConstants makePlateConstants(const PlateType& type, double jsFactor, double
   k.depletion = DepletionShape(k.cj0, k.vbi, 0.5, k.fc);
   k.ct = p.trapCArea * p.areaCm2;
   k.gt = k.ct > 0.0 ? k.ct / p.trapTau : 0.0;
+  k.trapEaOverK = p.trapActivationEv / kEv;
   k.rth = type.thermal.rth;
   k.cth = type.thermal.cth;
   k.reformRate0 = 1.0 / (type.history.reformTau * type.history.reformVoltage);
@@ -111,19 +114,21 @@ inline double expSmall(double x) {
 constexpr double kCacheKelvin = 1e-2;
 
 struct Factors {
-  double is, rs, gsh, rate, age, store;
+  double is, rs, gsh, rate, age, store, trap;
 };
 
 Factors arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache* c) {
   if (c && c->temperature >= 0.0 && std::abs(T - c->temperature) <= kCacheKelvin) {
     const double d = dInv - c->dInv;
-    return {c->is * expSmall(-k.phiOverK * d),    c->rs * expSmall(k.rsEaOverK * d),
-            c->gsh * expSmall(-k.gshEaOverK * d), c->rate * expSmall(-k.reformEaOverK * d),
-            c->age * expSmall(-k.ageEaOverK * d), c->store * expSmall(-k.storageEaOverK * d)};
+    return {c->is * expSmall(-k.phiOverK * d),     c->rs * expSmall(k.rsEaOverK * d),
+            c->gsh * expSmall(-k.gshEaOverK * d),  c->rate * expSmall(-k.reformEaOverK * d),
+            c->age * expSmall(-k.ageEaOverK * d),  c->store * expSmall(-k.storageEaOverK * d),
+            c->trap * expSmall(-k.trapEaOverK * d)};
   }
   const Factors e{std::exp(-k.phiOverK * dInv),   std::exp(k.rsEaOverK * dInv),
                   std::exp(-k.gshEaOverK * dInv), std::exp(-k.reformEaOverK * dInv),
-                  std::exp(-k.ageEaOverK * dInv), std::exp(-k.storageEaOverK * dInv)};
+                  std::exp(-k.ageEaOverK * dInv), std::exp(-k.storageEaOverK * dInv),
+                  std::exp(-k.trapEaOverK * dInv)};
   if (c) {
     *c = {};
     c->temperature = T;
@@ -134,6 +139,7 @@ Factors arrhenius(const PlateConstants& k, double T, double dInv, ArrheniusCache
     c->rate = e.rate;
     c->age = e.age;
     c->store = e.store;
+    c->trap = e.trap;
   }
   return e;
 }
@@ -252,15 +258,17 @@ void evaluatePlate(const PlateConstants& k, double ambient, double vt, double uj
   s.dIsDth = s.is * k.rsEaOverK * invT2;  // d(1/Rs)/dT = (1/Rs) Ea/(k T^2)
   s.dIsDs = -s.is * dAgeTerm / (1.0 + ageTerm);
 
-  // Trap branch.
-  s.it = k.gt * (uj - ut);
+  // Trap branch: its conductance, so its emission rate gt/Ct, is thermally activated.
+  s.gt = k.gt * e.trap;
+  s.it = s.gt * (uj - ut);
+  s.dItDth = s.it * k.trapEaOverK * invT2;
 
   // Dissipation: Rs loss + barrier static loss + trap-resistor loss.
   s.p = s.is * (vt - uj) + ib * uj + s.it * (uj - ut);
   s.dPdVt = 2.0 * s.is;
   s.dPdUj = -2.0 * s.is + ib + uj * dIbDuj + 2.0 * s.it;
   s.dPdUt = -2.0 * s.it;
-  s.dPdTh = (vt - uj) * s.dIsDth + uj * dIbDT;
+  s.dPdTh = (vt - uj) * s.dIsDth + uj * dIbDT + (uj - ut) * s.dItDth;
   s.dPdF = uj * dIbDf;
   s.dPdS = (vt - uj) * s.dIsDs + uj * dIbDs;
 

@@ -38,7 +38,8 @@ struct PlateConstants {
   double cj0 = 0;                          // F
   double fc = 0.5;
   DepletionShape depletion;   // cj0, vbi, grading 1/2 (Mott-Schottky), fc
-  double ct = 0, gt = 0;      // trap capacitance F, conductance S
+  double ct = 0, gt = 0;      // trap capacitance F, conductance S at t0
+  double trapEaOverK = 0;     // K: the trap conductance's activation
   double rth = 1, cth = 1;    // K/W, J/K
   double reformRate0 = 0;     // 1/(s V) at t0: (1/tau) / V_ref
   double reformEaOverK = 0;   // K
@@ -67,11 +68,12 @@ double formingAfterStorage(const PlateType& type, double years, double kelvin = 
 
 /// Values and derivatives of one plate at (vt, uj, ut, theta, F). Rows: Is = series current
 /// into the plate; Ib = barrier static current; It = trap-branch current; P = dissipation;
-/// g = dF/dt; Q = barrier charge and C = dQ/duj.
+/// g = dF/dt; Q = barrier charge and C = dQ/duj; gt = the trap conductance at the plate's
+/// temperature, dIt/duj = gt = -dIt/dut.
 struct PlateState {
   double is, dIsDvt, dIsDuj, dIsDth, dIsDs;
   double ib, dIbDuj, dIbDth, dIbDf, dIbDs;
-  double it;  // derivatives: +gt / -gt
+  double it, gt, dItDth;  // trap current, its conductance (dIt/duj = -dIt/dut), dIt/dT
   double p, dPdVt, dPdUj, dPdUt, dPdTh, dPdF, dPdS;
   double g, dGdUj, dGdTh, dGdF;
   double ageRate, dAgeRateDth, dAgeRateDs;  // ds/dt of the ageing state, 1/s
@@ -79,7 +81,7 @@ struct PlateState {
   double temperature;  // K
 };
 
-/// The four Arrhenius factors of a plate at one law temperature, kept between evaluations: the
+/// The Arrhenius factors of a plate at one law temperature, kept between evaluations: the
 /// plate temperature moves by about a millikelvin or less per time step, so within 10 mK of the
 /// cached temperature a Taylor series replaces four exponentials (docs/performance.md).
 struct ArrheniusCache {
@@ -88,6 +90,7 @@ struct ArrheniusCache {
   double is = 0.0, rs = 0.0, gsh = 0.0, rate = 0.0;  // exp(-phi/k dInv), exp(Ea/k dInv), ...
   double age = 0.0;                                  // exp(-Eage/k dInv)
   double store = 0.0;                                // exp(-Est/k dInv)
+  double trap = 0.0;                                 // exp(-Et/k dInv)
   // Junction limiting's scale (n kT/q and the critical voltage) at a temperature within the
   // cache's band; limiting is a damping heuristic, a 10 mK offset (3e-5 of kT) does not matter.
   bool limitScaleSet = false;

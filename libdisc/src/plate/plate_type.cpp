@@ -71,6 +71,8 @@ const std::vector<Field>& fields() {
        0.0, 1e-3, false, "F/cm2"},
       {"physics", "trap_tau_s", [](PlateType& t) -> double& { return t.physics.trapTau; }, 1e-6,
        1e3, false, "s"},
+      {"physics", "trap_activation_eV",
+       [](PlateType& t) -> double& { return t.physics.trapActivationEv; }, 0.0, 2.0, false, "eV"},
       {"thermal", "rth_K_per_W", [](PlateType& t) -> double& { return t.thermal.rth; }, 0.01, 1e5,
        false, "K/W"},
       {"thermal", "cth_J_per_K", [](PlateType& t) -> double& { return t.thermal.cth; }, 1e-4, 1e5,
