@@ -1,4 +1,5 @@
-// Figures of sampled waveforms (non-uniform time points, trapezoidal weighting).
+// Figures of sampled waveforms (non-uniform time points: trapezoidal integrals, interpolated
+// crests).
 #pragma once
 
 #include <vector>
@@ -11,10 +12,12 @@ double integral(const std::vector<double>& t, const std::vector<double>& y, doub
 double mean(const std::vector<double>& t, const std::vector<double>& y, double t0, double t1);
 /// Root mean square over [t0, t1] (of the linear interpolant, sampled at the points).
 double rms(const std::vector<double>& t, const std::vector<double>& y, double t0, double t1);
-/// Largest and smallest sample in [t0, t1], with interpolated end values.
+/// Largest and smallest value in [t0, t1]: samples, ends and crests of the piecewise quadratic
+/// through the samples (waveform_measures.cpp).
 double maximum(const std::vector<double>& t, const std::vector<double>& y, double t0, double t1);
 double minimum(const std::vector<double>& t, const std::vector<double>& y, double t0, double t1);
-/// Times in [t0, t1] where y crosses `level`, rising (direction > 0), falling (< 0) or either (0).
+/// Times in [t0, t1] where the same interpolant crosses `level`, rising (direction > 0), falling (<
+/// 0) or either (0).
 std::vector<double> crossings(const std::vector<double>& t, const std::vector<double>& y,
                               double level, int direction, double t0, double t1);
 
