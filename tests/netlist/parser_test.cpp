@@ -53,7 +53,7 @@ TEST_CASE("A valid netlist parses into a circuit", "[netlist][parser]") {
 TEST_CASE("Numbers take SI prefixes and checked units", "[netlist][parser]") {
   const Netlist nl =
       parseNetlist(kOk +
-                   "capacitor C1 a gnd 2.2uF\ncapacitor C2 a gnd 10nF\n"
+                   "capacitor C1 b gnd 2.2uF\ncapacitor C2 b gnd 10nF\n"
                    "inductor L1 a b 3mH\nresistor R2 b gnd 1.5Mohm\nambient 30degC\n");
   CHECK(static_cast<const Capacitor&>(*nl.circuit.find("C1")).capacitance() == Approx(2.2e-6));
   CHECK(static_cast<const Capacitor&>(*nl.circuit.find("C2")).capacitance() == Approx(10e-9));
@@ -147,7 +147,9 @@ TEST_CASE("Hints for the slips people make", "[netlist][parser][mistakes]") {
   CHECK_THAT(d[1].message, Contains("node 'GND'"));
   CHECK_THAT(d[1].message, Contains("written gnd"));
   // A capacitor named as the load, with the element across the output suggested.
-  d = errorsOf(kOk + "capacitor C1 a gnd 10uF\noutput a gnd load=C1\n");
+  d = errorsOf(
+      "voltage V1 a gnd dc=10V resistance=1ohm\nresistor R1 a gnd 1k\ncapacitor C1 a gnd 10uF\n"
+      "output a gnd load=C1\n");
   REQUIRE(d.size() == 1);
   CHECK_THAT(d[0].message, Contains("'C1' is a capacitor"));
   CHECK_THAT(d[0].message, Contains("did you mean load=R1"));
@@ -447,10 +449,91 @@ TEST_CASE("Mistakes in output and record are refused at their place", "[netlist]
   REQUIRE(d.size() == 1);
   CHECK_THAT(d[0].message, Contains("'V1' is an alternating source (60 Hz)"));
   // The input (a source) named as the load too.
-  d = errorsOf(stack + "voltage VB top gnd dc=90V\noutput top gnd load=VB input=VB\n");
+  d = errorsOf(stack +
+               "voltage VB top gnd dc=90V resistance=1ohm\noutput top gnd load=VB input=VB\n");
   REQUIRE(d.size() == 1);
   CHECK_THAT(d[0].message, Contains("'VB' is named both as the load and as the input"));
   // A DC voltage source stays a valid load: a battery on charge (common practice).
-  CHECK_NOTHROW(
-      parseNetlist(stack + "voltage VB top gnd dc=90V\noutput top gnd load=VB\n", "t.disc"));
+  CHECK_NOTHROW(parseNetlist(
+      stack + "voltage VB top gnd dc=90V resistance=1ohm\noutput top gnd load=VB\n", "t.disc"));
+}
+
+TEST_CASE("Cut sets of current sources and inductors are refused at their source",
+          "[netlist][parser][topology]") {
+  // Kirchhoff's current law around a set of nodes fixes the sum of the currents of the
+  // branches that leave it; when those are all current sources nothing fixes the set's
+  // voltage, and with inductors the source forces the inductors' currents (Chua and Lin,
+  // Computer-Aided Analysis of Electronic Circuits, 1975; docs/sources.md, circuit topology).
+  expectError(kOk + "current I1 a b dc=1mA\ncurrent I2 b gnd dc=1mA\n", 3, 9,
+              "node 'b' connects to the rest of the circuit only through current sources (I1, "
+              "I2): nothing fixes its voltage; add a resistor from 'b' to gnd");
+  // A current source feeding a choke alone: the node between them is forced.
+  expectError(kOk + "current I1 gnd b dc=1A\ninductor L1 b gnd 1H\n", 3, 9,
+              "only through current sources and inductors (I1, L1): 'I1' forces the current of the "
+              "inductors");
+  // A set of nodes joined by a resistor, left through a source and a choke: named as a set.
+  auto d = errorsOf(kOk + "current I1 gnd b dc=1A\nresistor R2 b c 10\ninductor L1 c gnd 1H\n");
+  REQUIRE(d.size() == 1);
+  CHECK(d[0].where.line == 3);
+  CHECK_THAT(d[0].message, Contains("nodes b, c connect"));
+  CHECK_THAT(d[0].message, Contains("add a resistor from 'b' to gnd or across 'I1'"));
+  // A voltage source behind a series inductance carries an inductor's current too.
+  expectError(kOk + "voltage V2 b gnd dc=1V inductance=1mH\ncurrent I1 b gnd dc=1A\n", 4, 9,
+              "only through current sources and inductors (V2, I1)");
+  // Accepted: a resistor across the source, a capacitor at the node (it takes the difference),
+  // and inductors in series (their currents agree from zero).
+  CHECK_NOTHROW(parseNetlist(
+      kOk + "current I1 gnd b dc=1A\nresistor R2 b gnd 1k\ninductor L1 b gnd 1H\n", "t.disc"));
+  CHECK_NOTHROW(parseNetlist(
+      kOk + "current I1 gnd b dc=1A\ncapacitor C1 b gnd 1uF\ninductor L1 b gnd 1H\n", "t.disc"));
+  CHECK_NOTHROW(parseNetlist(kOk + "resistor R2 a b 10\ninductor L1 b c 1H\ninductor L2 c gnd 1H\n",
+                             "t.disc"));
+  // A current source across a resistor's node pair is no cut set of its own.
+  CHECK_NOTHROW(parseNetlist(kOk + "current I1 a gnd dc=1mA\n", "t.disc"));
+}
+
+TEST_CASE("Loops of ideal voltage sources and capacitors are refused at their source",
+          "[netlist][parser][topology]") {
+  // The dual of the cut set: an ideal source across capacitors forces their voltage.
+  expectError(kOk + "capacitor C1 a gnd 1uF\n", 1, 9,
+              "'V1' closes a loop of ideal voltage sources and capacitors (V1, C1): it forces "
+              "the voltage of C1");
+  // Two capacitors in series across it: both named.
+  auto d = errorsOf(kOk + "capacitor C1 a b 1uF\ncapacitor C2 b gnd 1uF\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("(V1, C2, C1)"));
+  // With its internal resistance, or with capacitors alone in a loop, it is accepted.
+  CHECK_NOTHROW(parseNetlist(
+      "voltage V1 a gnd dc=10V resistance=0.1ohm\nresistor R1 a gnd 1k\ncapacitor C1 a gnd 1uF\n",
+      "t.disc"));
+  CHECK_NOTHROW(parseNetlist(
+      kOk + "resistor R2 a b 1k\ncapacitor C1 b gnd 1uF\ncapacitor C2 b gnd 1uF\n", "t.disc"));
+  // A loop of sources alone stays the voltage-loop check's, reported once.
+  d = errorsOf(kOk + "voltage V2 a gnd dc=5V\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("'V2' closes a loop of voltage sources and inductors"));
+}
+
+TEST_CASE("A transient shorter than its report needs is refused at its run statement",
+          "[netlist][parser]") {
+  const std::string supply =
+      "voltage V1 line gnd mains rms=120V frequency=60Hz resistance=1ohm\n"
+      "stack SR1 line top type=se-25mm-36v plates=8\ncapacitor C1 top gnd 50uF\n"
+      "resistor RL top gnd 2k\noutput top gnd load=RL\n";
+  // The report compares the means of whole cycles at the run's end: at 60 Hz two cycles are
+  // 33.3 ms.
+  expectError(supply + "run transient stop=25ms\n", 6, 1,
+              "stop=0.025 s covers 1.5 cycles of 'V1' (60 Hz), and the supply report needs at "
+              "least 2");
+  auto d = errorsOf(supply + "run transient stop=10ms\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("give stop=0.0333333 s or more"));
+  // Two whole cycles are enough; without an output there is no report to make.
+  CHECK_NOTHROW(parseNetlist(supply + "run transient stop=33.34ms\n", "t.disc"));
+  CHECK_NOTHROW(parseNetlist(
+      "voltage V1 a gnd sine rms=1V frequency=50Hz resistance=1ohm\nresistor R1 a gnd 1k\n"
+      "run transient stop=5ms\n",
+      "t.disc"));
+  // Only the analysis the report is made from: a short transient before a periodic run is fine.
+  CHECK_NOTHROW(parseNetlist(supply + "run transient stop=5ms\nrun periodic\n", "t.disc"));
 }

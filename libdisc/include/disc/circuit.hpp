@@ -51,4 +51,19 @@ class Circuit {
   double ambient_ = 298.15;
 };
 
+/// A part of a circuit whose state its ideal sources force (docs/netlist.md "Checks before
+/// simulation"): a cut set of current sources and inductors holding a current source, or a
+/// loop of ideal voltage sources and capacitors.
+struct ForcedState {
+  std::string element;                ///< where to report it: a current or voltage source
+  std::vector<std::string> elements;  ///< every element of the cut set or loop
+  std::vector<std::string> nodes;     ///< the cut set's side away from gnd (empty for a loop)
+  std::string message;                ///< what is wrong and what to add
+};
+
+/// The forced states of a circuit, found on its graph alone (no simulation). Each current
+/// source whose only way back is through other current sources and inductors, and each
+/// capacitor loop an ideal voltage source closes, is one entry.
+std::vector<ForcedState> forcedStates(const Circuit& circuit);
+
 }  // namespace disc

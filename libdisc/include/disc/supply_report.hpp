@@ -109,6 +109,9 @@ struct OutputFigures {
 
 struct SupplyReport {
   static constexpr int kSchema = 1;
+  /// Whole mains cycles a transient needs at least for the report to judge whether its output
+  /// settled (the last cycles' means are compared); a shorter run is refused before it starts.
+  static constexpr int kSettleCycles = 2;
   std::string title, file;
   double ambient = 0;    ///< K
   double frequency = 0;  ///< Hz of the mains (0 for DC supplies)

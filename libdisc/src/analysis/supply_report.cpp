@@ -137,7 +137,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     const double period = 1.0 / rep.frequency;
     const int available = static_cast<int>(std::floor((end - t.front()) / period + 1e-9));
     int settledCycles = 1;
-    if (!outSig.empty() && available >= 2) {
+    if (!outSig.empty() && available >= SupplyReport::kSettleCycles) {
       const auto& v = r[outSig];
       double last = measure::mean(t, v, end - period, end);
       for (int k = 2; k <= std::min(available, 5); ++k) {
@@ -147,7 +147,7 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
         last = m;
       }
     }
-    rep.settled = settledCycles >= 2;
+    rep.settled = settledCycles >= SupplyReport::kSettleCycles;
     rep.cycles = std::max(1, std::min(settledCycles, available));
     rep.window1 = end;
     rep.window0 = end - rep.cycles * period;

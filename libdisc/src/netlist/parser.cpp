@@ -26,6 +26,7 @@
 #include "disc/devices/valve_load.hpp"
 #include "disc/limits.hpp"
 #include "disc/netlist.hpp"
+#include "disc/supply_report.hpp"
 #include "engine/recorder.hpp"
 #include "lexer.hpp"
 #include "units.hpp"
@@ -1340,6 +1341,40 @@ class Builder {
     return "";
   }
 
+  /// A transient too short for the supply report it makes is refused at its run statement:
+  /// the report measures whole mains cycles at the run's end and judges settling by comparing
+  /// the means of the last ones (makeSupplyReport), so it needs kSettleCycles of them.
+  void reportLength() {
+    if (!nl_.output.given) return;
+    const AnalysisRequest* last = nullptr;  // the analysis the report is made from
+    for (const auto& a : nl_.analyses)
+      if (a.kind != AnalysisRequest::Kind::OperatingPoint) last = &a;
+    if (!last || last->kind != AnalysisRequest::Kind::Transient || !(last->transient.stop > 0.0))
+      return;
+    // The report's mains frequency: the lowest of the sources'.
+    double f = 0.0;
+    std::string source;
+    for (const auto& d : nl_.circuit.devices()) {
+      const Waveform* w = nullptr;
+      if (auto* v = dynamic_cast<const VoltageSource*>(d.get())) w = &v->waveform();
+      if (auto* i = dynamic_cast<const CurrentSource*>(d.get())) w = &i->waveform();
+      if (w && w->frequency() > 0.0 && (f == 0.0 || w->frequency() < f)) {
+        f = w->frequency();
+        source = d->name();
+      }
+    }
+    const double stop = last->transient.stop, cycles = stop * f;
+    if (f == 0.0 || cycles >= SupplyReport::kSettleCycles * (1.0 - 1e-9)) return;
+    error(last->where,
+          fmt::format("stop={:g} s covers {:.3g} cycles of '{}' ({:g} Hz), and the supply report "
+                      "needs at least {}: it measures whole cycles at the end of the run and "
+                      "tells whether the output has settled by comparing their means; give "
+                      "stop={:g} s or more (a supply started cold usually needs longer), or "
+                      "leave out the output statement to record without a report",
+                      stop, cycles, source, f, SupplyReport::kSettleCycles,
+                      SupplyReport::kSettleCycles / f));
+  }
+
  public:
   /// Whole-circuit checks: dangling nodes, parts without a path to gnd, voltage loops.
   void topology() {
@@ -1357,6 +1392,7 @@ class Builder {
         error(a.where, e.what());
       }
     }
+    reportLength();
     // Ground is written gnd; 0, GND or ground are ordinary nodes, each reported once here and
     // not again as dangling or floating.
     std::set<std::string> groundLike;
@@ -1410,6 +1446,17 @@ class Builder {
         else
           forced[static_cast<std::size_t>(a)] = b;
       }
+    }
+    // Cut sets of current sources and inductors, loops of ideal voltage sources and
+    // capacitors, at the source that forces them (a failed statement's, reported already).
+    for (const auto& f : forcedStates(c)) {
+      const bool reported =
+          std::any_of(f.elements.begin(), f.elements.end(),
+                      [&](const std::string& x) { return failedElements_.count(x) > 0; }) ||
+          std::any_of(f.nodes.begin(), f.nodes.end(), [&](const std::string& x) {
+            return failedNodes_.count(x) || groundLike.count(x);
+          });
+      if (!reported) error(deviceWhere_[f.element], f.message);
     }
     std::map<int, std::vector<std::string>> islands;
     for (NodeId k = 0; k < n; ++k)
