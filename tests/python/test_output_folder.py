@@ -117,7 +117,8 @@ def test_symlink_planted_in_the_folder_is_not_followed(tmp_path):
 def test_sigint_while_simulating_leaves_nothing(tmp_path):
     cli = need_cli()
     out = tmp_path / "out"
-    slow = netlist(tmp_path, "slow.disc", "slow", stop="60s")
+    # 600 s of mains takes tens of seconds even on a fast, idle machine (60 s took under one).
+    slow = netlist(tmp_path, "slow.disc", "slow", stop="600s")
     p = subprocess.Popen([cli, "run", "-q", slow, "-o", str(out)])
     time.sleep(1.0)
     assert p.poll() is None, "the run ended before it could be interrupted"
