@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <catch2/catch.hpp>
 #include <filesystem>
+#include <fstream>
 
 #include "disc/disc.hpp"
 
@@ -536,4 +537,26 @@ TEST_CASE("A transient shorter than its report needs is refused at its run state
       "t.disc"));
   // Only the analysis the report is made from: a short transient before a periodic run is fine.
   CHECK_NOTHROW(parseNetlist(supply + "run transient stop=5ms\nrun periodic\n", "t.disc"));
+  // The report sees the recorded rows only: a long run recorded from near its end is short.
+  d = errorsOf(supply + "run transient stop=1s record-from=0.99s\n");
+  REQUIRE(d.size() == 1);
+  CHECK_THAT(d[0].message, Contains("stop=1 s with record-from=0.99 s records 0.6 cycles"));
+  CHECK_THAT(d[0].message, Contains("give stop=1.02333 s or more"));
+  // So is the default 1 s run given a record-from from outside the file.
+  const auto path = std::filesystem::temp_directory_path() / "disc-report-length-test.disc";
+  {
+    std::ofstream f(path);
+    f << supply;
+  }
+  TransientOverrides late;
+  late.recordFrom = 0.99;
+  try {
+    (void)loadNetlist(path.string(), IncludePolicy::Trusted, late);
+    FAIL("a default run recorded from 0.99 s was accepted");
+  } catch (const NetlistError& e) {
+    CHECK_THAT(std::string(e.what()), Contains("records 0.6 cycles"));
+  }
+  late.recordFrom = 0.9;
+  CHECK_NOTHROW(loadNetlist(path.string(), IncludePolicy::Trusted, late));
+  std::filesystem::remove(path);
 }

@@ -206,3 +206,23 @@ def test_fit_progress_is_called_without_holding_the_gil_and_false_cancels():
     with pytest.raises(KeyboardInterrupt):
         disc.fit_plate(tr, temperature_c=T - 273.15, progress=lambda line: calls.append(line) or len(calls) < 2)
     assert len(calls) == 2
+
+
+def test_fit_progress_that_raises_stops_the_fit_with_its_own_exception():
+    # The second call comes from inside a model evaluation, where a failed trial point is
+    # retried: the callback's exception must still stop the fit and reach the caller as itself.
+    class Stop(Exception):
+        pass
+
+    tr = long_trace(3000, 13)
+    calls = []
+
+    def progress(line):
+        calls.append(line)
+        if len(calls) == 2:
+            raise Stop("enough")
+        return True
+
+    with pytest.raises(Stop, match="enough"):
+        disc.fit_plate(tr, temperature_c=T - 273.15, progress=progress)
+    assert len(calls) == 2

@@ -75,6 +75,8 @@ void registerErrors(py::module_& m) {
       py::object cls = py::module_::import("disc._errors").attr("TraceError");
       py::object err = cls(e.what(), e.file(), e.line(), e.column(), e.columnName());
       PyErr_SetObject(cls.ptr(), err.ptr());
+    } catch (const CallbackFailed& e) {
+      e.restore();
     } catch (const Cancelled& e) {
       PyErr_SetString(PyExc_KeyboardInterrupt, e.what());
     } catch (const InputError& e) {

@@ -18,11 +18,13 @@ std::function<bool(const std::string&)> lineProgress(py::handle callback) {
       PyErr_Clear();
       return false;
     }
-    if (!callback.is_none()) {
+    if (callback.is_none()) return true;
+    try {
       py::object keepGoing = callback(line);
-      if (!keepGoing.is_none() && !keepGoing.cast<bool>()) return false;
+      return keepGoing.is_none() || static_cast<bool>(py::bool_(keepGoing));
+    } catch (py::error_already_set& e) {
+      throw CallbackFailed(std::make_shared<py::error_already_set>(std::move(e)));
     }
-    return true;
   };
 }
 

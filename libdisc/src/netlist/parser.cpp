@@ -361,6 +361,9 @@ class Builder {
     return true;
   }
 
+  /// The report-length check for the default run, once settings from outside have reached it.
+  void defaultReportLength() { reportLength(); }
+
  private:
   Netlist& nl_;
   Diagnostics& diags_;
@@ -794,8 +797,8 @@ class Builder {
       const double spread = p.get("spread", 0.0);
       o.spread = {p.get("spread-js", spread), p.get("spread-rs", spread),
                   p.get("spread-gsh", spread)};
-      o.seed = static_cast<std::uint64_t>(
-          wholeNumber(p, "seed", 1, 0, static_cast<int>(kMaxStackSeed)));
+      o.seed =
+          static_cast<std::uint64_t>(wholeNumber(p, "seed", 1, 0, static_cast<int>(kMaxStackSeed)));
       o.forming = p.get("forming", 1.0);
       o.storedYears = p.get("stored-years", 0.0);
       o.storageTemperature = p.get("stored-temp", 0.0);
@@ -1363,16 +1366,21 @@ class Builder {
         source = d->name();
       }
     }
-    const double stop = last->transient.stop, cycles = stop * f;
+    // The report sees only the recorded rows, which begin at record-from.
+    const double stop = last->transient.stop, from = std::max(0.0, last->transient.recordFrom);
+    const double cycles = (stop - from) * f;
     if (f == 0.0 || cycles >= SupplyReport::kSettleCycles * (1.0 - 1e-9)) return;
+    const std::string span =
+        from > 0.0 ? fmt::format("stop={:g} s with record-from={:g} s records", stop, from)
+                   : fmt::format("stop={:g} s covers", stop);
     error(last->where,
-          fmt::format("stop={:g} s covers {:.3g} cycles of '{}' ({:g} Hz), and the supply report "
+          fmt::format("{} {:.3g} cycles of '{}' ({:g} Hz), and the supply report "
                       "needs at least {}: it measures whole cycles at the end of the run and "
                       "tells whether the output has settled by comparing their means; give "
                       "stop={:g} s or more (a supply started cold usually needs longer), or "
                       "leave out the output statement to record without a report",
-                      stop, cycles, source, f, SupplyReport::kSettleCycles,
-                      SupplyReport::kSettleCycles / f));
+                      span, cycles, source, f, SupplyReport::kSettleCycles,
+                      from + SupplyReport::kSettleCycles / f));
   }
 
  public:
@@ -1526,7 +1534,10 @@ Netlist parseWith(const std::string& text, const std::string& name, IncludePolic
   // Before the checks: a raised step budget is what lets a long run through them.
   b.override(overrides);
   b.topology();
-  if (b.defaultAnalysis()) b.override(overrides);
+  if (b.defaultAnalysis()) {
+    b.override(overrides);
+    b.defaultReportLength();
+  }
   if (!diags.empty()) throw NetlistError(diags.list());
   return nl;
 }
