@@ -411,7 +411,8 @@ int main(int argc, char** argv) {
   ExampleArgs ex;
   auto* example = app.add_subcommand("example", "Run a reference circuit built into the library");
   example->add_option("name", ex.name, "Reference circuit (or 'list')")->required();
-  example->add_option("--method", ex.method, "Integration method: trapezoidal, bdf2 or ida")
+  example
+      ->add_option("--method", ex.method, "Integration method: trapezoidal, bdf2, tr-bdf2 or ida")
       ->check(
           [](const std::string& v) {
             try {

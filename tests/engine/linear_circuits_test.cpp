@@ -37,7 +37,7 @@ Waveform step(double v) {
 }  // namespace
 
 TEST_CASE("RC step response matches v = V (1 - exp(-t/RC))", "[engine][linear]") {
-  for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::Ida}) {
+  for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::TrBdf2, Method::Ida}) {
     Circuit c;
     c.emplace<VoltageSource>("V1", c.node("in"), kGround, step(10.0));
     c.emplace<Resistor>("R1", c.node("in"), c.node("out"), 1e3);
@@ -52,7 +52,7 @@ TEST_CASE("RC step response matches v = V (1 - exp(-t/RC))", "[engine][linear]")
 }
 
 TEST_CASE("RL step response matches i = V/R (1 - exp(-t R/L))", "[engine][linear]") {
-  for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::Ida}) {
+  for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::TrBdf2, Method::Ida}) {
     Circuit c;
     c.emplace<VoltageSource>("V1", c.node("in"), kGround, step(10.0));
     c.emplace<Resistor>("R1", c.node("in"), c.node("mid"), 10.0);
@@ -77,7 +77,7 @@ TEST_CASE("Series RLC step response, under- and over-damped", "[engine][linear]"
       const double d = std::sqrt(a * a - w0 * w0), s1 = -a + d, s2 = -a - d;
       return 1.0 + (s2 * std::exp(s1 * t) - s1 * std::exp(s2 * t)) / (s1 - s2);
     };
-    for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::Ida}) {
+    for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::TrBdf2, Method::Ida}) {
       Circuit c;
       c.emplace<VoltageSource>("V1", c.node("in"), kGround, step(1.0));
       c.emplace<Resistor>("R1", c.node("in"), c.node("a"), R);

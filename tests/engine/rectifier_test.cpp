@@ -47,7 +47,7 @@ TEST_CASE("Half-wave RC rectifier matches Hart's turn-off and turn-on angles",
   CHECK(h3300.ripple == Approx(1.667).margin(0.001));
 
   for (double C : {100e-6, 3300e-6}) {
-    for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::Ida}) {
+    for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::TrBdf2, Method::Ida}) {
       reference::HalfWaveRc spec;
       spec.capacitance = C;
       Circuit c = reference::halfWaveRc(spec);
@@ -87,7 +87,7 @@ TEST_CASE("Energy balance over a bridge-supply switch-on", "[engine][energy]") {
   reference::BridgeSupply spec;
   spec.mainsResistance = 0.0;
   Circuit c = reference::bridgeSupply(spec);
-  for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::Ida}) {
+  for (Method m : {Method::Trapezoidal, Method::Bdf2, Method::TrBdf2, Method::Ida}) {
     TransientOptions o;
     o.stop = 0.1;
     o.method = m;

@@ -334,7 +334,8 @@ TEST_CASE("The names of the naming pass, and each old spelling an error naming t
   CHECK(std::string(methodName(Method::Trapezoidal)) == "trapezoidal");
   expectError(kOk + "run transient stop=1ms method=trap\n", 3, 31,
               "method 'trap' is now called 'trapezoidal'");
-  expectError(kOk + "run transient stop=1ms method=euler\n", 3, 31, "use trapezoidal, bdf2 or ida");
+  expectError(kOk + "run transient stop=1ms method=euler\n", 3, 31,
+              "use trapezoidal, bdf2, tr-bdf2 or ida");
   CHECK_THROWS_WITH(parseMethod("trap"), Contains("now called 'trapezoidal'"));
 
   // reference-temp on the diode, as on the thermistor; nominal-temperature is the old name.

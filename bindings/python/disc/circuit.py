@@ -346,8 +346,8 @@ class Circuit:
     def run_transient(self, stop, record=None, method="trapezoidal", start="cold", max_step=0.0,
                       reltol=0.0, abstol=0.0, temperature_abstol=0.0, progress=None,
                       record_from=0.0, record_spacing=0.0, csv=None, max_steps=0):
-        """Transient from 0 to stop (s). method: 'trapezoidal', 'bdf2' or 'ida'; start: 'cold' or
-        'operating-point'; reltol (default 1e-3), abstol (volts and amperes, default 1e-6) and
+        """Transient from 0 to stop (s). method: 'trapezoidal', 'bdf2', 'tr-bdf2' or 'ida';
+        start: 'cold' or 'operating-point'; reltol (default 1e-3), abstol (volts and amperes, default 1e-6) and
         temperature_abstol (kelvin, default 1e-4), 0 for the defaults. The run works on a copy
         of the circuit taken at the call and releases the GIL; Ctrl-C stops it. progress(time,
         stop), if given, is called at most every 0.1 s of wall time; returning False cancels the

@@ -37,7 +37,8 @@ struct OperatingPointOptions {
 enum class Method {
   Trapezoidal,  ///< trapezoidal rule, second order, A-stable
   Bdf2,         ///< variable-step BDF2 (Gear order 2), L-stable
-  Ida           ///< SUNDIALS IDA: variable-order BDF with KLU
+  Ida,          ///< SUNDIALS IDA: variable-order BDF with KLU
+  TrBdf2        ///< TR-BDF2 (trapezoidal stage, then BDF2 stage), second order, L-stable
 };
 
 /// How the transient starts.
@@ -115,7 +116,8 @@ StepEstimate estimateSteps(const Circuit& circuit, const TransientOptions& optio
 void checkStepBudget(const Circuit& circuit, const TransientOptions& options);
 
 const char* methodName(Method m);
-/// Parses "trapezoidal", "bdf2" or "ida"; throws InputError otherwise ("trap" with the new name).
+/// Parses "trapezoidal", "bdf2", "tr-bdf2" or "ida"; throws InputError otherwise ("trap" with the
+/// new name).
 Method parseMethod(const std::string& name);
 
 }  // namespace disc

@@ -1,5 +1,5 @@
-// Trapezoidal rule and variable-step BDF2 on the charge-oriented system, with local truncation
-// error control on the charges, breakpoints and step rejection.
+// Trapezoidal rule, variable-step BDF2 and TR-BDF2 on the charge-oriented system, with local
+// truncation error control, breakpoints and step rejection.
 //
 // Each step solves i(x) + qdot(x) = 0 with qdot = a0 q + h, where (a0, h) come from the method:
 //   backward Euler (restarts): a0 = 1/dt,            h = -q_n / dt
@@ -8,10 +8,22 @@
 // The truncation error is estimated from divided differences of q over the last points:
 // trapezoidal dt^3 q'''/12, BDF2 (2/9) dt^3 q''' (constant-step error constants), and dt^2 q''/2
 // when fewer points exist (right after a restart).
+//
+// TR-BDF2 (R. E. Bank et al., "Transient simulation of silicon devices and circuits", IEEE
+// Trans. CAD 4(4), 1985; M. E. Hosea and L. F. Shampine, "Analysis and implementation of
+// TR-BDF2", Appl. Numer. Math. 20, 1996): each step of size dt is a trapezoidal stage to
+// t + g dt, then a BDF2 stage on (t, t + g dt, t + dt), g = 2 - sqrt(2), for which both stages
+// have the same a0 = 2/(g dt) (one Jacobian). One-step, second order and L-stable: a stiff mode
+// (a junction switching on) is damped within the step instead of ringing at -1 per step as
+// under the trapezoidal rule. Its local error k dt^3 q''', k = (-3g^2 + 4g - 2)/(12(2 - g)),
+// is estimated from the second divided difference of qdot over the three points (Bank et al.)
+// and filtered by (G + a0 C)^-1 a0 into the unknowns, as Hosea and Shampine do, so a stiff mode
+// that the BDF2 stage damps does not hold the step down.
 #include <fmt/format.h>
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <numbers>
 
 #include "disc/error.hpp"
 #include "newton.hpp"
@@ -20,12 +32,17 @@
 namespace disc::detail {
 namespace {
 
-enum class Formula { Euler, Trap, Bdf2 };
+enum class Formula { Euler, Trap, Bdf2, TrBdf2 };
 
 struct Coefficients {
   double a0 = 0, a1 = 0, a2 = 0;  // qdot_new = a0 q_new + a1 q_n + a2 q_{n-1} (+ b qdot_n)
   double b = 0;
 };
+
+/// TR-BDF2's stage split: the trapezoidal stage covers kGamma of the step.
+constexpr double kGamma = 2.0 - std::numbers::sqrt2;
+/// Its local error constant (Bank et al.; Hosea and Shampine): LTE = kLte dt^3 q'''.
+constexpr double kLte = (-3.0 * kGamma * kGamma + 4.0 * kGamma - 2.0) / (12.0 * (2.0 - kGamma));
 
 Coefficients coefficients(Formula f, double h, double hPrev) {
   Coefficients c;
@@ -39,6 +56,7 @@ Coefficients coefficients(Formula f, double h, double hPrev) {
       c.a1 = -2.0 / h;
       c.b = -1.0;
       break;
+    case Formula::TrBdf2:  // the second stage's, set up in integrateStepping
     case Formula::Bdf2: {
       const double w = h / hPrev;
       c.a0 = (1.0 + 2.0 * w) / (h * (1.0 + w));
@@ -110,6 +128,10 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
   std::array<double, 4> xTimes{};
   int xPoints = 1;
   std::vector<double> qdot(N, 0.0), qNew(N, 0.0), xdotNew(N, 0.0), qScale(N, 0.0);
+  // TR-BDF2: the trapezoidal stage's unknowns, charges, their slope and history terms; the
+  // largest magnitude each unknown has reached (its error scale).
+  std::vector<double> xGamma(N, 0.0), qGamma(N, 0.0), qdotGamma(N, 0.0), histGamma(N, 0.0),
+      xScale(N, 0.0);
   EvalContext ctx;
   ctx.x = x.data();
   ctx.xdot = xdot.data();
@@ -199,24 +221,25 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       hitsBreak = true;
     }
     const Formula f = restart ? Formula::Euler
-                              : (o.method == Method::Bdf2 && history.count >= 2 ? Formula::Bdf2
-                                 : o.method == Method::Bdf2                     ? Formula::Euler
-                                                                                : Formula::Trap);
-    const Coefficients c = coefficients(f, h, hPrev);
+                      : o.method == Method::TrBdf2
+                          ? Formula::TrBdf2
+                          : (o.method == Method::Bdf2 && history.count >= 2 ? Formula::Bdf2
+                             : o.method == Method::Bdf2                     ? Formula::Euler
+                                                                            : Formula::Trap);
+    // TR-BDF2's second stage is a BDF2 step of (1 - g) dt after one of g dt.
+    const Coefficients c = f == Formula::TrBdf2
+                               ? coefficients(Formula::Bdf2, (1.0 - kGamma) * h, kGamma * h)
+                               : coefficients(f, h, hPrev);
     const std::vector<double>& qn = history.q[0];
-    for (std::size_t k = 0; k < N; ++k) {
-      hist[k] = c.a1 * qn[k] + c.b * qdot[k];
-      if (c.a2 != 0.0) hist[k] += c.a2 * history.q[1][k];
-    }
-    xNew = x;
-    if (!restart && xPoints >= 2) {
-      // The first Newton iterate extrapolates the last accepted points (Lagrange form): four
-      // points, a cubic, one order above the methods', as BDF codes predict, so at tight
-      // tolerances the first iterate is often already within tolerance (11 % fewer iterations
-      // on the Shockley bridge at reltol 3e-8; neutral at 1e-3); after a breakpoint, as many as
-      // it has (a straight line, then a parabola).
+    // The first Newton iterate extrapolates the last accepted points (Lagrange form): four
+    // points, a cubic, one order above the methods', as BDF codes predict, so at tight
+    // tolerances the first iterate is often already within tolerance (11 % fewer iterations
+    // on the Shockley bridge at reltol 3e-8; neutral at 1e-3); after a breakpoint, as many as
+    // it has (a straight line, then a parabola).
+    auto predict = [&](double tau, std::vector<double>& into) {
+      into = x;
+      if (restart || xPoints < 2) return;
       const std::size_t m = static_cast<std::size_t>(xPoints);
-      const double tau = t + h;
       std::array<double, 4> w{};  // zero beyond the m points
       for (std::size_t a = 0; a < m; ++a) {
         double num = 1.0, den = 1.0;  // one division per weight
@@ -229,31 +252,60 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
       }
       for (int k = 0; k < n; ++k) {
         const auto uk = static_cast<std::size_t>(k);
-        xNew[uk] = w[0] * x[uk] + w[1] * xPrev[uk] + w[2] * xPrev2[uk] + w[3] * xPrev3[uk];
+        into[uk] = w[0] * x[uk] + w[1] * xPrev[uk] + w[2] * xPrev2[uk] + w[3] * xPrev3[uk];
       }
+    };
+    auto solve = [&](std::vector<double>& xs, double a0, const double* history) {
+      const NewtonOutcome out = solveNewton(sys, ls, xs, ctx, a0, history, ns, stats);
+      // Factors kept from the previous step make the first iteration a chord step, which is
+      // never accepted alone; fresh factors let an exact first step end the solve (the
+      // second-order test). So: fresh factors while first updates are that small (tight
+      // tolerances, smooth stretches), kept factors otherwise (they also carry a long chain of
+      // junctions in reverse bias, whose weakest mode a fresh factorisation at a long step can
+      // lose).
+      ns.reuseAcrossSolves = !(out.converged && out.firstUpdateQuadratic);
+      if (!out.converged) {
+        ++stats.rejectedSteps;
+        h /= 8.0;
+        if (h < hmin)
+          throw TimeStepError(
+              fmt::format("time step too small at t = {:.9g} s: Newton did not converge even "
+                          "with a {:.3g} s step; the worst equation is {} (residual {:.3g}). "
+                          "Look for a device driven far outside its range or an unrealistic "
+                          "ideal element",
+                          t, h * 8.0, sys.describe(out.worstRow), out.worstResidual),
+              t, out.worstRow >= 0 ? sys.unknownName(out.worstRow) : "");
+      }
+      return out.converged;
+    };
+    if (f == Formula::TrBdf2) {
+      // The trapezoidal stage to t + g dt (never a breakpoint: the step ends at one at most).
+      const Coefficients c1 = coefficients(Formula::Trap, kGamma * h, 0.0);
+      for (std::size_t k = 0; k < N; ++k) histGamma[k] = c1.a1 * qn[k] + c1.b * qdot[k];
+      predict(t + kGamma * h, xGamma);
+      ctx.time = t + kGamma * h;
+      if (!solve(xGamma, c1.a0, histGamma.data())) continue;
+      qGamma.swap(sys.q);  // the next evaluation overwrites sys.q entirely
+      for (std::size_t k = 0; k < N; ++k) {
+        qdotGamma[k] = c1.a0 * qGamma[k] + histGamma[k];
+        hist[k] = c.a1 * qGamma[k] + c.a2 * qn[k];
+      }
+      // The BDF2 stage starts from the line through x and the stage's unknowns.
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        xNew[uk] = x[uk] + (xGamma[uk] - x[uk]) / kGamma;
+      }
+    } else {
+      for (std::size_t k = 0; k < N; ++k) {
+        hist[k] = c.a1 * qn[k] + c.b * qdot[k];
+        if (c.a2 != 0.0) hist[k] += c.a2 * history.q[1][k];
+      }
+      predict(t + h, xNew);
     }
     // A step that lands on a breakpoint sees the excitation's left limit there (a source
     // switched on at tb is still off); the right limit follows at the restart below.
     ctx.time = hitsBreak ? std::nextafter(tb, 0.0) : t + h;
-    const NewtonOutcome out = solveNewton(sys, ls, xNew, ctx, c.a0, hist.data(), ns, stats);
-    // Factors kept from the previous step make the first iteration a chord step, which is never
-    // accepted alone; fresh factors let an exact first step end the solve (the second-order
-    // test). So: fresh factors while first updates are that small (tight tolerances, smooth
-    // stretches), kept factors otherwise (they also carry a long chain of junctions in
-    // reverse bias, whose weakest mode a fresh factorisation at a long step can lose).
-    ns.reuseAcrossSolves = !(out.converged && out.firstUpdateQuadratic);
-    if (!out.converged) {
-      ++stats.rejectedSteps;
-      h /= 8.0;
-      if (h < hmin)
-        throw TimeStepError(
-            fmt::format("time step too small at t = {:.9g} s: Newton did not converge even with "
-                        "a {:.3g} s step; the worst equation is {} (residual {:.3g}). Look for a "
-                        "device driven far outside its range or an unrealistic ideal element",
-                        t, h * 8.0, sys.describe(out.worstRow), out.worstResidual),
-            t, out.worstRow >= 0 ? sys.unknownName(out.worstRow) : "");
-      continue;
-    }
+    if (!solve(xNew, c.a0, hist.data())) continue;
     qNew.swap(sys.q);  // the next evaluation overwrites sys.q entirely
 
     // Truncation error on the charges, from divided differences including the new point.
@@ -300,6 +352,30 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
             o.tol.reltol * std::max(std::abs(xNew[uk]), std::abs(x[uk])) + abstol[uk];
         rowTolerance(uk, qNew[uk]);  // keeps the rows' charge scales up to date
         const double ratio = err / tol;
+        if (ratio > errNorm) {
+          errNorm = ratio;
+          worst = k;
+        }
+      }
+    } else if (f == Formula::TrBdf2) {
+      // LTE = kLte dt^3 q''' with q''' from the second divided difference of qdot over t,
+      // t + g dt and t + dt, filtered into the unknowns by (G + a0 C)^-1 a0 (the matrix of the
+      // Newton solves): slow modes pass, stiff ones that the BDF2 stage damps are scaled down.
+      order = 2;
+      const double s = 2.0 * kLte * h * c.a0;
+      for (std::size_t k = 0; k < N; ++k) {
+        const double qdotNew = c.a0 * qNew[k] + hist[k];
+        filtered[k] = s * (qdot[k] / kGamma - qdotGamma[k] / (kGamma * (1.0 - kGamma)) +
+                           qdotNew / (1.0 - kGamma));
+      }
+      ls.solve(filtered.data(), n);
+      for (int k = 0; k < n; ++k) {
+        const auto uk = static_cast<std::size_t>(k);
+        const double err = std::abs(filtered[uk]);
+        if (err == 0.0) continue;
+        // Relative to the largest magnitude the unknown has held, as the charges' scale above.
+        const double scale = std::max({xScale[uk], std::abs(xNew[uk]), std::abs(x[uk])});
+        const double ratio = err / (o.tol.reltol * scale + abstol[uk]);
         if (ratio > errNorm) {
           errNorm = ratio;
           worst = k;
@@ -388,8 +464,14 @@ void integrateStepping(System& sys, LinearSolver& ls, const TransientOptions& o,
     firstTries = 0;
     for (std::size_t k = 0; k < N; ++k) {
       qdot[k] = c.a0 * qNew[k] + hist[k];
-      double xd = c.a0 * xNew[k] + c.a1 * x[k] + c.b * xdot[k];
-      if (c.a2 != 0.0) xd += c.a2 * xPrev[k];
+      double xd;
+      if (f == Formula::TrBdf2) {
+        xd = c.a0 * xNew[k] + c.a1 * xGamma[k] + c.a2 * x[k];
+        xScale[k] = std::max(xScale[k], std::abs(xNew[k]));
+      } else {
+        xd = c.a0 * xNew[k] + c.a1 * x[k] + c.b * xdot[k];
+        if (c.a2 != 0.0) xd += c.a2 * xPrev[k];
+      }
       xdotNew[k] = xd;
     }
     xPrev3.swap(xPrev2);

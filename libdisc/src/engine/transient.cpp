@@ -21,6 +21,8 @@ const char* methodName(Method m) {
       return "bdf2";
     case Method::Ida:
       return "ida";
+    case Method::TrBdf2:
+      return "tr-bdf2";
   }
   return "?";
 }
@@ -29,10 +31,11 @@ Method parseMethod(const std::string& name) {
   if (name == "trapezoidal") return Method::Trapezoidal;
   if (name == "bdf2") return Method::Bdf2;
   if (name == "ida") return Method::Ida;
+  if (name == "tr-bdf2") return Method::TrBdf2;
   if (name == "trap")
     throw InputError("method 'trap' is now called 'trapezoidal' (the trapezoidal rule)");
   throw InputError(
-      fmt::format("unknown integration method '{}': use trapezoidal, bdf2 or ida", name));
+      fmt::format("unknown integration method '{}': use trapezoidal, bdf2, tr-bdf2 or ida", name));
 }
 
 void TransientOptions::validate() const {
