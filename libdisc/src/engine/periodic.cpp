@@ -222,9 +222,11 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
   // extrapolated linearly (near a switching the last orbit knows where the junction turns,
   // which extrapolating this pass's own points does not).
   const bool follow = !adaptive && path_.size() == (grid_.size() + 1) * N;
-  std::vector<double> newPath;
+  std::vector<double> newPath, newTimes;
   newPath.reserve(follow ? path_.size() : N);
+  newTimes.reserve(follow ? pathTime_.size() : 1);
   newPath.insert(newPath.end(), x.begin(), x.end());
+  newTimes.push_back(0.0);
   double t = 0.0, hPrev = 0.0;
   double h = adaptive ? std::min(hmax, period_ * 1e-4) : 0.0;
   std::size_t gridAt = 0, nextBreak = 0;
@@ -386,6 +388,7 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
     ++stats.acceptedSteps;
     if (adaptive) newGrid.push_back(h);
     newPath.insert(newPath.end(), x.begin(), x.end());
+    newTimes.push_back(t);
     ++gridAt;
     ctx.x = x.data();
     ctx.time = t0_ + t;
@@ -397,6 +400,8 @@ PeriodicSolver::Pass PeriodicSolver::integrate(std::vector<double>& x, bool adap
   }
   if (adaptive) grid_ = std::move(newGrid);
   path_ = std::move(newPath);
+  pathTime_ = std::move(newTimes);
+  pathSlowTime_ = slowTime;
   if (sens) S_ = std::move(S);
   pass.ok = true;
   return pass;
@@ -423,11 +428,8 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
     const std::vector<double> z0 = x;
     const bool sens = !chord;
     const bool sameGrid = !adaptive && lastFixed;
-    // A pass that follows an update within a few tolerances, or the first from a warm start,
-    // usually settles: record it, so that the settled period need not be integrated once more.
-    Recorder* recThis = rec && (lastNorm <= 4.0 || (it == 0 && solved_)) ? rec : nullptr;
-    if (recThis) recThis->clear();
-    const Pass pass = integrate(x, adaptive, slowTime, recThis, stats, sens);
+    // Passes are not recorded as they run: the settled one is recorded from its kept path.
+    const Pass pass = integrate(x, adaptive, slowTime, nullptr, stats, sens);
     ++ps.periodIntegrations;
     // A fixed grid whose error estimate along this orbit exceeds the tolerance is stale. From
     // another circuit's orbit (no Jacobian needed) its pass still gives the chord update, as
@@ -471,9 +473,9 @@ void PeriodicSolver::solve(std::vector<double>& x, double slowTime, Recorder* re
       x = z0;
       finish(out, sens);
       ps.stepsPerPeriod = static_cast<int>(grid_.size());
-      if (rec && !recThis) {
-        rec->clear();  // what an earlier, unsettled pass recorded
-        recordPeriod(x, slowTime, *rec, stats);
+      if (rec) {
+        rec->clear();
+        replayPath(*rec);
       }
       solved_ = true;
       return;
@@ -566,12 +568,33 @@ void PeriodicSolver::throwNeutralMode() const {
 
 void PeriodicSolver::recordPeriod(const std::vector<double>& x, double slowTime, Recorder& rec,
                                   RunStats& stats) {
+  // The settled pass from x, when it is the last one kept, is the period: its points are
+  // recorded as they were found (the probes read only the unknowns and the clocks).
+  const std::size_t N = static_cast<std::size_t>(sys_.size()) + 1;
+  if (slowTime == pathSlowTime_ && !pathTime_.empty() && path_.size() == pathTime_.size() * N &&
+      x.size() == N && std::equal(x.begin(), x.end(), path_.begin())) {
+    replayPath(rec);
+    return;
+  }
   std::vector<double> xr = x;
   if (!integrate(xr, false, slowTime, &rec, stats, false).ok)
     throw ConvergenceError(
         "periodic: the settled period could not be integrated again on its "
         "own step grid",
         "", 0.0);
+}
+
+void PeriodicSolver::replayPath(Recorder& rec) const {
+  const std::size_t N = static_cast<std::size_t>(sys_.size()) + 1;
+  std::vector<double> xdot(N, 0.0);  // as in integrate(): the probes see no derivatives
+  EvalContext ctx;
+  ctx.xdot = xdot.data();
+  ctx.slowTime = pathSlowTime_;
+  for (std::size_t k = 0; k < pathTime_.size(); ++k) {
+    ctx.x = path_.data() + k * N;
+    ctx.time = t0_ + pathTime_[k];
+    rec.record(ctx);
+  }
 }
 
 std::shared_ptr<const PeriodicOrbit> PeriodicSolver::orbit(const std::vector<double>& x) const {

@@ -87,6 +87,8 @@ class PeriodicSolver {
   Pass integrate(std::vector<double>& x, bool adaptive, double slowTime, Recorder* rec,
                  RunStats& stats, bool averages);
   void finish(PeriodSolution& out, bool sens);
+  /// Records the last completed pass from its kept points.
+  void replayPath(Recorder& rec) const;
   [[noreturn]] void throwNeutralMode() const;
   double weightedNorm(const Eigen::VectorXd& d, const std::vector<double>& x) const;
 
@@ -97,8 +99,10 @@ class PeriodicSolver {
   std::vector<int> slow_;    // frozen unknowns
   std::vector<int> states_;  // fast unknowns with a charge (the shooting variables)
   std::vector<double> abstol_;
-  std::vector<double> grid_;  // accepted step sizes of the last adaptive pass
-  std::vector<double> path_;  // accepted points of the last completed pass on grid_ (or empty)
+  std::vector<double> grid_;      // accepted step sizes of the last adaptive pass
+  std::vector<double> path_;      // accepted points of the last completed pass on grid_ (or empty)
+  std::vector<double> pathTime_;  // their times from the period's start
+  double pathSlowTime_ = 0.0;     // the slow clock of that pass
   bool solved_ = false;
   bool statesKnown_ = false;
   bool haveMonodromy_ = false;
