@@ -236,11 +236,11 @@ TEST_CASE("A campaign's table is the same on 1 thread, 2 and every core, in any 
 }
 
 TEST_CASE("A variant that cannot be simulated is a row that says why", "[campaign]") {
-  // The tolerance's draws include a resistance the source cannot drive: here a grid value of 0
-  // is rejected by the resistor, in that variant only.
+  // A grid value inside the range of physical sense that the device's own rule refuses: a
+  // switch closed through more than its open resistance (1 Gohm), in that variant only.
   const Netlist nl = parseNetlist(
-      "voltage VS a gnd dc=10V\nresistor R1 a gnd 1k\nrecord i:R1\nrun operating-point\n"
-      "vary R1 resistance 1k -5 2k\n");
+      "voltage VS a gnd dc=10V\nswitch R1 a gnd open=1s on-resistance=1k\nrecord i:R1\n"
+      "run operating-point\nvary R1 on-resistance 1k 2e9 2k\n");
   const CampaignTable t = runCampaign(nl, nl.campaign, {});
   REQUIRE(t.rows() == 3);
   CHECK(t["status"].words[0] == "ok");

@@ -561,3 +561,102 @@ TEST_CASE("A transient shorter than its report needs is refused at its run state
   CHECK_NOTHROW(loadNetlist(path.string(), IncludePolicy::Trusted, late));
   std::filesystem::remove(path);
 }
+
+TEST_CASE("Values outside their range of physical sense are refused at their place",
+          "[netlist][parser][ranges]") {
+  // The ranges sit in each device's parameter table (docs/netlist.md "Ranges of physical
+  // sense"); each refusal names the value and the range.
+  expectError(kOk + "resistor R2 a gnd 1e-300\n", 3, 19,
+              "R2: resistance 1e-300 ohm is outside 1e-06 to 1e+12 ohm, the range of physical "
+              "sense for a resistor");
+  expectError(kOk + "resistor R2 a gnd 1e15\n", 3, 19, "outside 1e-06 to 1e+12 ohm");
+  expectError(kOk + "capacitor C1 a gnd 100F\n", 3, 20, "outside 1e-15 to 10 F");
+  expectError(kOk + "inductor L1 a gnd 20kH\n", 3, 19, "outside 1e-12 to 10000 H");
+  expectError(kOk + "voltage V2 b gnd sine rms=1V frequency=10MHz resistance=1ohm\n", 3, 30,
+              "frequency 1e+07 Hz is outside 0.01 to 1e+06 Hz");
+  expectError(kOk + "voltage V2 b gnd dc=2MV resistance=1ohm\n", 3, 18,
+              "dc 2e+06 V is outside -1e+06 to 1e+06 V");
+  expectError(kOk + "diode D1 a gnd temperature=5K\n", 3, 16,
+              "temperature 5 K is outside 150 to 600 K (or 0 for the default)");
+  expectError(kOk + "stack SR1 a b type=se-25mm-36v stored-temp=1000K\nresistor R2 b gnd 1k\n", 3,
+              32, "stored-temp 1000 K is outside 200 to 450 K (or 0 for the default)");
+  expectError(kOk + "transformer T1 a gnd b gnd ratio=1e5\nresistor R2 b gnd 1k\n", 3, 28,
+              "ratio 100000 is outside 0.001 to 1000");
+  // A vary value outside the range is refused at its statement, before any variant runs.
+  expectError(kOk + "vary R1 resistance 1k 1e-9\n", 3, 1, "resistance 1e-09 ohm is outside");
+  // The edges of a range, and 0 where it stands for a default, are accepted.
+  CHECK_NOTHROW(parseNetlist(kOk + "resistor R2 a gnd 1e12\ndiode D1 a gnd temperature=0K\n"
+                                   "capacitor C1 b gnd 10F\nresistor R3 a b 1e-6\n",
+                             "t.disc"));
+}
+
+TEST_CASE("setParameter refuses a value outside the table's range", "[devices][ranges]") {
+  // The same table serves setParameter (the Python module's set_parameter and campaigns).
+  Resistor r("R1", 0, kGround, 1000.0);
+  CHECK_THROWS_WITH(r.setParameter("resistance", 1e-300),
+                    Contains("R1: resistance 1e-300 ohm is outside 1e-06 to 1e+12 ohm"));
+  CHECK(r.resistance() == 1000.0);
+  CHECK_NOTHROW(r.setParameter("resistance", 1e-6));
+  VoltageSource v("V1", 0, kGround, Waveform::sineRms(230.0, 50.0));
+  CHECK_THROWS_WITH(v.setParameter("frequency", 1e9), Contains("outside 0.01 to 1e+06 Hz"));
+  CHECK(v.waveform().frequency() == 50.0);
+}
+
+TEST_CASE("Every kind's table refuses a value outside its range, at the value",
+          "[netlist][parser][ranges]") {
+  // One statement per kind that had no range before (docs/netlist.md "Ranges of physical
+  // sense"): the diagnostic sits at the parameter and names the value and the range.
+  struct Case {
+    std::string line, key, range;
+  };
+  const std::vector<Case> cases = {
+      {"current I1 a gnd dc=1MA", "dc=", "dc 1e+06 A is outside -10000 to 10000 A"},
+      {"current I1 a gnd sine amplitude=1mA frequency=1GHz",
+       "frequency=", "frequency 1e+09 Hz is outside 0.01 to 1e+06 Hz"},
+      {"lamp LP1 a gnd rated-power=1MW rated-voltage=230V",
+       "rated-power=", "rated-power 1e+06 W is outside 0.001 to 100000 W"},
+      {"lamp LP1 a gnd rated-power=60W rated-voltage=230V filament-temp=100K",
+       "filament-temp=", "filament-temp 100 K is outside 500 to 3600 K"},
+      {"valve-load VL1 a gnd rated-current=1kA rated-voltage=250V",
+       "rated-current=", "rated-current 1000 A is outside 1e-06 to 100 A"},
+      {"valve-load VL1 a gnd rated-current=60mA rated-voltage=250V warm-up=1e6s",
+       "warm-up=", "warm-up 1e+06 s is outside 0.001 to 3600 s"},
+      {"electrolytic C9 a gnd capacitance=100F rated-voltage=450V",
+       "capacitance=", "capacitance 100 F is outside 1e-08 to 10 F"},
+      {"electrolytic C9 a gnd capacitance=50uF rated-voltage=450V esr=1e-9ohm",
+       "esr=", "esr 1e-09 ohm is outside 0.0001 to 10000 ohm"},
+      {"switch S1 a b close=1s on-resistance=1e-9ohm",
+       "on-resistance=", "on-resistance 1e-09 ohm is outside 1e-06 to 1e+12 ohm"},
+      {"switch S1 a b close=1s off-resistance=1e15ohm",
+       "off-resistance=", "off-resistance 1e+15 ohm is outside 1e-06 to 1e+12 ohm"},
+      {"thermistor TH1 a b resistance=1e12ohm b-constant=3000K",
+       "resistance=", "resistance 1e+12 ohm is outside 0.001 to 1e+09 ohm"},
+      {"diode D1 a gnd saturation-current=10A",
+       "saturation-current=", "saturation-current 10 A is outside 1e-30 to 1 A"},
+      {"stack SR1 a b type=se-25mm-36v cooling=1e7",
+       "cooling=", "cooling 1e+07 is outside 0.01 to 1e+06"},
+  };
+  for (const Case& c : cases) {
+    const int column = static_cast<int>(c.line.find(c.key)) + 1;
+    expectError(kOk + c.line + "\nresistor R2 b gnd 1k\n", 3, column, c.range);
+  }
+  // The heat network's tables too.
+  expectError(kOk + "heat-node HS1 capacity=1e12J/K to-ambient=1K/W\n", 3, 15,
+              "capacity 1e+12 J/K is outside 0.001 to 1e+08 J/K");
+  expectError(kOk +
+                  "heat-node HS1 capacity=100J/K to-ambient=1K/W\nheat-path HP1 HS1 ambient "
+                  "1e-9K/W\n",
+              4, 27, "resistance 1e-09 K/W is outside 0.0001 to 10000 K/W");
+  // A switch's resistances stay checked together, by the table's setter as by the parser.
+  Switch s("S1", 0, kGround, false, {1.0});
+  CHECK_THROWS_WITH(s.setParameter("off-resistance", 1e-4),
+                    Contains("open resistance must exceed closed resistance"));
+  CHECK(s.offResistance() == 1e9);
+  s.setParameter("on-resistance", 0.5);
+  CHECK(s.onResistance() == 0.5);
+  // A current source's waveform through its table.
+  CurrentSource i("I1", 0, kGround, Waveform::sineRms(1.0, 50.0));
+  CHECK_THROWS_WITH(i.setParameter("rms", 1e5), Contains("rms 100000 A is outside"));
+  i.setParameter("frequency", 60.0);
+  CHECK(i.waveform().frequency() == 60.0);
+}

@@ -130,6 +130,21 @@ struct DeviceParameter {
   std::string unit;
   /// Earlier names of the parameter: giving one is an error whose hint names this entry.
   std::vector<std::string> retired;
+  /// The range of physical sense (docs/netlist.md "Ranges of physical sense"): a value outside
+  /// it is refused where it is given, by the parser, setParameter and the Python module alike.
+  double lowest = -std::numeric_limits<double>::infinity();
+  double highest = std::numeric_limits<double>::infinity();
+  bool zeroToo = false;  ///< 0 is accepted as well: it stands for a default (ambient, ...)
+  /// This entry with the range [lo, hi] (and 0, when `zero`).
+  DeviceParameter within(double lo, double hi, bool zero = false) && {
+    lowest = lo;
+    highest = hi;
+    zeroToo = zero;
+    return std::move(*this);
+  }
+  bool inRange(double v) const;
+  /// Throws InputError naming the device, the value and the range when v lies outside it.
+  void checkRange(const Device& d, double v) const;
 };
 
 /// ": 'is' is now called 'saturation-current' (in A)" when `name` is a retired name of an entry

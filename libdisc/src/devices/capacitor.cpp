@@ -16,8 +16,10 @@ void Capacitor::setCapacitance(double farad) {
 }
 
 const std::vector<DeviceParameter>& Capacitor::parameterTable() const {
-  static const std::vector<DeviceParameter> t = {parameterOf<Capacitor>(
-      "capacitance", &Capacitor::capacitance, &Capacitor::setCapacitance, "F")};
+  static const std::vector<DeviceParameter> t = {
+      parameterOf<Capacitor>("capacitance", &Capacitor::capacitance, &Capacitor::setCapacitance,
+                             "F")
+          .within(1e-15, 10.0)};
   return t;
 }
 

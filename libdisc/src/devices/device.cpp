@@ -55,6 +55,20 @@ const DeviceParameter& lookup(const Device& d, const std::string& name) {
 }
 }  // namespace
 
+bool DeviceParameter::inRange(double v) const {
+  return (v >= lowest && v <= highest) || (zeroToo && v == 0.0);
+}
+
+void DeviceParameter::checkRange(const Device& d, double v) const {
+  if (inRange(v)) return;
+  const std::string u = unit.empty() ? "" : " " + unit;
+  throw InputError(
+      fmt::format("{}: {} {:g}{} is outside {:g} to {:g}{}{}, the range of physical "
+                  "sense for a {} (docs/netlist.md, \"Ranges of physical sense\")",
+                  d.name(), name, v, u, lowest, highest, u,
+                  zeroToo ? " (or 0 for the default)" : "", d.kind()));
+}
+
 double Device::parameter(const std::string& name) const {
   return lookup(*this, name).get(*this);
 }
@@ -62,7 +76,14 @@ double Device::parameter(const std::string& name) const {
 void Device::setParameter(const std::string& name, double value) {
   if (!std::isfinite(value))
     throw InputError(fmt::format("{}: parameter '{}' must be finite", name_, name));
-  lookup(*this, name).set(*this, value);
+  const DeviceParameter& p = lookup(*this, name);
+  if (!p.inRange(value)) {
+    // Where the device's own rule refuses the value too, its message says why in the device's
+    // terms (a filament past tungsten's melting point); a clone keeps this device unchanged.
+    p.set(*clone(), value);
+    p.checkRange(*this, value);
+  }
+  p.set(*this, value);
 }
 
 double Device::stepHint() const {

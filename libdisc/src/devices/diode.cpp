@@ -53,19 +53,20 @@ const std::vector<DeviceParameter>& Diode::parameterTable() const {
   constexpr auto field = paramsField<Diode, DiodeParams>;
   using P = DiodeParams;
   static const std::vector<DeviceParameter> t = {
-      field("saturation-current", &P::saturationCurrent, "A", {"is"}),
-      field("ideality", &P::ideality, "", {"n"}),
-      field("series-resistance", &P::seriesResistance, "ohm", {"rs"}),
-      field("junction-capacitance", &P::junctionCapacitance, "F", {"cj0"}),
-      field("built-in-potential", &P::builtInPotential, "V", {"vj"}),
-      field("grading-exponent", &P::gradingExponent, "", {"m"}),
-      field("transit-time", &P::transitTime, "s", {"tt"}),
-      field("breakdown-voltage", &P::breakdownVoltage, "V", {"bv"}),
-      field("breakdown-current", &P::breakdownCurrent, "A", {"ibv"}),
-      field("thermal-resistance", &P::thermalResistance, "K/W", {"rth"}),
-      field("heat-capacity", &P::heatCapacity, "J/K", {"cth"}),
-      field("temperature", &P::temperature, "K", {}),
-      field("reference-temp", &P::referenceTemperature, "K", {"nominal-temperature"})};
+      field("saturation-current", &P::saturationCurrent, "A", {"is"}).within(1e-30, 1.0),
+      field("ideality", &P::ideality, "", {"n"}).within(0.5, 20.0),
+      field("series-resistance", &P::seriesResistance, "ohm", {"rs"}).within(0.0, 1e6),
+      field("junction-capacitance", &P::junctionCapacitance, "F", {"cj0"}).within(0.0, 1e-3),
+      field("built-in-potential", &P::builtInPotential, "V", {"vj"}).within(0.1, 5.0),
+      field("grading-exponent", &P::gradingExponent, "", {"m"}).within(0.01, 0.99),
+      field("transit-time", &P::transitTime, "s", {"tt"}).within(0.0, 1e-2),
+      field("breakdown-voltage", &P::breakdownVoltage, "V", {"bv"}).within(0.0, 1e5),
+      field("breakdown-current", &P::breakdownCurrent, "A", {"ibv"}).within(1e-15, 1e3),
+      field("thermal-resistance", &P::thermalResistance, "K/W", {"rth"}).within(0.0, 1e4),
+      field("heat-capacity", &P::heatCapacity, "J/K", {"cth"}).within(1e-6, 1e5),
+      field("temperature", &P::temperature, "K", {}).within(150.0, 600.0, true),
+      field("reference-temp", &P::referenceTemperature, "K", {"nominal-temperature"})
+          .within(150.0, 600.0)};
   return t;
 }
 

@@ -38,16 +38,16 @@ const std::vector<DeviceParameter>& Electrolytic::parameterTable() const {
   // The one list of the electrolytic's netlist names (parser, setParameter, Python), with units.
   constexpr auto field = paramsField<Electrolytic, ElectrolyticParams>;
   static const std::vector<DeviceParameter> t = {
-      field("capacitance", &ElectrolyticParams::capacitance, "F", {}),
-      field("esr", &ElectrolyticParams::esr, "ohm", {}),
-      field("rated-voltage", &ElectrolyticParams::ratedVoltage, "V", {}),
-      field("ripple-current", &ElectrolyticParams::rippleCurrent, "A", {}),
-      field("leakage", &ElectrolyticParams::leakage, "A", {}),
-      field("deformed-leakage", &ElectrolyticParams::deformedLeakFactor, "", {}),
-      field("forming-time", &ElectrolyticParams::formingTime, "s", {}),
-      field("forming", &ElectrolyticParams::forming, "", {}),
-      field("stored-years", &ElectrolyticParams::storedYears, "", {}),
-      field("storage-years", &ElectrolyticParams::storageTimeYears, "", {})};
+      field("capacitance", &ElectrolyticParams::capacitance, "F", {}).within(1e-8, 10.0),
+      field("esr", &ElectrolyticParams::esr, "ohm", {}).within(1e-4, 1e4),
+      field("rated-voltage", &ElectrolyticParams::ratedVoltage, "V", {}).within(1.0, 1e4),
+      field("ripple-current", &ElectrolyticParams::rippleCurrent, "A", {}).within(0.0, 1e3),
+      field("leakage", &ElectrolyticParams::leakage, "A", {}).within(0.0, 10.0),
+      field("deformed-leakage", &ElectrolyticParams::deformedLeakFactor, "", {}).within(1.0, 1e5),
+      field("forming-time", &ElectrolyticParams::formingTime, "s", {}).within(1.0, 1e7),
+      field("forming", &ElectrolyticParams::forming, "", {}).within(0.0, 1.0),
+      field("stored-years", &ElectrolyticParams::storedYears, "", {}).within(0.0, 200.0),
+      field("storage-years", &ElectrolyticParams::storageTimeYears, "", {}).within(0.01, 1e3)};
   return t;
 }
 

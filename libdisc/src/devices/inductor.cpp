@@ -26,8 +26,10 @@ void Inductor::setResistance(double ohm) {
 
 const std::vector<DeviceParameter>& Inductor::parameterTable() const {
   static const std::vector<DeviceParameter> t = {
-      parameterOf<Inductor>("inductance", &Inductor::inductance, &Inductor::setInductance, "H"),
-      parameterOf<Inductor>("resistance", &Inductor::resistance, &Inductor::setResistance, "ohm")};
+      parameterOf<Inductor>("inductance", &Inductor::inductance, &Inductor::setInductance, "H")
+          .within(1e-12, 1e4),
+      parameterOf<Inductor>("resistance", &Inductor::resistance, &Inductor::setResistance, "ohm")
+          .within(0.0, 1e9)};
   return t;
 }
 

@@ -47,12 +47,12 @@ const std::vector<DeviceParameter>& Lamp::parameterTable() const {
   // The one list of the lamp's netlist names (parser, setParameter, Python), with units.
   constexpr auto field = paramsField<Lamp, LampParams>;
   static const std::vector<DeviceParameter> t = {
-      field("rated-power", &LampParams::ratedPower, "W", {}),
-      field("rated-voltage", &LampParams::ratedVoltage, "V", {}),
-      field("filament-temp", &LampParams::filamentTemp, "K", {}),
-      field("exponent", &LampParams::exponent, "", {}),
-      field("time-constant", &LampParams::timeConstant, "s", {}),
-      field("conduction", &LampParams::conduction, "", {})};
+      field("rated-power", &LampParams::ratedPower, "W", {}).within(1e-3, 1e5),
+      field("rated-voltage", &LampParams::ratedVoltage, "V", {}).within(0.1, 1e4),
+      field("filament-temp", &LampParams::filamentTemp, "K", {}).within(500.0, 3600.0),
+      field("exponent", &LampParams::exponent, "", {}).within(0.5, 2.0),
+      field("time-constant", &LampParams::timeConstant, "s", {}).within(1e-4, 100.0),
+      field("conduction", &LampParams::conduction, "", {}).within(0.0, 0.99)};
   return t;
 }
 

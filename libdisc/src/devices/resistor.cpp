@@ -17,7 +17,8 @@ void Resistor::setResistance(double ohm) {
 
 const std::vector<DeviceParameter>& Resistor::parameterTable() const {
   static const std::vector<DeviceParameter> t = {
-      parameterOf<Resistor>("resistance", &Resistor::resistance, &Resistor::setResistance, "ohm")};
+      parameterOf<Resistor>("resistance", &Resistor::resistance, &Resistor::setResistance, "ohm")
+          .within(1e-6, 1e12)};
   return t;
 }
 

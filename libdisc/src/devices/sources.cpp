@@ -21,66 +21,89 @@ void VoltageSource::setImpedance(double ohm, double henry) {
   l_ = henry;
 }
 
-const std::vector<DeviceParameter>& VoltageSource::parameterTable() const {
-  // Each setter changes a copy of the waveform, so a rejected value leaves the source as it was.
-  auto wave = [](const char* name, const char* unit, double (*get)(const Waveform&),
+namespace {
+
+/// The waveform entries of a source's table: a sine's rms, amplitude and frequency, and a DC
+/// level under each name in `levels`, in `unit` within +-`limit`. Each setter changes a copy of
+/// the waveform, so a rejected value leaves the source as it was.
+template <class Source>
+std::vector<DeviceParameter> waveParameters(const char* unit, double limit,
+                                            std::initializer_list<const char*> levels) {
+  auto wave = [](const char* name, const char* u, double (*get)(const Waveform&),
                  void (*set)(Waveform&, double)) {
     return DeviceParameter{
         name,
-        [get](const Device& d) { return get(static_cast<const VoltageSource&>(d).waveform()); },
+        [get](const Device& d) { return get(static_cast<const Source&>(d).waveform()); },
         [set](Device& d, double v) {
-          auto& s = static_cast<VoltageSource&>(d);
+          auto& s = static_cast<Source&>(d);
           Waveform w = s.waveform();
           detail::namedChecks(s.name(), [&] { set(w, v); });
           s.setWaveform(std::move(w));
         },
-        unit,
+        u,
         {}};
   };
-  static const std::vector<DeviceParameter> t = {
-      wave(
-          "rms", "V",
-          [](const Waveform& w) {
-            if (!w.isSine()) throw InputError("only a sine source has an rms value");
-            return w.amplitude() / std::numbers::sqrt2;
-          },
-          [](Waveform& w, double v) { w.setAmplitude(std::numbers::sqrt2 * v); }),
-      wave(
-          "amplitude", "V",
-          [](const Waveform& w) {
-            if (!w.isSine()) throw InputError("only a sine source has an amplitude");
-            return w.amplitude();
-          },
-          [](Waveform& w, double v) { w.setAmplitude(v); }),
-      wave(
-          "frequency", "Hz",
-          [](const Waveform& w) {
-            if (!w.isSine()) throw InputError("only a sine source has a frequency");
-            return w.frequency();
-          },
-          [](Waveform& w, double v) { w.setFrequency(v); }),
-      wave(
-          "dc", "V", [](const Waveform& w) { return w.offset(); },
-          [](Waveform& w, double v) { w.setOffset(v); }),
-      wave(
-          "emf", "V", [](const Waveform& w) { return w.offset(); },
-          [](Waveform& w, double v) { w.setOffset(v); }),
-      {"resistance",
-       [](const Device& d) { return static_cast<const VoltageSource&>(d).resistance(); },
-       [](Device& d, double v) {
-         auto& s = static_cast<VoltageSource&>(d);
-         s.setImpedance(v, s.inductance());
-       },
-       "ohm",
-       {}},
-      {"inductance",
-       [](const Device& d) { return static_cast<const VoltageSource&>(d).inductance(); },
-       [](Device& d, double v) {
-         auto& s = static_cast<VoltageSource&>(d);
-         s.setImpedance(s.resistance(), v);
-       },
-       "H",
-       {}}};
+  std::vector<DeviceParameter> t;
+  t.push_back(wave(
+                  "rms", unit,
+                  [](const Waveform& w) {
+                    if (!w.isSine()) throw InputError("only a sine source has an rms value");
+                    return w.amplitude() / std::numbers::sqrt2;
+                  },
+                  [](Waveform& w, double v) { w.setAmplitude(std::numbers::sqrt2 * v); })
+                  .within(-limit, limit));
+  t.push_back(wave(
+                  "amplitude", unit,
+                  [](const Waveform& w) {
+                    if (!w.isSine()) throw InputError("only a sine source has an amplitude");
+                    return w.amplitude();
+                  },
+                  [](Waveform& w, double v) { w.setAmplitude(v); })
+                  .within(-limit, limit));
+  // Above 1 MHz no rectifier plate responds, and the step budget is spent on the carrier.
+  t.push_back(wave(
+                  "frequency", "Hz",
+                  [](const Waveform& w) {
+                    if (!w.isSine()) throw InputError("only a sine source has a frequency");
+                    return w.frequency();
+                  },
+                  [](Waveform& w, double v) { w.setFrequency(v); })
+                  .within(0.01, 1e6));
+  for (const char* level : levels)
+    t.push_back(wave(
+                    level, unit, [](const Waveform& w) { return w.offset(); },
+                    [](Waveform& w, double v) { w.setOffset(v); })
+                    .within(-limit, limit));
+  return t;
+}
+
+}  // namespace
+
+const std::vector<DeviceParameter>& VoltageSource::parameterTable() const {
+  static const std::vector<DeviceParameter> t = [] {
+    std::vector<DeviceParameter> w = waveParameters<VoltageSource>("V", 1e6, {"dc", "emf"});
+    w.push_back({"resistance",
+                 [](const Device& d) { return static_cast<const VoltageSource&>(d).resistance(); },
+                 [](Device& d, double v) {
+                   auto& s = static_cast<VoltageSource&>(d);
+                   s.setImpedance(v, s.inductance());
+                 },
+                 "ohm",
+                 {},
+                 0.0,
+                 1e9});
+    w.push_back({"inductance",
+                 [](const Device& d) { return static_cast<const VoltageSource&>(d).inductance(); },
+                 [](Device& d, double v) {
+                   auto& s = static_cast<VoltageSource&>(d);
+                   s.setImpedance(s.resistance(), v);
+                 },
+                 "H",
+                 {},
+                 0.0,
+                 1e3});
+    return w;
+  }();
   return t;
 }
 
@@ -143,6 +166,12 @@ VoltageSource makeMains(std::string name, NodeId p, NodeId n, double rms, double
 
 CurrentSource::CurrentSource(std::string name, NodeId p, NodeId n, Waveform w)
     : DeviceBase(std::move(name), {p, n}), w_(std::move(w)) {}
+
+const std::vector<DeviceParameter>& CurrentSource::parameterTable() const {
+  // 10 kA: beyond any supply this library models (a welding set's secondary).
+  static const std::vector<DeviceParameter> t = waveParameters<CurrentSource>("A", 1e4, {"dc"});
+  return t;
+}
 
 void CurrentSource::bind(const Binding& b) {
   p_ = b.terminals[0];

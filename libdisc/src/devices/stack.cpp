@@ -124,7 +124,7 @@ void Stack::setType(PlateType type) {
 
 const std::vector<DeviceParameter>& Stack::parameterTable() const {
   // Each setter changes a copy of the options and validates it through setOptions().
-  auto option = [](const char* name, auto member) {
+  auto option = [](const char* name, auto member, const char* unit = "") {
     return DeviceParameter{name,
                            [member](const Device& d) {
                              return static_cast<double>(static_cast<const Stack&>(d).opt_.*member);
@@ -143,7 +143,7 @@ const std::vector<DeviceParameter>& Stack::parameterTable() const {
                              o.*member = static_cast<T>(v);
                              s.setOptions(o);
                            },
-                           {},
+                           unit,
                            {}};
   };
   auto spread = [](const char* name, double StackSpread::*member) {
@@ -167,11 +167,11 @@ const std::vector<DeviceParameter>& Stack::parameterTable() const {
       spread("spread-gsh", &StackSpread::gsh),
       option("seed", &StackOptions::seed),
       option("forming", &StackOptions::forming),
-      option("stored-years", &StackOptions::storedYears),
-      option("stored-temp", &StackOptions::storageTemperature),
-      option("hours", &StackOptions::ageHours),
-      option("age-temp", &StackOptions::ageTemperature),
-      option("cooling", &StackOptions::cooling)};
+      option("stored-years", &StackOptions::storedYears).within(0.0, 200.0),
+      option("stored-temp", &StackOptions::storageTemperature, "K").within(200.0, 450.0, true),
+      option("hours", &StackOptions::ageHours).within(0.0, 2e6),
+      option("age-temp", &StackOptions::ageTemperature, "K").within(200.0, 450.0, true),
+      option("cooling", &StackOptions::cooling).within(0.01, 1e6)};
   return t;
 }
 

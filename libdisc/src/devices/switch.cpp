@@ -14,11 +14,41 @@ Switch::Switch(std::string name, NodeId a, NodeId b, bool closedAtStart,
       toggles_(std::move(toggles)),
       ron_(ron),
       roff_(roff) {
+  setResistances(ron, roff);
+  if (!std::is_sorted(toggles_.begin(), toggles_.end()))
+    throw InputError(name_ + ": switching times must be in increasing order");
+}
+
+void Switch::setResistances(double ron, double roff) {
   detail::requirePositive(name_, "closed resistance", ron, "ohm");
   detail::requirePositive(name_, "open resistance", roff, "ohm");
   if (!(roff > ron)) throw InputError(name_ + ": open resistance must exceed closed resistance");
-  if (!std::is_sorted(toggles_.begin(), toggles_.end()))
-    throw InputError(name_ + ": switching times must be in increasing order");
+  ron_ = ron;
+  roff_ = roff;
+}
+
+const std::vector<DeviceParameter>& Switch::parameterTable() const {
+  // The resistor's range: beyond it the matrix loses the smaller conductances' digits.
+  static const std::vector<DeviceParameter> t = {
+      DeviceParameter{"on-resistance",
+                      [](const Device& d) { return static_cast<const Switch&>(d).ron_; },
+                      [](Device& d, double v) {
+                        auto& s = static_cast<Switch&>(d);
+                        s.setResistances(v, s.roff_);
+                      },
+                      "ohm",
+                      {"ron"}}
+          .within(1e-6, 1e12),
+      DeviceParameter{"off-resistance",
+                      [](const Device& d) { return static_cast<const Switch&>(d).roff_; },
+                      [](Device& d, double v) {
+                        auto& s = static_cast<Switch&>(d);
+                        s.setResistances(s.ron_, v);
+                      },
+                      "ohm",
+                      {"roff"}}
+          .within(1e-6, 1e12)};
+  return t;
 }
 
 bool Switch::closedAt(double t) const {

@@ -28,8 +28,8 @@ void HeatNode::setParams(const HeatNodeParams& params) {
 const std::vector<DeviceParameter>& HeatNode::parameterTable() const {
   constexpr auto field = paramsField<HeatNode, HeatNodeParams>;
   static const std::vector<DeviceParameter> t = {
-      field("capacity", &HeatNodeParams::capacity, "J/K", {}),
-      field("to-ambient", &HeatNodeParams::toAmbient, "K/W", {})};
+      field("capacity", &HeatNodeParams::capacity, "J/K", {}).within(1e-3, 1e8),
+      field("to-ambient", &HeatNodeParams::toAmbient, "K/W", {}).within(0.0, 1e4)};
   return t;
 }
 
@@ -134,7 +134,8 @@ void HeatPath::setResistance(double kelvinPerWatt) {
 
 const std::vector<DeviceParameter>& HeatPath::parameterTable() const {
   static const std::vector<DeviceParameter> t = {
-      parameterOf<HeatPath>("resistance", &HeatPath::resistance, &HeatPath::setResistance, "K/W")};
+      parameterOf<HeatPath>("resistance", &HeatPath::resistance, &HeatPath::setResistance, "K/W")
+          .within(1e-4, 1e4)};
   return t;
 }
 
@@ -178,7 +179,8 @@ void HeatSource::setPower(double watts) {
 
 const std::vector<DeviceParameter>& HeatSource::parameterTable() const {
   static const std::vector<DeviceParameter> t = {
-      parameterOf<HeatSource>("power", &HeatSource::power, &HeatSource::setPower, "W")};
+      parameterOf<HeatSource>("power", &HeatSource::power, &HeatSource::setPower, "W")
+          .within(0.0, 1e6)};
   return t;
 }
 

@@ -43,12 +43,13 @@ const std::vector<DeviceParameter>& Thermistor::parameterTable() const {
   // The one list of the thermistor's netlist names (parser, setParameter, Python), with units.
   constexpr auto field = paramsField<Thermistor, ThermistorParams>;
   static const std::vector<DeviceParameter> t = {
-      field("resistance", &ThermistorParams::resistance, "ohm", {}),
-      field("b-constant", &ThermistorParams::bConstant, "K", {}),
-      field("reference-temp", &ThermistorParams::referenceTemp, "K", {}),
-      field("dissipation", &ThermistorParams::dissipation, "W/K", {}),
-      field("time-constant", &ThermistorParams::timeConstant, "s", {}),
-      field("max-current", &ThermistorParams::maxCurrent, "A", {})};
+      field("resistance", &ThermistorParams::resistance, "ohm", {}).within(1e-3, 1e9),
+      field("b-constant", &ThermistorParams::bConstant, "K", {}).within(100.0, 2e4),
+      field("reference-temp", &ThermistorParams::referenceTemp, "K", {})
+          .within(kLowestLawTemp, kHighestLawTemp),
+      field("dissipation", &ThermistorParams::dissipation, "W/K", {}).within(1e-5, 100.0),
+      field("time-constant", &ThermistorParams::timeConstant, "s", {}).within(1e-3, 1e4),
+      field("max-current", &ThermistorParams::maxCurrent, "A", {}).within(0.0, 1e3)};
   return t;
 }
 

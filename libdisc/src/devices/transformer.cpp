@@ -30,12 +30,12 @@ void Transformer::setParams(const TransformerParams& params) {
 const std::vector<DeviceParameter>& Transformer::parameterTable() const {
   constexpr auto field = paramsField<Transformer, TransformerParams>;
   static const std::vector<DeviceParameter> t = {
-      field("ratio", &TransformerParams::ratio, "", {}),
-      field("r1", &TransformerParams::r1, "ohm", {}),
-      field("r2", &TransformerParams::r2, "ohm", {}),
-      field("leakage1", &TransformerParams::leakage1, "H", {}),
-      field("leakage2", &TransformerParams::leakage2, "H", {}),
-      field("magnetizing", &TransformerParams::magnetizing, "H", {})};
+      field("ratio", &TransformerParams::ratio, "", {}).within(1e-3, 1e3),
+      field("r1", &TransformerParams::r1, "ohm", {}).within(0.0, 1e6),
+      field("r2", &TransformerParams::r2, "ohm", {}).within(0.0, 1e6),
+      field("leakage1", &TransformerParams::leakage1, "H", {}).within(0.0, 1e3),
+      field("leakage2", &TransformerParams::leakage2, "H", {}).within(0.0, 1e3),
+      field("magnetizing", &TransformerParams::magnetizing, "H", {}).within(1e-6, 1e4)};
   return t;
 }
 

@@ -39,12 +39,12 @@ const std::vector<DeviceParameter>& ValveLoad::parameterTable() const {
   // The one list of the valve load's netlist names (parser, setParameter, Python), with units.
   constexpr auto field = paramsField<ValveLoad, ValveLoadParams>;
   static const std::vector<DeviceParameter> t = {
-      field("rated-current", &ValveLoadParams::ratedCurrent, "A", {}),
-      field("rated-voltage", &ValveLoadParams::ratedVoltage, "V", {}),
-      field("exponent", &ValveLoadParams::exponent, "", {}),
-      field("warm-up", &ValveLoadParams::warmUp, "s", {}),
-      field("on", &ValveLoadParams::on, "s", {}),
-      field("warmth", &ValveLoadParams::warmth, "", {})};
+      field("rated-current", &ValveLoadParams::ratedCurrent, "A", {}).within(1e-6, 100.0),
+      field("rated-voltage", &ValveLoadParams::ratedVoltage, "V", {}).within(1.0, 1e5),
+      field("exponent", &ValveLoadParams::exponent, "", {}).within(1.0, 2.5),
+      field("warm-up", &ValveLoadParams::warmUp, "s", {}).within(1e-3, 3600.0),
+      field("on", &ValveLoadParams::on, "s", {}).within(0.0, 1e7),
+      field("warmth", &ValveLoadParams::warmth, "", {}).within(0.0, 1.0)};
   return t;
 }
 

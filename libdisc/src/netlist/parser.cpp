@@ -684,6 +684,15 @@ class Builder {
     try {
       auto device = build(spec, name, nodes, shape, p, s);
       if (!device) return;
+      // Every given value within its table range, whichever way the device was built.
+      for (const auto& [key, value] : p.num)
+        if (const DeviceParameter* entry = device->findParameter(key)) {
+          try {
+            entry->checkRange(*device, value);
+          } catch (const InputError& e) {
+            throw ParamError{key, e.what()};
+          }
+        }
       nl_.circuit.add(std::move(device));
       deviceWhere_[name] = t[1].where;
       if (!namesNoCircuitNodes(kindWord))
@@ -1212,6 +1221,11 @@ class Builder {
           axis.values.push_back(*from + (*to - *from) * k / (steps - 1));
       }
       if (axis.values.empty()) return error(s.where, "vary needs at least one value");
+      try {
+        for (double v : axis.values) entry->checkRange(*d, v);
+      } catch (const InputError& e) {
+        return error(s.where, e.what());
+      }
       spec.axes.push_back(std::move(axis));
       spec.given = true;
       return;

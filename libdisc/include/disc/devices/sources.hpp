@@ -69,6 +69,7 @@ class CurrentSource : public DeviceBase<CurrentSource> {
   std::string_view kind() const override { return "current source"; }
   const Waveform& waveform() const { return w_; }
   void setWaveform(Waveform w) { w_ = std::move(w); }
+  const std::vector<DeviceParameter>& parameterTable() const override;
 
   void bind(const Binding& b) override;
   void declare(PatternBuilder&) override {}

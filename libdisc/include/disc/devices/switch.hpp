@@ -15,6 +15,12 @@ class Switch : public DeviceBase<Switch> {
          double ron = 1e-3, double roff = 1e9);
   std::string_view kind() const override { return "switch"; }
   bool closedAt(double t) const;
+  double onResistance() const { return ron_; }
+  double offResistance() const { return roff_; }
+  /// Both resistances, checked together (open above closed); a refused pair leaves them as
+  /// they were.
+  void setResistances(double ron, double roff);
+  const std::vector<DeviceParameter>& parameterTable() const override;
 
   void bind(const Binding& b) override;
   void declare(PatternBuilder& pb) override;
