@@ -13,6 +13,7 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <optional>
 
 #include "disc/device.hpp"
 #include "disc/error.hpp"
@@ -209,6 +210,30 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     first = false;
     er.endTime = t;
   };
+  std::vector<double> fPrev;  // the slow rates at the last row (scaled)
+  // Along the slow step from the last row, the quadratic through that row's state and rate and
+  // the new state: a crossing is located on it with no periodic steady state at the new state
+  // (past destruction there may be none).
+  auto alongStep = [&](double theta, double t, const std::vector<double>& yy, std::size_t c) {
+    const double d0 = fPrev.empty() ? yy[c] - yPrev[c] : (t - tPrev) * fPrev[c];
+    return yPrev[c] + theta * d0 + theta * theta * (yy[c] - yPrev[c] - d0);
+  };
+  // The first theta in [0, 1] where that quadratic reaches `level` (it lies below at 0 and at
+  // or above at 1).
+  auto crossing = [&](double t, const std::vector<double>& yy, std::size_t c, double level) {
+    const double c0 = alongStep(0.0, t, yy, c) - level, c1 = alongStep(1.0, t, yy, c) - level;
+    const double b = fPrev.empty() ? c1 - c0 : (t - tPrev) * fPrev[c];
+    const double a = c1 - c0 - b;
+    double theta = c0 / (c0 - c1);  // the chord's, kept when the quadratic is all but linear
+    if (std::abs(a) > 1e-9 * (std::abs(b) + std::abs(c0))) {
+      const double root = std::sqrt(std::max(0.0, b * b - 4.0 * a * c0));
+      double best = 2.0;
+      for (const double r : {(-b - root) / (2.0 * a), (-b + root) / (2.0 * a)})
+        if (r >= 0.0 && r <= 1.0) best = std::min(best, r);
+      if (best <= 1.0) theta = best;
+    }
+    return std::clamp(theta, 0.0, 1.0);
+  };
   // A body past destruction: the row at the located crossing ends the series, so no
   // temperature beyond destruction is ever recorded.
   auto destroyed = [&](double t, const std::vector<double>& yy) {
@@ -220,15 +245,19 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       const double before = yPrev.empty() ? now : temperatureOf(w, yPrev);
       const double th = !std::isfinite(now) || before >= w.body.destruction
                             ? 0.0
-                            : (w.body.destruction - before) / (now - before);
+                            : crossing(t, yy, w.slowIndex,
+                                       (w.body.destruction - w.body.ambient) / scale[w.slowIndex]);
       if (th < theta) theta = th, hit = &w;
     }
     if (!hit) return false;
     std::vector<double> yc = yy;
     double tc = t;
     if (!yPrev.empty()) {
-      for (std::size_t c = 0; c < ns; ++c) yc[c] = yPrev[c] + theta * (yy[c] - yPrev[c]);
+      for (std::size_t c = 0; c < ns; ++c) yc[c] = alongStep(theta, t, yy, c);
       tc = tPrev + theta * (t - tPrev);
+      // The located row itself is below destruction for every other body, however the
+      // quadratic bends.
+      yc[hit->slowIndex] = (hit->body.destruction - hit->body.ambient) / scale[hit->slowIndex];
     }
     if (!yPrev.empty() && theta == 0.0)
       settle(tPrev, yPrev, false);  // at destruction already at the last row: it ends the series
@@ -278,12 +307,62 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       er.failures.push_back(e);
     }
   };
+  // Rows at every tenth of the duration that a slow step passed over, on the cubic Hermite
+  // interpolant of its end states and rates (its error is of the order of the step's own
+  // third-order error estimate), each the periodic steady state at those slow values. They are
+  // solved by a copy of the solver, so the step's own settled state stays the next step's start.
+  const double rowSpacing = options.duration / 10.0;
+  auto interpolatedRows = [&](double t, const std::vector<double>& yy,
+                              const std::vector<double>& f) {
+    if (yPrev.empty() || fPrev.empty()) return;
+    const double h = t - tPrev;
+    std::optional<detail::PeriodicSolver> copy;
+    std::vector<double> xr, yr(ns), ds(ns);
+    for (double k = std::floor(tPrev / rowSpacing) + 1.0; k * rowSpacing < t - 1e-9 * h; ++k) {
+      const double tr = k * rowSpacing, s = (tr - tPrev) / h;
+      const double h00 = (1.0 + 2.0 * s) * (1.0 - s) * (1.0 - s), h10 = s * (1.0 - s) * (1.0 - s);
+      const double h01 = s * s * (3.0 - 2.0 * s), h11 = s * s * (s - 1.0);
+      for (std::size_t c = 0; c < ns; ++c)
+        yr[c] = h00 * yPrev[c] + h10 * h * fPrev[c] + h01 * yy[c] + h11 * h * f[c];
+      // No row beyond a destruction the step's ends do not show.
+      for (const BodyWatch& w : bodies)
+        if (temperatureOf(w, yr) >= w.body.destruction) return;
+      if (!copy) copy.emplace(solver), xr = x;
+      for (std::size_t c = 0; c < ns; ++c)
+        ds[c] = yr[c] * scale[c] - xr[static_cast<std::size_t>(slow[c])];
+      copy->predict(xr, ds);
+      sys.setFrozenValues(xr);
+      Result period;
+      detail::PeriodSolution rs;
+      {
+        detail::Recorder rec(sys, record, period);
+        try {
+          copy->solve(xr, tr, &rec, rs, stats, false);
+        } catch (const ConvergenceError& e) {
+          throw ConvergenceError(fmt::format("warm-up at t = {:.6g} s: {}", tr, e.what()),
+                                 e.worstEquation(), e.residual());
+        }
+      }
+      ++es.periodicSolves;
+      es.shootingIterations += rs.stats.iterations;
+      es.periodIntegrations += rs.stats.periodIntegrations;
+      for (double& tp : period.timeColumn()) tp -= t0;
+      appendRow(er.series, tr, period, first);
+    }
+    if (copy) sys.setFrozenValues(x);
+  };
   auto observe = [&](double t, const std::vector<double>& yy) {
     if (destroyed(t, yy)) return false;
     checkRunaway(t, yy);
+    // The rates here (with the Jacobian the next step starts from): the settled period is
+    // then recorded from the same solve.
+    std::vector<double> f, jac;
+    ode.evaluate(t, yy, f, t < options.duration * (1.0 - 1e-12) ? &jac : nullptr);
+    interpolatedRows(t, yy, f);
     recordRow(t, yy);
     tPrev = t;
     yPrev = yy;
+    fPrev = std::move(f);
     bool go = true;
     if (options.onPeriod) {
       Result own;
@@ -304,8 +383,11 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     detail::SlowOdeSettings settings;
     settings.reltol = options.reltol;
     settings.abstol = 1.0;
-    settings.maxStep = options.maxStep > 0.0 ? options.maxStep : options.duration / 10.0;
-    settings.firstStep = std::min(settings.maxStep, 10.0 * period);
+    // No step is forced for the rows (they are interpolated): the error control alone sets them.
+    settings.maxStep = options.maxStep;
+    settings.firstStep =
+        settings.maxStep > 0.0 ? std::min(settings.maxStep, 10.0 * period) : 10.0 * period;
+    settings.firstFromJacobian = true;
     detail::SlowOdeStats os;
     try {
       detail::integrateSlowOde(ode, y, 0.0, options.duration, settings, os, observe);

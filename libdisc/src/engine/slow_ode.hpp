@@ -20,8 +20,10 @@ struct SlowOdeSystem {
 struct SlowOdeSettings {
   double reltol = 1e-3;
   double abstol = 1.0;  ///< on the scaled state (the envelope scales each state by its tolerance)
-  double firstStep = 1.0;  ///< s
-  double maxStep = 0.0;    ///< s; 0 = no limit
+  double firstStep = 1.0;  ///< s (the floor when firstFromJacobian)
+  /// The first step from the Jacobian at the start (see integrateSlowOde), not below firstStep.
+  bool firstFromJacobian = false;
+  double maxStep = 0.0;  ///< s; 0 = no limit
   long maxSteps = 100000;
 };
 
