@@ -138,4 +138,8 @@ def test_warm_up_summary_matches_the_command_line(tmp_path):
     for d in (report, mine):
         d["run"].pop("wall_s")
     assert mine == report
-    assert w.stats["slow_steps"] == len(w.series.time) - 1
+    # A row at the start, at every accepted slow step and at every tenth of the duration that a
+    # step passed over.
+    assert w.stats["slow_steps"] + w.stats["interpolated_rows"] == len(w.series.time) - 1
+    for k in range(1, 10):
+        assert min(abs(t - 60.0 * k) for t in w.series.time) < 1e-6 * 600.0

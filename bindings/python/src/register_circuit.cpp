@@ -256,6 +256,7 @@ void registerCircuit(py::module_& m) {
             py::dict stats;
             stats["slow_steps"] = w.stats.slowSteps;
             stats["rejected_slow_steps"] = w.stats.rejectedSlowSteps;
+            stats["interpolated_rows"] = w.stats.interpolatedRows;
             stats["periodic_solves"] = w.stats.periodicSolves;
             stats["shooting_iterations"] = w.stats.shootingIterations;
             stats["period_integrations"] = w.stats.periodIntegrations;

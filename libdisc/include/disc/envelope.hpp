@@ -28,11 +28,13 @@ struct EnvelopeOptions {
   double reltol = 1e-3;          ///< slow states, relative
   double temperatureTol = 0.02;  ///< K, absolute
   double stateTol = 1e-4;        ///< forming and other dimensionless slow states, absolute
-  double maxStep = 0.0;          ///< s; 0 = a tenth of the duration
-  /// Signals whose period mean, minimum and maximum are recorded at every slow step; empty =
+  double maxStep = 0.0;          ///< s; 0 = no limit (the slow error control alone)
+  /// Signals whose period mean, minimum and maximum are recorded in every row of the series:
+  /// at t = 0, at every accepted slow step and at every tenth of the duration that a step
+  /// passed over (the slow states interpolated there, the period solved at them); empty =
   /// every slow unknown ("x:<unknown>").
   std::vector<std::string> record;
-  /// Called at t = 0 and after every accepted slow step with the settled period there (one
+  /// Called at every row of the series, in time order, with the settled period there (one
   /// period of `periodic.record`, times from 0). Return false to end the run at that time (not
   /// an error: EnvelopeResult::stoppedBy says why).
   std::function<bool(double time, const Result& period)> onPeriod;
@@ -43,7 +45,8 @@ struct EnvelopeOptions {
 
 struct EnvelopeStats {
   long slowSteps = 0, rejectedSlowSteps = 0;
-  long periodicSolves = 0;  ///< periodic steady states solved
+  long interpolatedRows = 0;  ///< rows at tenths of the duration inside a slow step
+  long periodicSolves = 0;    ///< periodic steady states solved
   long shootingIterations = 0;
   long periodIntegrations = 0;
   double wallSeconds = 0.0;

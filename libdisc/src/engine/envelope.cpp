@@ -312,44 +312,64 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   // third-order error estimate), each the periodic steady state at those slow values. They are
   // solved by a copy of the solver, so the step's own settled state stays the next step's start.
   const double rowSpacing = options.duration / 10.0;
+  // A caller's onPeriod that ends the run at an interpolated row: the run ends on that row's
+  // solver and state.
+  std::optional<detail::PeriodicSolver> rowSolver;
+  std::vector<double> xRow;
+  detail::PeriodSolution rowSol;
+  bool endedOnRow = false;
   auto interpolatedRows = [&](double t, const std::vector<double>& yy,
                               const std::vector<double>& f) {
-    if (yPrev.empty() || fPrev.empty()) return;
+    if (yPrev.empty() || fPrev.empty()) return true;
     const double h = t - tPrev;
-    std::optional<detail::PeriodicSolver> copy;
-    std::vector<double> xr, yr(ns), ds(ns);
-    for (double k = std::floor(tPrev / rowSpacing) + 1.0; k * rowSpacing < t - 1e-9 * h; ++k) {
+    bool copied = false;
+    std::vector<double> yr(ns), ds(ns);
+    for (double k = std::floor(tPrev / rowSpacing) + 1.0; k * rowSpacing < t - 1e-6 * h; ++k) {
       const double tr = k * rowSpacing, s = (tr - tPrev) / h;
+      if (s < 1e-6) continue;  // a tenth the last row already stands on (rounding)
       const double h00 = (1.0 + 2.0 * s) * (1.0 - s) * (1.0 - s), h10 = s * (1.0 - s) * (1.0 - s);
       const double h01 = s * s * (3.0 - 2.0 * s), h11 = s * s * (s - 1.0);
       for (std::size_t c = 0; c < ns; ++c)
         yr[c] = h00 * yPrev[c] + h10 * h * fPrev[c] + h01 * yy[c] + h11 * h * f[c];
       // No row beyond a destruction the step's ends do not show.
       for (const BodyWatch& w : bodies)
-        if (temperatureOf(w, yr) >= w.body.destruction) return;
-      if (!copy) copy.emplace(solver), xr = x;
+        if (temperatureOf(w, yr) >= w.body.destruction) return true;
+      if (!copied) rowSolver.emplace(solver), xRow = x, copied = true;
       for (std::size_t c = 0; c < ns; ++c)
-        ds[c] = yr[c] * scale[c] - xr[static_cast<std::size_t>(slow[c])];
-      copy->predict(xr, ds);
-      sys.setFrozenValues(xr);
+        ds[c] = yr[c] * scale[c] - xRow[static_cast<std::size_t>(slow[c])];
+      rowSolver->predict(xRow, ds);
+      sys.setFrozenValues(xRow);
       Result period;
-      detail::PeriodSolution rs;
       {
         detail::Recorder rec(sys, record, period);
         try {
-          copy->solve(xr, tr, &rec, rs, stats, false);
+          rowSolver->solve(xRow, tr, &rec, rowSol, stats, false);
         } catch (const ConvergenceError& e) {
           throw ConvergenceError(fmt::format("warm-up at t = {:.6g} s: {}", tr, e.what()),
                                  e.worstEquation(), e.residual());
         }
       }
       ++es.periodicSolves;
-      es.shootingIterations += rs.stats.iterations;
-      es.periodIntegrations += rs.stats.periodIntegrations;
+      es.shootingIterations += rowSol.stats.iterations;
+      es.periodIntegrations += rowSol.stats.periodIntegrations;
       for (double& tp : period.timeColumn()) tp -= t0;
       appendRow(er.series, tr, period, first);
+      ++es.interpolatedRows;
+      er.endTime = tr;
+      if (options.onPeriod) {
+        Result own;
+        detail::Recorder rec(sys, po.record, own);
+        rowSolver->recordPeriod(xRow, tr, rec, stats);
+        for (double& tp : own.timeColumn()) tp -= t0;
+        if (!options.onPeriod(tr, own)) {
+          er.stoppedBy = fmt::format("stopped at t = {:.6g} s by the caller", tr);
+          endedOnRow = true;
+          return false;
+        }
+      }
     }
-    if (copy) sys.setFrozenValues(x);
+    if (copied) sys.setFrozenValues(x);
+    return true;
   };
   auto observe = [&](double t, const std::vector<double>& yy) {
     if (destroyed(t, yy)) return false;
@@ -358,7 +378,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     // then recorded from the same solve.
     std::vector<double> f, jac;
     ode.evaluate(t, yy, f, t < options.duration * (1.0 - 1e-12) ? &jac : nullptr);
-    interpolatedRows(t, yy, f);
+    if (!interpolatedRows(t, yy, f)) return false;
     recordRow(t, yy);
     tPrev = t;
     yPrev = yy;
@@ -413,11 +433,14 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   {
     Result& w = er.last.waveforms;
     detail::Recorder rec(sys, po.record, w);
-    solver.recordPeriod(x, er.endTime, rec, stats);
+    if (endedOnRow)
+      rowSolver->recordPeriod(xRow, er.endTime, rec, stats);
+    else
+      solver.recordPeriod(x, er.endTime, rec, stats);
     for (double& tp : w.timeColumn()) tp -= t0;
     er.last.period = period;
     er.last.startTime = t0;
-    er.last.stats = sol.stats;
+    er.last.stats = endedOnRow ? rowSol.stats : sol.stats;
   }
   es.wallSeconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
