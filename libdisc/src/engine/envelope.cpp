@@ -110,23 +110,29 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
   std::vector<double> solvedY;
   // With `rec`, the settled period is recorded into it; false when nothing was solved (the
   // last solve is still the one asked for, so the caller records it).
-  auto settle = [&](double t, const std::vector<double>& y, bool jacobian,
-                    detail::Recorder* rec = nullptr) {
-    if (t == solvedTime && y == solvedY && (sol.hasJacobian || !jacobian)) return false;
+  // The periodic steady state of `on` at slow values y, predicted from its last one in xs.
+  auto solveAt = [&](detail::PeriodicSolver& on, std::vector<double>& xs, double t,
+                     const std::vector<double>& y, bool jacobian, detail::Recorder* rec,
+                     detail::PeriodSolution& out) {
     std::vector<double> ds(ns);
     for (std::size_t c = 0; c < ns; ++c)
-      ds[c] = y[c] * scale[c] - x[static_cast<std::size_t>(slow[c])];
-    solver.predict(x, ds);
-    sys.setFrozenValues(x);
+      ds[c] = y[c] * scale[c] - xs[static_cast<std::size_t>(slow[c])];
+    on.predict(xs, ds);
+    sys.setFrozenValues(xs);
     try {
-      solver.solve(x, t, rec, sol, stats, jacobian);
+      on.solve(xs, t, rec, out, stats, jacobian);
     } catch (const ConvergenceError& e) {
       throw ConvergenceError(fmt::format("warm-up at t = {:.6g} s: {}", t, e.what()),
                              e.worstEquation(), e.residual());
     }
     ++es.periodicSolves;
-    es.shootingIterations += sol.stats.iterations;
-    es.periodIntegrations += sol.stats.periodIntegrations;
+    es.shootingIterations += out.stats.iterations;
+    es.periodIntegrations += out.stats.periodIntegrations;
+  };
+  auto settle = [&](double t, const std::vector<double>& y, bool jacobian,
+                    detail::Recorder* rec = nullptr) {
+    if (t == solvedTime && y == solvedY && (sol.hasJacobian || !jacobian)) return false;
+    solveAt(solver, x, t, y, jacobian, rec, sol);
     solvedTime = t;
     solvedY = y;
     return true;
@@ -323,7 +329,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     if (yPrev.empty() || fPrev.empty()) return true;
     const double h = t - tPrev;
     bool copied = false;
-    std::vector<double> yr(ns), ds(ns);
+    std::vector<double> yr(ns);
     for (double k = std::floor(tPrev / rowSpacing) + 1.0; k * rowSpacing < t - 1e-6 * h; ++k) {
       const double tr = k * rowSpacing, s = (tr - tPrev) / h;
       if (s < 1e-6) continue;  // a tenth the last row already stands on (rounding)
@@ -335,23 +341,11 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       for (const BodyWatch& w : bodies)
         if (temperatureOf(w, yr) >= w.body.destruction) return true;
       if (!copied) rowSolver.emplace(solver), xRow = x, copied = true;
-      for (std::size_t c = 0; c < ns; ++c)
-        ds[c] = yr[c] * scale[c] - xRow[static_cast<std::size_t>(slow[c])];
-      rowSolver->predict(xRow, ds);
-      sys.setFrozenValues(xRow);
       Result period;
       {
         detail::Recorder rec(sys, record, period);
-        try {
-          rowSolver->solve(xRow, tr, &rec, rowSol, stats, false);
-        } catch (const ConvergenceError& e) {
-          throw ConvergenceError(fmt::format("warm-up at t = {:.6g} s: {}", tr, e.what()),
-                                 e.worstEquation(), e.residual());
-        }
+        solveAt(*rowSolver, xRow, tr, yr, false, &rec, rowSol);
       }
-      ++es.periodicSolves;
-      es.shootingIterations += rowSol.stats.iterations;
-      es.periodIntegrations += rowSol.stats.periodIntegrations;
       for (double& tp : period.timeColumn()) tp -= t0;
       appendRow(er.series, tr, period, first);
       ++es.interpolatedRows;
