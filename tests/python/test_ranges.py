@@ -39,7 +39,7 @@ def test_the_builder_refuses_values_outside_their_range(build, message):
     ("R1", "resistance", 1e-300, r"resistance 1e-300 ohm is outside 1e-06 to 1e\+12 ohm"),
     ("V1", "dc", 2e6, r"dc 2e\+06 V is outside -1e\+06 to 1e\+06 V"),
     ("S1", "off_resistance", 1e15, r"off-resistance 1e\+15 ohm is outside 1e-06 to 1e\+12 ohm"),
-    ("LP1", "filament_temp", 100.0, "filament-temp 100 K is outside 500 to 3600 K"),
+    ("LP1", "filament_temp", 400.0, "filament-temp 400 K is outside 500 to 3600 K"),
 ])
 def test_parameter_setting_refuses_values_outside_their_range(element, parameter, value, message):
     c = supply()
