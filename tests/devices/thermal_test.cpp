@@ -571,5 +571,13 @@ TEST_CASE("Thermal statements in the language", "[thermal][netlist]") {
         "voltage V1 a gnd dc=10\nstack SR1 a c type=se-25mm-36v heat-node=SNK\n"
         "resistor R1 c gnd 100\n",
         2, "no heat node named 'SNK'");
+    // "ambient" names the surroundings only as a heat path's second end.
+    expect(base + "heat-node ambient capacity=60 to-ambient=4\n", 6,
+           "'ambient' is the word for the surroundings, not a heat node's name");
+    expect(base + sink + "heat-source Q1 ambient power=3W\n", 7, "'ambient' is none");
+    expect(
+        "voltage V1 a gnd dc=10\nstack SR1 a c type=se-25mm-36v heat-node=ambient\n"
+        "resistor R1 c gnd 100\n",
+        2, "heat-node=ambient names no heat node; leave heat-node out");
   }
 }

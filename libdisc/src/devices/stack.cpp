@@ -217,6 +217,15 @@ void Stack::build() {
     }
 }
 
+void Stack::setHeatNode(std::string name) {
+  if (name == HeatPath::kAmbient)
+    throw InputError(fmt::format(
+        "{}: heat-node=ambient names no heat node; leave heat-node out and the plates lose "
+        "their heat to the ambient, or name a heat-node statement's element",
+        name_));
+  heatNode_ = std::move(name);
+}
+
 void Stack::prepare(const Circuit& c) {
   ambient_ = c.ambient();
   sink_ = heatNode_.empty() ? nullptr : &findHeatNode(c, heatNode_, name_);

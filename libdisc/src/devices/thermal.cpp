@@ -17,6 +17,12 @@ void HeatNodeParams::validate() const {
 
 HeatNode::HeatNode(std::string name, const HeatNodeParams& params)
     : DeviceBase(std::move(name), {}) {
+  // A heat path's second end "ambient" means the surroundings; a node of that name would be
+  // unreachable from any path and would shadow the word.
+  if (name_ == HeatPath::kAmbient)
+    throw InputError(
+        "'ambient' is the word for the surroundings, not a heat node's name; call the heat "
+        "node after what it stands for, e.g. chassis or sink");
   setParams(params);
 }
 
@@ -168,6 +174,11 @@ double HeatPath::probe(int, const EvalContext& ctx) const {
 
 HeatSource::HeatSource(std::string name, std::string node, double power)
     : DeviceBase(std::move(name), {}), node_(std::move(node)) {
+  if (node_ == HeatPath::kAmbient)
+    throw InputError(
+        fmt::format("{}: a heat source heats a heat node, and 'ambient' is none (heat into the "
+                    "surroundings warms nothing the run models); name the heat node it warms",
+                    name_));
   setPower(power);
 }
 

@@ -68,7 +68,9 @@ class Stack : public DeviceBase<Stack> {
   /// The heat node (disc/devices/thermal.hpp) the plates lose their heat to, instead of the
   /// ambient; "" for the ambient. Paralleled arms on one node warm each other through it.
   const std::string& heatNode() const { return heatNode_; }
-  void setHeatNode(std::string name) { heatNode_ = std::move(name); }
+  /// Throws InputError for "ambient": that is no heat node, and leaving the name out already
+  /// sends the plates' heat there.
+  void setHeatNode(std::string name);
 
   void prepare(const Circuit& c) override;
   std::vector<UnknownSpec> internalUnknowns() const override;
