@@ -1,6 +1,8 @@
 // The trace reader: units, and every kind of bad input located by line and column.
 #include <catch2/catch.hpp>
 
+#include <limits>
+
 #include "disc/plate_fit.hpp"
 #include "disc/trace.hpp"
 
@@ -103,6 +105,34 @@ TEST_CASE("trace: bad input is located by line and column", "[fit][trace]") {
     CHECK_THAT(traceErrorOf("voltage [V], current [mA], temperature [degC]\n1, 2, -300\n").what(),
                Catch::Contains("absolute zero"));
   }
+}
+
+TEST_CASE("trace: columns of numbers are checked as a file's rows are", "[fit][trace]") {
+  using V = std::vector<double>;
+  const double nan = std::numeric_limits<double>::quiet_NaN();
+  const auto errorOf = [](V v, V i, V t, V k) -> TraceError {
+    try {
+      disc::traceFromColumns(std::move(v), std::move(i), std::move(t), std::move(k), "probe");
+    } catch (const TraceError& e) {
+      return e;
+    }
+    FAIL("no TraceError");
+    throw std::logic_error("unreachable");
+  };
+  auto e = errorOf({0.5, 0.7}, {1e-3, nan}, {}, {});
+  CHECK(e.line() == 2);
+  CHECK(e.columnName() == "current");
+  CHECK_THAT(e.what(), Catch::Contains("probe:2: current nan A is not a finite number"));
+  e = errorOf({0.5, 0.7}, {1e-3, 2e-3}, {0.0, 0.0}, {});
+  CHECK(e.line() == 2);
+  CHECK_THAT(e.what(), Catch::Contains("does not increase"));
+  CHECK_THAT(errorOf({0.5}, {1e-3}, {}, {-1.0}).what(), Catch::Contains("below absolute zero"));
+  CHECK_THAT(errorOf({0.5, 0.7}, {1e-3}, {}, {}).what(),
+             Catch::Contains("current has 1 values but voltage has 2"));
+  CHECK_THAT(errorOf({}, {}, {}, {}).what(), Catch::Contains("no points"));
+  const auto t = disc::traceFromColumns({0.5, 0.7}, {1e-3, 2e-3}, {0.0, 1e-3}, {}, "probe");
+  CHECK(t.lines == std::vector<int>{1, 2});
+  CHECK(t.dynamic());
 }
 
 TEST_CASE("trace: a file that cannot be read", "[fit][trace]") {

@@ -119,8 +119,28 @@ def test_bad_traces_raise_trace_error_with_line_and_column(tmp_path):
         disc.load_trace(path)
     with pytest.raises(disc.TraceError, match="no reverse part"):
         disc.fit_plate(disc.trace(np.linspace(0.1, 1.5, 20), np.linspace(1e-3, 0.2, 20)))
-    with pytest.raises(ValueError):
+    with pytest.raises(disc.TraceError, match="current has 1 values but voltage has 2"):
         disc.trace([1.0, 2.0], [1.0])
+
+
+def test_traces_from_arrays_are_checked_as_a_file_rows_are():
+    # A NaN or an infinity would otherwise reach the fit's residuals and poison every step.
+    with pytest.raises(disc.TraceError, match="not a finite number") as e:
+        disc.trace([0.5, 0.7, 0.9], [1e-3, np.nan, 3e-3], source="scope")
+    assert (e.value.file, e.value.line, e.value.column_name) == ("scope", 2, "current")
+    with pytest.raises(disc.TraceError, match="voltage inf V"):
+        disc.trace([0.5, np.inf], [1e-3, 2e-3])
+    with pytest.raises(disc.TraceError, match="does not increase") as e:
+        disc.trace([0.5, 0.7, 0.9], [1e-3, 2e-3, 3e-3], time=[0.0, 1e-3, 1e-3])
+    assert e.value.line == 3
+    with pytest.raises(disc.TraceError, match="below absolute zero"):
+        disc.trace([0.5], [1e-3], temperature_c=[-300.0])
+    with pytest.raises(disc.TraceError, match="time has 1 values"):
+        disc.trace([0.5, 0.7], [1e-3, 2e-3], time=[0.0])
+    with pytest.raises(disc.TraceError, match="no points"):
+        disc.trace([], [])
+    good = disc.trace([0.5, 0.7], [1e-3, 2e-3], time=[0.0, 1e-3], temperature_c=[25.0, 25.0])
+    assert len(good) == 2 and good.lines == [1, 2] and good.dynamic
 
 
 def test_replace_through_python_matches_the_original_output():

@@ -89,17 +89,16 @@ def load_trace(path):
 
 
 def trace(voltage, current, time=None, temperature_c=None, source="<arrays>"):
-    """A trace from arrays in SI units (V, A, s; temperature in degC)."""
+    """A trace from arrays in SI units (V, A, s; temperature in degC). Raises TraceError, with
+    the point numbered from 1 as its line, for columns of unequal length, a value that is not
+    finite, a time that does not increase or a temperature below absolute zero."""
     import numpy as np
 
     def col(a):
         return [] if a is None else [float(x) for x in np.asarray(a, dtype=float).ravel()]
 
     kelvin = None if temperature_c is None else np.asarray(temperature_c, dtype=float) + 273.15
-    v, i = col(voltage), col(current)
-    if len(v) != len(i):
-        raise ValueError(f"voltage has {len(v)} values but current has {len(i)}")
-    return _disc.Trace(v, i, col(time), col(kelvin), source)
+    return _disc.Trace(col(voltage), col(current), col(time), col(kelvin), source)
 
 
 def fit_plate(traces, *, plates=1, like=None, material="selenium", area_cm2=None,

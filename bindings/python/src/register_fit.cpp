@@ -24,21 +24,9 @@ py::array_t<double> array(const std::vector<double>& v) {
 
 void registerFit(py::module_& m) {
   py::class_<Trace>(m, "Trace", "A measured I-V trace in SI units (copies as numpy arrays).")
-      .def(py::init([](std::vector<double> voltage, std::vector<double> current,
-                       std::vector<double> time, std::vector<double> temperature,
-                       std::string source) {
-             Trace t;
-             t.voltage = std::move(voltage);
-             t.current = std::move(current);
-             t.time = std::move(time);
-             t.temperature = std::move(temperature);
-             t.source = std::move(source);
-             for (std::size_t k = 0; k < t.voltage.size(); ++k)
-               t.lines.push_back(static_cast<int>(k) + 1);
-             return t;
-           }),
-           py::arg("voltage"), py::arg("current"), py::arg("time") = std::vector<double>{},
-           py::arg("temperature") = std::vector<double>{}, py::arg("source") = "<arrays>")
+      .def(py::init(&traceFromColumns), py::arg("voltage"), py::arg("current"),
+           py::arg("time") = std::vector<double>{}, py::arg("temperature") = std::vector<double>{},
+           py::arg("source") = "<arrays>")
       .def_readonly("source", &Trace::source)
       .def_property_readonly("voltage", [](const Trace& t) { return array(t.voltage); })
       .def_property_readonly("current", [](const Trace& t) { return array(t.current); })

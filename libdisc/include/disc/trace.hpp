@@ -44,5 +44,12 @@ struct Trace {
 Trace parseTrace(const std::string& text, const std::string& name = "<trace>");
 /// Reads and parses a trace file; throws TraceError (also when the file cannot be read).
 Trace loadTrace(const std::string& path);
+/// A trace from columns of numbers (SI units; `time` and `temperature` may be empty), checked
+/// as a file's rows are: equal lengths, at least one point, every value finite, time strictly
+/// increasing, temperatures above 0 K. Throws TraceError naming `source` and the point
+/// (numbered from 1, in place of a file's line).
+Trace traceFromColumns(std::vector<double> voltage, std::vector<double> current,
+                       std::vector<double> time, std::vector<double> temperature,
+                       const std::string& source = "<arrays>");
 
 }  // namespace disc

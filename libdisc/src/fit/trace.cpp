@@ -273,4 +273,51 @@ Trace loadTrace(const std::string& path) {
   return parseTrace(text, path);
 }
 
+Trace traceFromColumns(std::vector<double> voltage, std::vector<double> current,
+                       std::vector<double> time, std::vector<double> temperature,
+                       const std::string& source) {
+  const std::size_t n = voltage.size();
+  const auto sameLength = [&](const std::vector<double>& column, const char* what, bool optional) {
+    if (optional && column.empty()) return;
+    if (column.size() != n)
+      throw TraceError(source, 0, 0, what,
+                       fmt::format("{} has {} values but voltage has {}: every column needs one "
+                                   "value per point",
+                                   what, column.size(), n));
+  };
+  sameLength(current, "current", false);
+  sameLength(time, "time", true);
+  sameLength(temperature, "temperature", true);
+  if (n == 0) throw TraceError(source, 0, 0, "", "the trace has no points");
+  const auto finite = [&](const std::vector<double>& column, const char* what, const char* unit) {
+    for (std::size_t k = 0; k < column.size(); ++k)
+      if (!std::isfinite(column[k]))
+        throw TraceError(source, static_cast<int>(k) + 1, 0, what,
+                         fmt::format("{} {} {} is not a finite number: remove or repair the point",
+                                     what, column[k], unit));
+  };
+  finite(time, "time", "s");
+  finite(voltage, "voltage", "V");
+  finite(current, "current", "A");
+  finite(temperature, "temperature", "K");
+  for (std::size_t k = 1; k < time.size(); ++k)
+    if (!(time[k] > time[k - 1]))
+      throw TraceError(source, static_cast<int>(k) + 1, 0, "time",
+                       "time does not increase from the point before: sort the points by time "
+                       "or remove repeated samples");
+  for (std::size_t k = 0; k < temperature.size(); ++k)
+    if (temperature[k] <= 0.0)
+      throw TraceError(source, static_cast<int>(k) + 1, 0, "temperature",
+                       "temperature below absolute zero: check the unit (K or degC)");
+  Trace t;
+  t.source = source;
+  t.voltage = std::move(voltage);
+  t.current = std::move(current);
+  t.time = std::move(time);
+  t.temperature = std::move(temperature);
+  t.lines.resize(n);
+  for (std::size_t k = 0; k < n; ++k) t.lines[k] = static_cast<int>(k) + 1;
+  return t;
+}
+
 }  // namespace disc
