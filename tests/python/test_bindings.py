@@ -53,6 +53,18 @@ def test_report_fields_match_report_json():
     assert "OUTPUT" in r.report_text()
 
 
+def test_a_run_too_short_for_the_report_says_so_in_the_netlist_words():
+    # At 60 Hz the report's two whole cycles need 33.3 ms; the samples are still there to read.
+    r = small_supply().run_transient(stop=0.02, record=["v:b"])
+    assert len(r["v:b"]) > 0
+    with pytest.raises(disc.InputError, match=r"stop=0.02 s covers 1.2 cycles of 'MAINS' "
+                                              r"\(60 Hz\).*give stop=0.0333333 s or more"):
+        r.report()
+    with pytest.raises(disc.InputError, match=r"stop=0.03 s with record-from=0.01\d* s records 1.\d+ cycles"):
+        small_supply().run_transient(stop=0.03, record_from=0.01).report()
+    assert small_supply().run_transient(stop=0.034).report()["frequency_Hz"] == 60
+
+
 @pytest.mark.parametrize("name", EXAMPLES)
 def test_parity_with_the_command_line(name, tmp_path):
     # The same figures to the last digit of the JSON.

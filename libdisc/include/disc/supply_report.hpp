@@ -148,6 +148,18 @@ std::vector<std::string> reportSignals(const Netlist& netlist);
 /// check (the last tenth of the recorded run without mains), with a margin. The keepLast of a
 /// run whose rows go to a sink (TransientOptions), so that its report is that of every row.
 double reportSpan(const Netlist& netlist, const TransientOptions& options);
+/// The source that sets a supply's mains frequency: the alternating source of the lowest
+/// frequency (the report's cycles are its periods). `frequency` 0 and `name` empty: a DC supply.
+struct MainsSource {
+  std::string name;
+  double frequency = 0.0;  ///< Hz
+};
+MainsSource mainsSource(const Circuit& circuit);
+/// Why a transient recording from `recordFrom` to `stop` (s) is too short for the supply report
+/// of `netlist`: it covers fewer than kSettleCycles whole mains cycles. "" when it is long
+/// enough, the netlist has no output or the supply no mains. The parser refuses such a run
+/// statement with this text, and makeSupplyReport refuses such a transient.
+std::string reportLengthShortfall(const Netlist& netlist, double stop, double recordFrom);
 /// Computes the report from a transient result that recorded reportSignals().
 SupplyReport makeSupplyReport(const Netlist& netlist, const Result& transient);
 

@@ -25,16 +25,8 @@ std::string vname(const Circuit& c, NodeId id) {
   return c.nodeName(id);
 }
 
-/// Mains frequency: the lowest sine frequency among the sources (0 for a DC supply).
 double mainsFrequency(const Circuit& c) {
-  double f = 0.0;
-  for (const auto& d : c.devices()) {
-    const Waveform* w = nullptr;
-    if (auto* v = dynamic_cast<const VoltageSource*>(d.get())) w = &v->waveform();
-    if (auto* i = dynamic_cast<const CurrentSource*>(d.get())) w = &i->waveform();
-    if (w && w->frequency() > 0.0 && (f == 0.0 || w->frequency() < f)) f = w->frequency();
-  }
-  return f;
+  return mainsSource(c).frequency;
 }
 
 int rank(const std::string& level) {
@@ -102,6 +94,37 @@ std::vector<std::string> reportSignals(const Netlist& nl) {
   return s;
 }
 
+MainsSource mainsSource(const Circuit& c) {
+  MainsSource m;
+  for (const auto& d : c.devices()) {
+    const Waveform* w = nullptr;
+    if (auto* v = dynamic_cast<const VoltageSource*>(d.get())) w = &v->waveform();
+    if (auto* i = dynamic_cast<const CurrentSource*>(d.get())) w = &i->waveform();
+    if (w && w->frequency() > 0.0 && (m.frequency == 0.0 || w->frequency() < m.frequency))
+      m = {d->name(), w->frequency()};
+  }
+  return m;
+}
+
+std::string reportLengthShortfall(const Netlist& nl, double stop, double recordFrom) {
+  if (!nl.output.given) return "";
+  const MainsSource mains = mainsSource(nl.circuit);
+  // The report sees only the recorded rows, which begin at record-from.
+  const double from = std::max(0.0, recordFrom);
+  const double cycles = (stop - from) * mains.frequency;
+  if (mains.frequency == 0.0 || cycles >= SupplyReport::kSettleCycles * (1.0 - 1e-9)) return "";
+  const std::string span =
+      from > 0.0 ? fmt::format("stop={:g} s with record-from={:g} s records", stop, from)
+                 : fmt::format("stop={:g} s covers", stop);
+  return fmt::format(
+      "{} {:.3g} cycles of '{}' ({:g} Hz), and the supply report needs at least {}: it "
+      "measures whole cycles at the end of the run and tells whether the output has settled by "
+      "comparing their means; give stop={:g} s or more (a supply started cold usually needs "
+      "longer)",
+      span, cycles, mains.name, mains.frequency, SupplyReport::kSettleCycles,
+      from + SupplyReport::kSettleCycles / mains.frequency);
+}
+
 double reportSpan(const Netlist& nl, const TransientOptions& o) {
   // The settling check looks back over at most five mains cycles; without mains the figures
   // use the last tenth of the recorded run. A quarter of a cycle (a hundredth of the run) more
@@ -134,6 +157,10 @@ SupplyReport makeSupplyReport(const Netlist& nl, const Result& r) {
     rep.window0 = t.front();
     rep.window1 = end;
   } else if (rep.frequency > 0.0) {
+    // A transient too short to judge its settling (the parser refuses such a run statement;
+    // a library or Python caller learns it here, in the same words).
+    if (const std::string why = reportLengthShortfall(nl, end, t.front()); !why.empty())
+      throw InputError("supply report: the transient's " + why);
     const double period = 1.0 / rep.frequency;
     const int available = static_cast<int>(std::floor((end - t.front()) / period + 1e-9));
     int settledCycles = 1;

@@ -198,6 +198,19 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     return w.body.ambient + yy[w.slowIndex] * scale[w.slowIndex];
   };
 
+  // The settled period handed to a caller's onPeriod, marked as one settled period so that
+  // a supply report made from it needs no settling check and shows no switch-on.
+  auto settledPeriod = [&](detail::PeriodicSolver& from, const std::vector<double>& xs, double t) {
+    Result own;
+    {
+      detail::Recorder rec(sys, po.record, own);
+      from.recordPeriod(xs, t, rec, stats);
+    }
+    for (double& tp : own.timeColumn()) tp -= t0;
+    own.stats().method = "periodic";
+    return own;
+  };
+
   // Each accepted slow step: the settled period recorded, reduced into the series.
   bool first = true;
   double tPrev = 0.0;
@@ -351,11 +364,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
       ++es.interpolatedRows;
       er.endTime = tr;
       if (options.onPeriod) {
-        Result own;
-        detail::Recorder rec(sys, po.record, own);
-        rowSolver->recordPeriod(xRow, tr, rec, stats);
-        for (double& tp : own.timeColumn()) tp -= t0;
-        if (!options.onPeriod(tr, own)) {
+        if (!options.onPeriod(tr, settledPeriod(*rowSolver, xRow, tr))) {
           er.stoppedBy = fmt::format("stopped at t = {:.6g} s by the caller", tr);
           endedOnRow = true;
           return false;
@@ -379,11 +388,7 @@ EnvelopeResult warmUp(const Circuit& circuit, const EnvelopeOptions& options) {
     fPrev = std::move(f);
     bool go = true;
     if (options.onPeriod) {
-      Result own;
-      detail::Recorder rec(sys, po.record, own);
-      solver.recordPeriod(x, t, rec, stats);
-      for (double& tp : own.timeColumn()) tp -= t0;
-      go = options.onPeriod(t, own);
+      go = options.onPeriod(t, settledPeriod(solver, x, t));
       if (!go) er.stoppedBy = fmt::format("stopped at t = {:.6g} s by the caller", t);
     }
     if (options.progress && !options.progress(t, options.duration))

@@ -1368,33 +1368,10 @@ class Builder {
       if (a.kind != AnalysisRequest::Kind::OperatingPoint) last = &a;
     if (!last || last->kind != AnalysisRequest::Kind::Transient || !(last->transient.stop > 0.0))
       return;
-    // The report's mains frequency: the lowest of the sources'.
-    double f = 0.0;
-    std::string source;
-    for (const auto& d : nl_.circuit.devices()) {
-      const Waveform* w = nullptr;
-      if (auto* v = dynamic_cast<const VoltageSource*>(d.get())) w = &v->waveform();
-      if (auto* i = dynamic_cast<const CurrentSource*>(d.get())) w = &i->waveform();
-      if (w && w->frequency() > 0.0 && (f == 0.0 || w->frequency() < f)) {
-        f = w->frequency();
-        source = d->name();
-      }
-    }
-    // The report sees only the recorded rows, which begin at record-from.
-    const double stop = last->transient.stop, from = std::max(0.0, last->transient.recordFrom);
-    const double cycles = (stop - from) * f;
-    if (f == 0.0 || cycles >= SupplyReport::kSettleCycles * (1.0 - 1e-9)) return;
-    const std::string span =
-        from > 0.0 ? fmt::format("stop={:g} s with record-from={:g} s records", stop, from)
-                   : fmt::format("stop={:g} s covers", stop);
-    error(last->where,
-          fmt::format("{} {:.3g} cycles of '{}' ({:g} Hz), and the supply report "
-                      "needs at least {}: it measures whole cycles at the end of the run and "
-                      "tells whether the output has settled by comparing their means; give "
-                      "stop={:g} s or more (a supply started cold usually needs longer), or "
-                      "leave out the output statement to record without a report",
-                      span, cycles, source, f, SupplyReport::kSettleCycles,
-                      from + SupplyReport::kSettleCycles / f));
+    const std::string why =
+        reportLengthShortfall(nl_, last->transient.stop, last->transient.recordFrom);
+    if (!why.empty())
+      error(last->where, why + ", or leave out the output statement to record without a report");
   }
 
  public:
