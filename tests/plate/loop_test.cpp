@@ -75,10 +75,10 @@ double trapArea(const Loop& l, double frequency, double ct, double tau, int harm
 
 TEST_CASE("A heated plate's loop at 50 Hz grows: its traps empty faster", "[plate][loops]") {
   // The trap branch's time constant Ct/gt shortens with heating as deep-level emission does
-  // (Arrhenius, D. V. Lang, J. Appl. Phys. 45, 3023 (1974)); heated plates show wider loops
-  // (from memory; issue #19). With the plate held at the ambient and Rs constant, v = uj + Rs i,
-  // and the static barrier current is single-valued in uj, so the loop's area is the barrier
-  // charge's share plus the trap branch's: A = A_barrier(uj) + A_trap(uj).
+  // (Arrhenius, simplified from D. V. Lang, J. Appl. Phys. 45, 3023 (1974)); heated plates show
+  // wider loops (from memory; issue #19). With the plate held at the ambient and Rs constant, v =
+  // uj + Rs i, and the static barrier current is single-valued in uj, so the loop's area is the
+  // barrier charge's share plus the trap branch's: A = A_barrier(uj) + A_trap(uj).
   const PlateType& se = PlateLibrary::builtIn().at("se-25mm-square");
   PlateType noTrap = se;
   noTrap.set("trap_c_F_per_cm2", 0.0);

@@ -57,7 +57,8 @@ TEST_CASE("Barrier capacitance obeys Mott-Schottky: 1/C^2 linear in V", "[plate]
 
 TEST_CASE("Trap emission is thermally activated: gt follows Arrhenius", "[plate][laws]") {
   // gt(T) = (Ct / tau) exp(-(Et/k)(1/T - 1/T0)): the emission rate of a deep level is thermally
-  // activated (D. V. Lang, J. Appl. Phys. 45, 3023 (1974)), so the branch's time constant
+  // activated (D. V. Lang, J. Appl. Phys. 45, 3023 (1974); simplified here: Lang's rate has a
+  // T^2 prefactor the law leaves out), so the branch's time constant
   // Ct / gt shortens as the plate warms. dIt/dT = It Et / (k T^2).
   const PlateType t = bareBarrier();
   const auto k = detail::makePlateConstants(t, 1.0, 1.0, 1.0, 1.0);

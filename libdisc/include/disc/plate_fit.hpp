@@ -84,10 +84,13 @@ struct FitCurve {
 struct PlateFit {
   PlateType type;  ///< the fitted type (reference values where not fitted)
   std::vector<FittedParameter> parameters;
-  int points = 0;                     ///< points fitted
-  double rmsWeighted = 0.0;           ///< rms of the weighted residuals (about 1: noise model fits)
-  double rmsCurrent = 0.0;            ///< A, rms of measured minus fitted current
-  std::vector<std::string> stages;    ///< stages run, in order, with their cost
+  int points = 0;            ///< points fitted (a binned trace's bins, not its rows)
+  double rmsWeighted = 0.0;  ///< rms of the weighted residuals (about 1: noise model fits)
+  /// A, rms of measured minus fitted current over the points fitted. Of a binned trace these
+  /// are the bins' means, whose noise is 1/sqrt(rows) of a row's: the figure then measures the
+  /// model's misfit, not the rows' scatter about it (docs/fitting.md, "Long traces").
+  double rmsCurrent = 0.0;
+  std::vector<std::string> stages;  ///< stages run, in order, with their cost
   /// Per binned trace: its rows, points, bin widths or windows, and their bias bound
   /// (docs/fitting.md, "Long traces"); empty when nothing was binned.
   std::vector<std::string> binning;
